@@ -1,0 +1,51 @@
+import type { Environment, Rng } from '../plugin.js';
+import type { FiniteMdp, PolicyMatrix } from './finite-mdp.js';
+
+/** Where a definition came from: `label` prefixes every error message; `baseDir` resolves relative paths. */
+export interface DefinitionSource {
+  readonly label: string;
+  readonly baseDir: string;
+}
+
+/** An environment ready to run: either compiled to flat arrays, or a user's code. */
+export type BuiltEnvironment = FiniteEnvironment | ModuleEnvironment;
+
+export interface FiniteEnvironment {
+  readonly kind: 'finite';
+  readonly mdp: FiniteMdp;
+}
+
+export interface ModuleEnvironment {
+  readonly kind: 'module';
+  readonly env: Environment;
+  readonly actionNames: readonly string[];
+  readonly discount: number;
+  /** Resolved horizon (given by the module, or derived from its reward range and the tolerance). */
+  readonly horizon: number;
+  readonly horizonDerived: boolean;
+  readonly rewardRange: readonly [number, number] | null;
+}
+
+/**
+ * A policy ready to run. On a finite environment every built-in kind compiles to a
+ * {@link PolicyMatrix}; code policies and any policy on a module environment act through
+ * {@link ActingPolicy}.
+ */
+export type BuiltPolicy = MatrixPolicy | CodePolicy;
+
+export interface MatrixPolicy {
+  readonly kind: 'matrix';
+  readonly matrix: PolicyMatrix;
+}
+
+export interface CodePolicy {
+  readonly kind: 'code';
+  readonly acting: ActingPolicy;
+  /** The policy as a matrix when it can be tabulated on a finite env (module policy with `probabilities`). */
+  readonly matrix: PolicyMatrix | null;
+}
+
+/** Chooses an action index for a state; `stateName` is the env's name for it (for table lookups). */
+export interface ActingPolicy {
+  act(state: unknown, rng: Rng): number;
+}

@@ -1,0 +1,46 @@
+/**
+ * The one registry of failures. A user's bad input (a file, an option, later an HTTP body)
+ * is an {@link InputError}: one line that names the place, exit code 2, HTTP 400.
+ * Anything else that escapes is our bug: exit code 1.
+ */
+
+/** Bad input from the user. `where` names the file or option; the message says what is wrong. */
+export class InputError extends Error {
+  readonly exitCode: number = 2;
+  readonly httpStatus: number = 400;
+  constructor(readonly where: string, readonly detail: string, options?: { cause?: unknown }) {
+    super(where ? `${where}: ${detail}` : detail, options);
+    this.name = 'InputError';
+  }
+}
+
+/** A run asked for something that does not exist (an unknown run id, a missing state). */
+export class NotFoundError extends InputError {
+  override readonly httpStatus: number = 404;
+  constructor(where: string, detail: string) {
+    super(where, detail);
+    this.name = 'NotFoundError';
+  }
+}
+
+/**
+ * A plug-in (module environment or policy) threw. Carries what is needed to replay the
+ * failure: the episode index and step, so `--seed S` reproduces it.
+ */
+export class PluginError extends Error {
+  readonly exitCode = 1;
+  constructor(
+    readonly plugin: string,
+    readonly episode: number,
+    readonly step: number,
+    cause: unknown,
+  ) {
+    const why = cause instanceof Error ? cause.message : String(cause);
+    super(`${plugin} threw at episode ${episode}, step ${step}: ${why}`, { cause });
+    this.name = 'PluginError';
+  }
+}
+
+export function isInputError(e: unknown): e is InputError {
+  return e instanceof InputError;
+}
