@@ -1,0 +1,31 @@
+import { InputError } from '../errors.js';
+import type { CiMethod } from './interval.js';
+import type { ReturnSummary } from './summary.js';
+
+/** Known limits [a, b] that every return lies in: the premise of Hoeffding and Bernstein bounds. */
+export type ReturnBounds = [number, number];
+
+/**
+ * Checks the bounds a bounded-variable method relies on. A return outside them would void the
+ * guarantee silently, so it is an error rather than a clip.
+ */
+export function requireBounds(
+  method: CiMethod,
+  bounds: ReturnBounds | null | undefined,
+  summary: ReturnSummary,
+): ReturnBounds {
+  if (bounds == null) {
+    throw new InputError('--ci ' + method, 'needs return bounds: give --bounds LOW,HIGH (none are known for this environment)');
+  }
+  const [low, high] = bounds;
+  if (!Number.isFinite(low) || !Number.isFinite(high) || !(low < high)) {
+    throw new InputError('--bounds', `need finite LOW < HIGH (got ${low},${high})`);
+  }
+  if (summary.min < low || summary.max > high) {
+    throw new InputError(
+      '--bounds',
+      `observed returns span [${summary.min}, ${summary.max}], outside the bounds [${low}, ${high}]`,
+    );
+  }
+  return [low, high];
+}
