@@ -1,0 +1,25 @@
+import { parseArgs, type ParseArgsConfig } from 'node:util';
+import { InputError } from '../errors.js';
+
+export type OptionSpec = NonNullable<ParseArgsConfig['options']>;
+
+/**
+ * Strict option parsing for one command: an unknown or malformed option is an InputError
+ * that names it and points to the command's --help.
+ */
+export function parseCommandArgs(command: string, args: string[], options: OptionSpec) {
+  try {
+    return parseArgs({ args, options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals: false });
+  } catch (e) {
+    const message = (e as Error).message.replace(/\. To specify a positional argument.*$/s, '');
+    throw new InputError('', `${message.replace(/\.$/, '')}; see 'reckon ${command} --help'`);
+  }
+}
+
+/** Requires an option, with a message that says what to give. */
+export function required(command: string, name: string, value: string | undefined, example: string): string {
+  if (value === undefined || value === '') {
+    throw new InputError(`--${name}`, `is required; e.g. ${example} (see 'reckon ${command} --help')`);
+  }
+  return value;
+}

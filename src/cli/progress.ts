@@ -1,0 +1,34 @@
+import type { EstimateProgress } from '../evaluate/estimate.js';
+import { count, duration, rate, sig } from '../report/format.js';
+
+/**
+ * A one-line progress display on stderr for runs longer than a second, only when stderr is
+ * a terminal (so pipes and CI logs stay clean). Redrawn at most five times a second.
+ */
+export class ProgressLine {
+  private lastDraw = 0;
+  private drawn = false;
+  private readonly enabled: boolean;
+
+  constructor(private readonly stream: NodeJS.WriteStream = process.stderr) {
+    this.enabled = Boolean(stream.isTTY) && process.env.RECKON_NO_PROGRESS !== '1';
+  }
+
+  update(p: EstimateProgress): void {
+    if (!this.enabled || p.seconds < 1) return;
+    const now = performance.now();
+    if (now - this.lastDraw < 200 && p.done < p.total) return;
+    this.lastDraw = now;
+    const perSecond = p.done / p.seconds;
+    const left = perSecond > 0 ? (p.total - p.done) / perSecond : null;
+    const hw = Number.isFinite(p.halfWidth) ? ` ± ${sig(p.halfWidth, 2)}` : '';
+    const text = `  ${count(p.done)}/${count(p.total)} episodes  ${rate(perSecond)}/s  mean ${sig(p.mean)}${hw}  ~${duration(left)} left`;
+    this.stream.write(`\r${text.padEnd(78)}`);
+    this.drawn = true;
+  }
+
+  clear(): void {
+    if (this.drawn) this.stream.write(`\r${' '.repeat(78)}\r`);
+    this.drawn = false;
+  }
+}

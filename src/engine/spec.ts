@@ -1,0 +1,14 @@
+import type { DefinitionSource } from '../definitions/built.js';
+
+/**
+ * Everything that determines a run's episodes, in a form that crosses thread and process
+ * boundaries (plain JSON): the definitions as given, where they came from, the seed and the
+ * optional fixed start state. Episode i's return is a pure function of (spec, i).
+ */
+export interface RolloutSpec {
+  readonly env: { readonly json: unknown; readonly source: DefinitionSource };
+  readonly policy: { readonly json: unknown; readonly source: DefinitionSource };
+  readonly seed: number;
+  /** A state name for `--start`, or null for the environment's start distribution. */
+  readonly start: string | null;
+}

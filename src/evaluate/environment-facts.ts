@@ -1,0 +1,50 @@
+import type { BuiltEnvironment, BuiltPolicy } from '../definitions/built.js';
+import { truncationBound } from '../definitions/horizon.js';
+import { moduleReturnBounds, returnBounds } from '../exact/index.js';
+
+/** What a report says about the environment a run used, beside the estimate. */
+export interface EnvironmentFacts {
+  readonly kind: 'finite' | 'module';
+  readonly discount: number;
+  readonly horizon: number;
+  readonly horizonDerived: boolean;
+  readonly actions: readonly string[];
+  readonly states: number | null;
+  /** Smallest and largest reward a step can pay, when known. */
+  readonly rewardRange: readonly [number, number] | null;
+  /** Smallest and largest possible return under this policy (exact for finite envs), when known. */
+  readonly returnBounds: [number, number] | null;
+  /** γ^H·max|r|/(1−γ): how far the horizon-H value can be from the untruncated one; null when γ = 1 or unknown. */
+  readonly truncationBound: number | null;
+}
+
+export function environmentFacts(env: BuiltEnvironment, policy: BuiltPolicy | null, startIndex = -1): EnvironmentFacts {
+  if (env.kind === 'finite') {
+    const mdp = env.mdp;
+    const matrix = policy === null ? null : policy.matrix;
+    const maxAbs = Math.max(Math.abs(mdp.rewardRange[0]), Math.abs(mdp.rewardRange[1]));
+    return {
+      kind: 'finite',
+      discount: mdp.discount,
+      horizon: mdp.horizon,
+      horizonDerived: mdp.horizonDerived,
+      actions: mdp.actionNames,
+      states: mdp.stateCount,
+      rewardRange: mdp.rewardRange,
+      returnBounds: returnBounds(mdp, matrix, startIndex >= 0 ? startIndex : undefined),
+      truncationBound: truncationBound(mdp.discount, mdp.horizon, maxAbs),
+    };
+  }
+  const range = env.rewardRange;
+  return {
+    kind: 'module',
+    discount: env.discount,
+    horizon: env.horizon,
+    horizonDerived: env.horizonDerived,
+    actions: env.actionNames,
+    states: null,
+    rewardRange: range,
+    returnBounds: range ? moduleReturnBounds(range, env.discount, env.horizon) : null,
+    truncationBound: range ? truncationBound(env.discount, env.horizon, Math.max(Math.abs(range[0]), Math.abs(range[1]))) : null,
+  };
+}

@@ -1,0 +1,38 @@
+/**
+ * Every episode's return, in episode order, 8 bytes each: what re-analysis (bootstrap,
+ * another interval method) needs. Lengths are not kept here, only summed.
+ */
+export class ReturnsBuffer {
+  private data: Float64Array;
+  count = 0;
+  lengthSum = 0;
+  longest = 0;
+  /** Episodes that ran the full horizon without ending (their returns may be truncated). */
+  atHorizon = 0;
+
+  constructor(capacity: number, private readonly horizon: number) {
+    this.data = new Float64Array(Math.max(16, capacity));
+  }
+
+  append(returns: Float64Array, lengths: Uint32Array): void {
+    const needed = this.count + returns.length;
+    if (needed > this.data.length) {
+      const grown = new Float64Array(Math.max(needed, this.data.length * 2));
+      grown.set(this.data.subarray(0, this.count));
+      this.data = grown;
+    }
+    this.data.set(returns, this.count);
+    this.count = needed;
+    for (let i = 0; i < lengths.length; i++) {
+      const length = lengths[i];
+      this.lengthSum += length;
+      if (length > this.longest) this.longest = length;
+      if (length >= this.horizon) this.atHorizon++;
+    }
+  }
+
+  /** A view of the returns so far (no copy). */
+  view(): Float64Array {
+    return this.data.subarray(0, this.count);
+  }
+}

@@ -1,0 +1,38 @@
+import type { EstimateResult } from '../evaluate/estimate.js';
+
+/**
+ * The `estimate --json` object. Keys are a contract that scripts rely on: add, never rename.
+ * `env` and `policy` are the labels (paths) of the definitions.
+ */
+export function estimateJson(result: EstimateResult, labels: { env: string; policy: string }, version: string) {
+  const facts = result.facts;
+  return {
+    env: labels.env,
+    policy: labels.policy,
+    episodes: result.episodes,
+    mean: result.mean,
+    std: result.std,
+    stderr: result.stderr,
+    min: result.min,
+    max: result.max,
+    ci: { method: result.ci.method, level: result.ci.level, low: result.ci.low, high: result.ci.high, half_width: result.ci.halfWidth },
+    projection: result.projection,
+    seed: result.seed,
+    start: result.start,
+    discount: facts.discount,
+    horizon: facts.horizon,
+    horizon_derived: facts.horizonDerived,
+    truncation_bound: facts.truncationBound,
+    return_bounds: result.bounds ? { low: result.bounds[0], high: result.bounds[1], source: result.boundsSource } : null,
+    mean_length: result.meanLength,
+    longest_episode: result.longestEpisode,
+    episodes_at_horizon: result.episodesAtHorizon,
+    steps: result.steps,
+    seconds: result.seconds,
+    steps_per_second: result.seconds > 0 ? result.steps / result.seconds : null,
+    episodes_per_second: result.seconds > 0 ? result.episodes / result.seconds : null,
+    workers: result.workers,
+    interrupted: result.interrupted,
+    reckon_version: version,
+  };
+}

@@ -1,0 +1,49 @@
+import type { EstimateResult } from '../evaluate/estimate.js';
+import { columns, count, decimalsFor, duration, fixed, rate, sig } from './format.js';
+
+const METHOD_NAMES: Record<string, string> = {
+  t: 'Student t',
+  normal: 'normal (CLT)',
+  bootstrap: 'bootstrap BCa',
+  'bootstrap-percentile': 'bootstrap percentile',
+  hoeffding: 'Hoeffding',
+  bernstein: 'empirical Bernstein',
+};
+
+/** The plain-text report of an estimate: the estimate first, then how sure, then what more would cost. */
+export function estimateText(result: EstimateResult, labels: { env: string; policy: string }): string {
+  const facts = result.facts;
+  const ci = result.ci;
+  const d = decimalsFor(ci.halfWidth);
+  const level = `${+(ci.level * 100).toFixed(4)}%`;
+  const lines: string[] = [];
+  lines.push(`Policy ${labels.policy} in ${labels.env}${result.start ? `, every episode from state ${result.start}` : ''}`);
+  lines.push('');
+  lines.push(`  expected return  ${fixed(result.mean, d)}  ± ${fixed(ci.halfWidth, d)}   (${level} ${METHOD_NAMES[ci.method] ?? ci.method} interval ${fixed(ci.low, d)} … ${fixed(ci.high, d)})`);
+  lines.push(`  spread           std ${sig(result.std)}, standard error ${sig(result.stderr)}, returns from ${sig(result.min)} to ${sig(result.max)}`);
+  lines.push(`  episodes         ${count(result.episodes)} with seed ${result.seed}; mean length ${sig(result.meanLength, 3)} steps, longest ${count(result.longestEpisode)}`);
+  const horizonNote = facts.horizonDerived ? ' (chosen so the truncation bound is within tolerance)' : '';
+  const truncation = facts.truncationBound === null ? '' : `; truncation bound ${sig(facts.truncationBound, 2)}`;
+  lines.push(`  horizon          ${count(facts.horizon)} steps${horizonNote}, discount ${facts.discount}${truncation}`);
+  if (result.episodesAtHorizon > 0) {
+    lines.push(`                   ${count(result.episodesAtHorizon)} episodes ran the full horizon without ending`);
+  }
+  if (result.bounds) {
+    const source = result.boundsSource === 'user' ? 'from --bounds' : facts.kind === 'finite' ? 'exact, for this policy' : "from the environment's reward range";
+    lines.push(`  return bounds    ${sig(result.bounds[0])} … ${sig(result.bounds[1])} (${source})`);
+  }
+  const throughput = result.seconds > 0 ? `${rate(result.steps / result.seconds)} steps/s, ${rate(result.episodes / result.seconds)} episodes/s` : '';
+  lines.push(`  time             ${duration(result.seconds)} on ${result.workers} worker${result.workers === 1 ? '' : 's'}${throughput ? `, ${throughput}` : ''}`);
+  if (result.interrupted) {
+    lines.push('', `  Stopped early: ${count(result.episodes)} of ${count(result.requestedEpisodes)} episodes ran; the figures above use those.`);
+  }
+  if (result.projection.length > 0) {
+    lines.push('', '  To narrow the interval (at this run\'s spread and speed):');
+    const rows = [['± half-width', 'episodes needed', 'more than now', 'time']];
+    for (const row of result.projection) {
+      rows.push([fixed(row.half_width, decimalsFor(row.half_width)), count(row.episodes_needed), count(row.more_episodes), duration(row.seconds)]);
+    }
+    lines.push(...columns(rows, '    '));
+  }
+  return lines.join('\n') + '\n';
+}

@@ -1,0 +1,109 @@
+import { describe, expect, it } from 'vitest';
+import { reckon, tempFiles } from './run-cli.js';
+
+/**
+ * Every malformed definition or option: exit code 2 and one line on stderr that names the
+ * file (or option) and the place. The expected texts are the core issue's examples.
+ */
+const goodGrid = {
+  kind: 'gridworld',
+  discount: 0.9,
+  layout: ['..........', '....+.....', '..........'],
+  cells: { '.': {}, '+': { terminal: true, reward: 1 } },
+};
+
+function expectBadInput(result: { code: number | null; stderr: string }, text: string): void {
+  expect(result.code).toBe(2);
+  expect(result.stderr).toContain(text);
+  expect(result.stderr.trim().split('\n')).toHaveLength(1);
+  expect(result.stderr).not.toMatch(/\n\s+at /); // no stack trace
+}
+
+describe('bad definition files', () => {
+  it('a slip outside [0, 1]', () => {
+    const dir = tempFiles({ 'grid.json': { ...goodGrid, cells: { ...goodGrid.cells, '.': {}, '~': { slip: -0.2 } }, layout: ['...~......', '....+.....', '..........'] } });
+    expectBadInput(reckon(['check', '--env', 'grid.json'], { cwd: dir }), 'grid.json: cells["~"].slip must be between 0 and 1 (got -0.2)');
+  });
+
+  it('layout rows of different lengths', () => {
+    const dir = tempFiles({ 'grid.json': { ...goodGrid, layout: ['..........', '....+.....', '.........'] } });
+    expectBadInput(reckon(['check', '--env', 'grid.json'], { cwd: dir }), 'grid.json: layout row 2 has 9 characters, row 0 has 10');
+  });
+
+  it('a layout character missing from cells', () => {
+    const dir = tempFiles({ 'grid.json': { ...goodGrid, layout: ['..........', '....Z+....', '..........'] } });
+    expectBadInput(reckon(['check', '--env', 'grid.json'], { cwd: dir }), "grid.json: layout row 1, column 4: 'Z' is not in cells");
+  });
+
+  it('transition probabilities that do not sum to 1', () => {
+    const mdp = {
+      kind: 'tabular',
+      discount: 0.9,
+      states: ['q1', 'q3', 'end'],
+      actions: ['m1'],
+      start: { q1: 1 },
+      terminal: ['end'],
+      transitions: [
+        { from: 'q1', action: 'm1', to: 'q3', p: 1, reward: 0 },
+        { from: 'q3', action: 'm1', to: 'end', p: 0.8, reward: 1 },
+        { from: 'q3', action: 'm1', to: 'q1', p: 0.5, reward: 0 },
+      ],
+    };
+    const dir = tempFiles({ 'mdp.json': mdp });
+    expectBadInput(reckon(['check', '--env', 'mdp.json'], { cwd: dir }), 'mdp.json: probabilities for state "q3", action "m1" sum to 1.3');
+  });
+
+  it('a policy naming an action the environment does not have', () => {
+    const dir = tempFiles({ 'grid.json': goodGrid, 'policy.json': { kind: 'table', default: 'up', states: { '1,1': 'jump' } } });
+    expectBadInput(
+      reckon(['check', '--env', 'grid.json', '--policy', 'policy.json'], { cwd: dir }),
+      'policy.json: states["1,1"]: "jump" is not an action of this environment',
+    );
+  });
+
+  it('JSON syntax errors with line and column', () => {
+    const dir = tempFiles({ 'grid.json': '{\n  "kind": "gridworld",\n  "discount": 0.9,,\n}\n' });
+    const result = reckon(['check', '--env', 'grid.json'], { cwd: dir });
+    expectBadInput(result, 'grid.json: ');
+    expect(result.stderr).toMatch(/line 3, column \d+/);
+  });
+
+  it('an empty file and a missing file', () => {
+    const dir = tempFiles({ 'grid.json': '' });
+    expectBadInput(reckon(['check', '--env', 'grid.json'], { cwd: dir }), 'grid.json: ');
+    expectBadInput(reckon(['check', '--env', 'nothing-here.json'], { cwd: dir }), 'nothing-here.json: ');
+  });
+
+  it('a misspelled key is refused, never silently defaulted', () => {
+    const dir = tempFiles({ 'grid.json': { ...goodGrid, discout: 0.5 } });
+    expectBadInput(reckon(['check', '--env', 'grid.json'], { cwd: dir }), 'discout');
+  });
+});
+
+describe('bad options', () => {
+  const dir = tempFiles({ 'grid.json': goodGrid, 'uniform.json': { kind: 'uniform' } });
+  const base = ['estimate', '--env', 'grid.json', '--policy', 'uniform.json'];
+
+  it.each([
+    [['--episodes', 'many'], '--episodes'],
+    [['--episodes', '1'], '--episodes'],
+    [['--confidence', '95'], '--confidence'],
+    [['--ci', 'wide'], '--ci'],
+    [['--bounds', '5,1'], '--bounds'],
+    [['--workers', '0'], '--workers'],
+    [['--seed', '-3'], '--seed'],
+    [['--target-error', '0'], '--target-error'],
+    [['--start', '9,9'], '--start'],
+    [['--frobnicate'], "'reckon estimate --help'"],
+  ])('%j is refused naming %s', (extra, name) => {
+    expectBadInput(reckon([...base, ...extra], { cwd: dir }), name);
+  });
+
+  it('a missing --env says what to give', () => {
+    expectBadInput(reckon(['estimate', '--policy', 'uniform.json'], { cwd: dir }), '--env');
+  });
+
+  it('an unknown command points to the help', () => {
+    expectBadInput(reckon(['estimat']), 'reckon --help');
+  });
+});
