@@ -29,7 +29,8 @@ export function isCiMethod(name: string): name is CiMethod {
 
 /**
  * One entry point for every interval method. `summary` must describe the first `summary.n`
- * entries of `returns` (only the bootstrap methods read `returns`). Intervals are reported
+ * entries of `returns`; only the bootstrap methods read `returns`, so the others accept a
+ * summary alone (pass an empty array). Intervals are reported
  * raw, never clipped, except that Hoeffding and Bernstein intervals are intersected with the
  * bounds they assume. Throws {@link InputError} for an unknown method, a level outside (0, 1),
  * fewer than 2 episodes, or missing or violated bounds.
@@ -43,9 +44,6 @@ export function confidenceInterval(
   if (!isCiMethod(method)) {
     throw new InputError('--ci', `unknown method "${method}"; choose one of ${CI_METHODS.join(', ')}`);
   }
-  if (summary.n > returns.length) {
-    throw new RangeError(`confidenceInterval: summary covers ${summary.n} returns but only ${returns.length} were given`);
-  }
   const bootstrap = { seed: request.seed, resamples: request.resamples };
   switch (method) {
     case 't':
@@ -57,8 +55,16 @@ export function confidenceInterval(
     case 'bernstein':
       return bernsteinInterval(summary, level, request.bounds);
     case 'bootstrap':
+      requireReturnsFor(summary, returns);
       return bcaBootstrapInterval(returns, summary, level, bootstrap);
     case 'bootstrap-percentile':
+      requireReturnsFor(summary, returns);
       return percentileBootstrapInterval(returns, summary, level, bootstrap);
+  }
+}
+
+function requireReturnsFor(summary: ReturnSummary, returns: Float64Array | number[]): void {
+  if (summary.n > returns.length) {
+    throw new RangeError(`confidenceInterval: summary covers ${summary.n} returns but only ${returns.length} were given`);
   }
 }
