@@ -34,14 +34,16 @@ export function projectionRuleFor(method: CiMethod): ProjectionRule {
   }
 }
 
-/** Iterations allowed before the t rule settles for the larger of its last two values. */
+/** Iterations allowed before the t rule falls back to bisection. */
 const MAX_T_ITERATIONS = 60;
 
 /**
  * Episodes needed so that `method`'s half-width at `level` is at most `epsilon`:
  * - normal: n = ⌈(z_{1−α/2} s/ε)²⌉;
- * - t: start from the z answer and iterate n ← ⌈(t_{1−α/2, n−1} s/ε)²⌉ to a fixed point; a
- *   2-cycle (or the iteration cap) resolves to the larger value, which meets ε;
+ * - t: start from the z answer and iterate n ← ⌈(t_{1−α/2, n−1} s/ε)²⌉ to a fixed point, which
+ *   is the smallest n meeting ε (t quantiles fall as n grows). With few episodes the
+ *   iteration can cycle (s = 1, ε = 2: 2 → 41 → 2); then the larger value of the cycle meets
+ *   ε and bisection finds the smallest n that does (4 in that example);
  * - hoeffding: n = ⌈(b − a)² ln(2/α)/(2ε²)⌉ (Hoeffding 1963, Thm 2);
  * - bernstein: the smallest n whose Maurer–Pontil half-width with the current s² is ≤ ε,
  *   found by doubling then bisection (the half-width decreases in n);
@@ -100,16 +102,29 @@ function zEpisodes(std: number, epsilon: number, alpha: number): number {
 }
 
 function tEpisodes(std: number, epsilon: number, alpha: number): number {
+  const p = 1 - alpha / 2;
+  const tRule = (n: number) => atLeastTwo(((tQuantile(p, n - 1) * std) / epsilon) ** 2);
   let n = zEpisodes(std, epsilon, alpha);
   let previous = Number.NaN;
   for (let i = 0; i < MAX_T_ITERATIONS; i++) {
-    const next = atLeastTwo(((tQuantile(1 - alpha / 2, n - 1) * std) / epsilon) ** 2);
+    const next = tRule(n);
     if (next === n) return n;
-    if (next === previous) return Math.max(n, next);
+    if (next === previous) break;
     previous = n;
     n = next;
   }
-  return Math.max(n, previous);
+  // No fixed point (a 2-cycle, typical for a few episodes) or too slow: the larger of the last
+  // two values meets ε (it is at least the rule's value for itself); bisect down to the
+  // smallest n that does, which is what a fixed point would have been.
+  const meets = (m: number) => tRule(m) <= m;
+  let passing = Math.max(n, previous);
+  let failing = 1;
+  while (passing - failing > 1) {
+    const middle = Math.floor((failing + passing) / 2);
+    if (meets(middle)) passing = middle;
+    else failing = middle;
+  }
+  return passing;
 }
 
 function bernsteinEpisodes(variance: number, range: number, alpha: number, epsilon: number): number {
