@@ -61,7 +61,7 @@ export function resampledMeanDeviations(
       s0 ^= s3;
       s2 ^= shifted;
       s3 = (s3 << 11) | (s3 >>> 21);
-      sum += centred[Math.floor(bits * UINT32_TO_UNIT * n)];
+      sum += centred[(bits * UINT32_TO_UNIT * n) | 0]; // = Math.floor for values in [0, 2³¹)
     }
     deviations[b] = sum / n;
   }
