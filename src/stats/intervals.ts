@@ -30,9 +30,8 @@ export function isCiMethod(name: string): name is CiMethod {
 /**
  * One entry point for every interval method. `summary` must describe the first `summary.n`
  * entries of `returns`; only the bootstrap methods read `returns`, so the others accept a
- * summary alone (pass an empty array). Intervals are reported
- * raw, never clipped, except that Hoeffding and Bernstein intervals are intersected with the
- * bounds they assume. Throws {@link InputError} for an unknown method, a level outside (0, 1),
+ * summary alone (pass an empty array). Intervals are reported raw, never clipped, except that
+ * Hoeffding and Bernstein intervals are intersected with the bounds they assume. Throws {@link InputError} for an unknown method, a level outside (0, 1),
  * fewer than 2 episodes, or missing or violated bounds.
  */
 export function confidenceInterval(
