@@ -166,10 +166,12 @@ function describeUnion(
   const branches = issue.errors.filter((b) => b.length > 0);
   const matching = branches.find((b) => !rejectedAtRoot(b));
   if (matching) return describeIssues(matching, input, path);
-  if (!issue.message.startsWith('Invalid input')) return withPath(path, `${issue.message} (got ${describeValue(value)})`);
+  // An object with a "kind" meant to be the discriminated branch: say what is wrong with its kind.
   const discriminated = branches.find((b) => b.some((i) => i.code === 'invalid_union' && unionNote(i) !== undefined));
   const hasKind = value !== null && typeof value === 'object' && 'kind' in value;
-  const chosen = hasKind && discriminated ? discriminated : branches[0];
+  if (hasKind && discriminated) return describeIssues(discriminated, input, path);
+  if (!issue.message.startsWith('Invalid input')) return withPath(path, `${issue.message} (got ${describeValue(value)})`);
+  const chosen = branches[0];
   if (!chosen) return withPath(path, `is not valid (got ${describeValue(value)})`);
   return describeIssues(chosen, input, path);
 }

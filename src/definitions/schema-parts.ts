@@ -12,7 +12,11 @@ export function strictObject<T extends z.ZodRawShape>(shape: T) {
 }
 
 function checkedNumber(accept: (v: number) => boolean, requirement: string) {
-  return z.number().refine(accept, { error: (issue) => `must be ${requirement} (got ${describeValue(issue.input)})` });
+  // abort: a bad number stops the cross-field checks, which would only report its consequences
+  return z.number().refine(accept, {
+    abort: true,
+    error: (issue) => `must be ${requirement} (got ${describeValue(issue.input)})`,
+  });
 }
 
 export const probabilitySchema = checkedNumber((v) => v >= 0 && v <= 1, 'between 0 and 1');
