@@ -29,11 +29,19 @@ export function truncationBound(discount: number, horizon: number, maxAbsReward:
 export function horizonForTolerance(discount: number, maxAbsReward: number, tolerance: number): number {
   if (!(maxAbsReward > 0)) return 1;
   const within = (h: number) => (truncationBound(discount, h, maxAbsReward) as number) <= tolerance;
-  // Closed form first, then step to the exact smallest H, since the logarithms round.
-  let h = Math.max(1, Math.ceil(Math.log(maxAbsReward / (tolerance * (1 - discount))) / Math.log(1 / discount)));
-  while (h > 1 && within(h - 1)) h--;
-  while (!within(h)) h++;
-  return h;
+  // The closed form rounds (ln γ loses precision near 1), so take it as a guess and
+  // binary-search the exact smallest H; the bound falls as H grows.
+  const guess = Math.ceil(Math.log(maxAbsReward / (tolerance * (1 - discount))) / Math.log(1 / discount));
+  if (!(guess <= MAX_DERIVED_HORIZON)) return guess; // the caller refuses it
+  let high = Math.max(1, guess);
+  while (!within(high)) high *= 2;
+  let low = 1;
+  while (low < high) {
+    const mid = Math.floor((low + high) / 2);
+    if (within(mid)) high = mid;
+    else low = mid + 1;
+  }
+  return low;
 }
 
 /**
@@ -50,7 +58,7 @@ export function resolveHorizon(
   if (horizon !== undefined) return { horizon, horizonDerived: false };
   if (discount >= 1) throw new InputError(where, 'horizon is required when discount is 1');
   const derived = horizonForTolerance(discount, maxAbsReward, tolerance);
-  if (derived > MAX_DERIVED_HORIZON) {
+  if (!(derived <= MAX_DERIVED_HORIZON)) {
     throw new InputError(
       where,
       `discount ${formatNumber(discount)} needs a horizon of ${derived} to meet truncation_tolerance ${formatNumber(tolerance)}; give "horizon" or a larger "truncation_tolerance"`,

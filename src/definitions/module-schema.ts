@@ -4,6 +4,7 @@
  * replaced by zod's copy, so their methods keep their `this`.
  */
 import { z } from 'zod';
+import { describeValue } from './describe-value.js';
 import {
   describedFields,
   discountSchema,
@@ -31,7 +32,7 @@ export const modulePolicySchema = strictObject({
 export type ModulePolicyDefinition = z.output<typeof modulePolicySchema>;
 
 const functionSchema = z.custom<(...args: never[]) => unknown>((v) => typeof v === 'function', {
-  error: 'must be a function',
+  error: (issue) => (issue.input === undefined ? 'is missing' : `must be a function (got ${describeValue(issue.input)})`),
 });
 
 const actionListSchema = z
