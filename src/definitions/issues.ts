@@ -39,10 +39,7 @@ export function valueAt(input: unknown, path: readonly PathKey[]): unknown {
 
 /** One line naming the first problem (unknown keys first: a misspelt key explains the rest). */
 export function describeIssues(issues: readonly Issue[], input: unknown, base: readonly PathKey[] = []): string {
-  const ordered = prioritise(issues);
-  const first = describeIssue(ordered[0], input, base);
-  const more = ordered.length - 1;
-  return more > 0 ? `${first} (and ${more} more problem${more === 1 ? '' : 's'})` : first;
+  return describeIssue(prioritise(issues)[0], input, base);
 }
 
 /** `<label>: <first problem>` for a failed parse. */

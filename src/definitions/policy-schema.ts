@@ -5,6 +5,7 @@
 import { z } from 'zod';
 import { formatNumber } from './describe-value.js';
 import { modulePolicySchema, type ModulePolicyDefinition } from './module-schema.js';
+import { problem, reportProblems } from './problems.js';
 import { describedFields, epsilonSchema, isSingleCharacter, strictObject, SUM_TOLERANCE, weightSchema } from './schema-parts.js';
 
 /** `{action: probability}`: non-negative, summing to 1 within {@link SUM_TOLERANCE}. */
@@ -91,13 +92,14 @@ const arrowsPolicySchema = strictObject({
   ...describedFields,
   rows: z.array(z.string().min(1)).min(1),
   key: z.record(z.string(), actionChoiceSchema).default({}),
-}).superRefine((def, ctx) => {
-  for (const symbol of Object.keys(def.key)) {
-    if (!isSingleCharacter(symbol)) {
-      ctx.addIssue({ code: 'custom', path: ['key'], message: `key "${symbol}" must be a single character`, params: { standalone: false } });
-    }
-  }
-});
+}).superRefine((def, ctx) =>
+  reportProblems(
+    Object.keys(def.key)
+      .filter((symbol) => !isSingleCharacter(symbol))
+      .map((symbol) => problem(['key'], `"${symbol}" must be a single character`)),
+    ctx,
+  ),
+);
 
 export const policySchema: z.ZodType<PolicyDefinition> = z.discriminatedUnion('kind', [
   uniformPolicySchema,

@@ -35,8 +35,5 @@ export function reportProblems(problems: readonly Problem[], ctx: z.RefinementCt
 
 /** Throws the first problem as an InputError labelled with the file. */
 export function throwIfProblems(problems: readonly Problem[], label: string): void {
-  if (problems.length === 0) return;
-  const more = problems.length - 1;
-  const suffix = more > 0 ? ` (and ${more} more problem${more === 1 ? '' : 's'})` : '';
-  throw new InputError(label, formatProblem(problems[0]) + suffix);
+  if (problems.length > 0) throw new InputError(label, formatProblem(problems[0]));
 }

@@ -224,3 +224,18 @@ describe('policy messages', () => {
     );
   });
 });
+
+describe('one line, first problem', () => {
+  test('several problems still give one line, without a newline', () => {
+    const json = gridworld({ discount: 2, horizon: 0, cells: { '.': { slip: 3 } } });
+    const message = envError(json);
+    expect(message.split('\n')).toHaveLength(1);
+    expect(message).toBe('envs/grid.json: discount must be in (0, 1] (got 2)');
+  });
+
+  test('arrow keys must be single characters', () => {
+    expect(messageOf(() => parsePolicy({ kind: 'arrows', rows: ['>'], key: { ab: 'up' } }, policyFile))).toBe(
+      'policy.json: key: "ab" must be a single character',
+    );
+  });
+});
