@@ -28,7 +28,8 @@
 
 /**
  * Random numbers for one episode and one stream. The same object is re-seeded in place for
- * every episode, so samplers built once on `rng.uniform` stay valid across episodes.
+ * every episode, so a sampler built once on it stays valid across episodes. Its methods use
+ * `this`: hand a sampler `() => rng.uniform()`, not `rng.uniform` itself.
  */
 export interface Rng {
   /** A uniform double in [0, 1). */

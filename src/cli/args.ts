@@ -7,9 +7,14 @@ export type OptionSpec = NonNullable<ParseArgsConfig['options']>;
  * Strict option parsing for one command: an unknown or malformed option is an InputError
  * that names it and points to the command's --help.
  */
-export function parseCommandArgs(command: string, args: string[], options: OptionSpec) {
+export type OptionValues<T extends OptionSpec> = {
+  [K in keyof T]?: T[K] extends { type: 'boolean' } ? boolean : string;
+} & { help?: boolean };
+
+export function parseCommandArgs<T extends OptionSpec>(command: string, args: string[], options: T): { values: OptionValues<T> } {
   try {
-    return parseArgs({ args, options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals: false });
+    const parsed = parseArgs({ args, options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals: false });
+    return { values: parsed.values as OptionValues<T> };
   } catch (e) {
     const message = (e as Error).message.replace(/\. To specify a positional argument.*$/s, '');
     throw new InputError('', `${message.replace(/\.$/, '')}; see 'reckon ${command} --help'`);

@@ -9,8 +9,11 @@ import { Xoshiro128 } from './xoshiro128.js';
  *   from stream POLICY, so two policies run with one seed face the same environment noise
  *   for as long as their trajectories agree.
  * - Cheap: re-seeding is four hashes (tens of nanoseconds), not a 624-word table.
- * The hash is a 32-bit finaliser (the "lowbias32" constants found by C. Wellons' hash
- * prospector, from memory) applied in a chain, so every state word depends on every input bit.
+ * - Distinct: (seed, stream, episode) is packed one-to-one into 128 bits, then mixed by a
+ *   chain of invertible steps (each word xor-ed with a bijective 32-bit hash of another), so
+ *   different inputs always give different starting states.
+ * The 32-bit hash is the "lowbias32" finaliser (constants found by C. Wellons' hash
+ * prospector, from memory); any bijective mixer would keep the scheme correct.
  */
 export const STREAM = { ENV: 0, POLICY: 1, BOOTSTRAP: 2 } as const;
 
@@ -30,14 +33,20 @@ function hi32(n: number): number {
   return Math.floor(n / 4294967296) >>> 0;
 }
 
-/** Re-seeds `rng` in place for (seed, stream, episode). */
+/** Re-seeds `rng` in place for (seed, stream, episode); seed and episode below 2^53, stream below 256. */
 export function seedStream(rng: Xoshiro128, seed: number, stream: number, episode: number): void {
-  const base = mix32(mix32(seed >>> 0) ^ hi32(seed)) ^ mix32(0x9e3779b9 + stream);
-  const e = mix32(mix32(episode >>> 0 ^ 0x5bd1e995) ^ hi32(episode));
-  const a = mix32(base ^ e);
-  const b = mix32(a + 0x6a09e667);
-  const c = mix32(b + 0xbb67ae85);
-  const d = mix32(c + 0x3c6ef372);
+  // One-to-one packing: the high words of seed and episode have at most 21 bits.
+  let a = seed >>> 0;
+  let b = (hi32(seed) | (stream << 24)) >>> 0;
+  let c = episode >>> 0;
+  let d = (hi32(episode) ^ 0x9e3779b9) >>> 0;
+  // Two rounds of invertible mixing: every output word depends on every input bit.
+  for (let round = 0; round < 2; round++) {
+    b ^= mix32(a ^ 0x6a09e667);
+    c ^= mix32(b ^ 0xbb67ae85);
+    d ^= mix32(c ^ 0x3c6ef372);
+    a ^= mix32(d ^ 0xa54ff53a);
+  }
   rng.setState(a, b, c, d);
 }
 

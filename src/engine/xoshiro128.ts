@@ -4,7 +4,7 @@ import type { Rng } from '../plugin.js';
  * xoshiro128** 1.0 (Blackman & Vigna, "Scrambled linear pseudorandom number generators",
  * ACM TOMS 47(4), 2021): 128 bits of state, four 32-bit words, only 32-bit operations, so it
  * runs at full speed in JavaScript. Chosen over mt19937 because re-seeding it costs four
- * words instead of 624 (see engine/streams.ts and scripts/bench-seeding.ts).
+ * words instead of 624 (see engine/streams.ts and scripts/bench-seeding.mjs).
  */
 export class Xoshiro128 implements Rng {
   s0 = 0;
