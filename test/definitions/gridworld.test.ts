@@ -6,7 +6,7 @@ import { loadEnvironmentFile, loadPolicyFile } from '../../src/definitions/load.
 import { parseEnvironment } from '../../src/definitions/parse.js';
 import type { GridworldDefinition } from '../../src/definitions/schemas.js';
 import { evaluatePolicy, outcomesByName } from './policy-evaluation.js';
-import { FIXTURES } from './temp-files.js';
+import { CONTRACT } from './temp-files.js';
 
 const source: DefinitionSource = { label: 'grid.json', baseDir: '/nowhere' };
 
@@ -139,10 +139,10 @@ describe('portals and starts', () => {
   });
 });
 
-describe('contract samples (copies in test/fixtures/definitions/contract)', () => {
+describe('contract samples (copies in test/fixtures/contract)', () => {
   test('Sutton & Barto (2018) Example 3.5 grid, uniform policy: Figure 3.2 values (METHODS §9, numpy-verified)', async () => {
-    const env = await loadEnvironmentFile(`${FIXTURES}contract/grid-5x5-portals.json`);
-    const policy = await loadPolicyFile(`${FIXTURES}contract/uniform.json`, env.built);
+    const env = await loadEnvironmentFile(`${CONTRACT}grid-5x5-portals.json`);
+    const policy = await loadPolicyFile(`${CONTRACT}uniform.json`, env.built);
     if (env.built.kind !== 'finite' || policy.built.kind !== 'matrix') throw new Error('expected finite env and matrix policy');
     const v = evaluatePolicy(env.built.mdp, policy.built.matrix);
     const figure32 = [
@@ -156,8 +156,8 @@ describe('contract samples (copies in test/fixtures/definitions/contract)', () =
   });
 
   test('AIMA 4×3 world with the optimal policy of Fig. 17.2: Fig. 17.3 utilities (METHODS §9)', async () => {
-    const env = await loadEnvironmentFile(`${FIXTURES}contract/grid-4x3-slip.json`);
-    const policy = await loadPolicyFile(`${FIXTURES}contract/grid-4x3-policy.json`, env.built);
+    const env = await loadEnvironmentFile(`${CONTRACT}grid-4x3-slip.json`);
+    const policy = await loadPolicyFile(`${CONTRACT}grid-4x3-policy.json`, env.built);
     if (env.built.kind !== 'finite' || policy.built.kind !== 'matrix') throw new Error('expected finite env and matrix policy');
     const mdp = env.built.mdp;
     const v = evaluatePolicy(mdp, policy.built.matrix);

@@ -6,7 +6,7 @@ import { buildPolicy } from '../../src/definitions/build-policy.js';
 import { loadEnvironmentFile, loadPolicyFile } from '../../src/definitions/load.js';
 import { parseEnvironment, parsePolicy } from '../../src/definitions/parse.js';
 import type { PolicyMatrix } from '../../src/definitions/finite-mdp.js';
-import { FIXTURES, tempFolder } from './temp-files.js';
+import { CONTRACT, FIXTURES, tempFolder } from './temp-files.js';
 
 const files = tempFolder();
 const here: DefinitionSource = { label: 'policy.json', baseDir: '/nowhere' };
@@ -90,8 +90,8 @@ describe('table policies on a finite environment', () => {
   });
 
   test('the contract policy (no default) loads on the contract grid', async () => {
-    const env = await loadEnvironmentFile(`${FIXTURES}contract/grid-4x3-slip.json`);
-    const policy = await loadPolicyFile(`${FIXTURES}contract/grid-4x3-policy.json`, env.built);
+    const env = await loadEnvironmentFile(`${CONTRACT}grid-4x3-slip.json`);
+    const policy = await loadPolicyFile(`${CONTRACT}grid-4x3-policy.json`, env.built);
     expect(policy.definition.kind).toBe('table');
     expect(policy.built.kind).toBe('matrix');
   });

@@ -18,3 +18,6 @@ export function tempFolder(): { write(name: string, content: unknown): string; p
 }
 
 export const FIXTURES = new URL('../fixtures/definitions/', import.meta.url).pathname;
+
+/** Byte-for-byte copies of the shared contract samples (see test/fixtures/definitions/README.md). */
+export const CONTRACT = new URL('../fixtures/contract/', import.meta.url).pathname;
