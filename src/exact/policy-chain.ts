@@ -26,6 +26,8 @@ export interface PolicyChain {
   readonly meanSquaredReward: Float64Array;
   /** 1 where some outcome with positive probability under π ends the episode in one step. */
   readonly endsInOneStep: Uint8Array;
+  /** Largest |r| of any outcome with positive probability under π. */
+  readonly maxAbsReward: number;
 }
 
 /** Checks that the policy fits the MDP and that discount and horizon are usable. */
@@ -79,6 +81,7 @@ export function buildPolicyChain(mdp: FiniteMdp, policy: PolicyMatrix): PolicyCh
   const meanReward = new Float64Array(stateCount);
   const meanSquaredReward = new Float64Array(stateCount);
   const endsInOneStep = new Uint8Array(stateCount);
+  let maxAbsReward = 0;
   for (const s of liveStates) {
     let fill = rowStart[s];
     let policyMass = 0;
@@ -96,6 +99,7 @@ export function buildPolicyChain(mdp: FiniteMdp, policy: PolicyMatrix): PolicyCh
         const next = outcomeNext[k];
         outcomeMass += p;
         if (!(p > 0)) continue;
+        maxAbsReward = Math.max(maxAbsReward, Math.abs(r));
         r1 += w * p * r;
         r2 += w * p * r * r;
         if (terminal[next] !== 0) {
@@ -136,6 +140,7 @@ export function buildPolicyChain(mdp: FiniteMdp, policy: PolicyMatrix): PolicyCh
     meanReward,
     meanSquaredReward,
     endsInOneStep,
+    maxAbsReward,
   };
 }
 
