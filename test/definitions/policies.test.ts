@@ -209,13 +209,12 @@ describe('module environment and module policy', () => {
       ...gridJson,
       kind: 'gridworld',
     });
-    const moduleFile = files.write('drift.js', `export default (options, context) => ({
+    files.write('drift.js', `export default (options, context) => ({
       act: (state) => (state === '2,0' ? 'up' : context.actions.indexOf('right')),
       probabilities: (state) => (state === '2,0' ? { up: 1 } : [0, 0, 1 - options.right, options.right]),
     });`);
     const source = { label: files.path('drift.json'), baseDir: files.path('') };
     const policy = await build({ kind: 'module', path: './drift.js', options: { right: 0.75 } }, env, source);
-    void moduleFile;
     if (policy.kind !== 'code' || !policy.matrix) throw new Error('expected a code policy with a matrix');
     expect(row(policy.matrix, env, '2,0')).toEqual([1, 0, 0, 0]);
     expect(row(policy.matrix, env, '0,0')).toEqual([0, 0, 0.25, 0.75]);
