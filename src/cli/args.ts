@@ -16,8 +16,11 @@ export function parseCommandArgs<T extends OptionSpec>(command: string, args: st
     const parsed = parseArgs({ args, options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals: false });
     return { values: parsed.values as OptionValues<T> };
   } catch (e) {
-    const message = (e as Error).message.replace(/\. To specify a positional argument.*$/s, '');
-    throw new InputError('', `${message.replace(/\.$/, '')}; see 'reckon ${command} --help'`);
+    const message = (e as Error).message
+      .replace(/\. To specify a positional argument.*$/s, '')
+      .replace(/\s*\n\s*/g, ' ')
+      .replace(/\.$/, '');
+    throw new InputError('', `${message}; see 'reckon ${command} --help'`);
   }
 }
 
