@@ -22,9 +22,14 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
   lines.push(`  expected return  ${fixed(result.mean, d)}  ± ${fixed(ci.halfWidth, d)}   (${level} ${METHOD_NAMES[ci.method] ?? ci.method} interval ${fixed(ci.low, d)} … ${fixed(ci.high, d)})`);
   lines.push(`  spread           std ${sig(result.std)}, standard error ${sig(result.stderr)}, returns from ${sig(result.min)} to ${sig(result.max)}`);
   lines.push(`  episodes         ${count(result.episodes)} with seed ${result.seed}; mean length ${sig(result.meanLength, 3)} steps, longest ${count(result.longestEpisode)}`);
-  const horizonNote = facts.horizonDerived ? ' (chosen so the truncation bound is within tolerance)' : '';
-  const truncation = facts.truncationBound === null ? '' : `; truncation bound ${sig(facts.truncationBound, 2)}`;
-  lines.push(`  horizon          ${count(facts.horizon)} steps${horizonNote}, discount ${facts.discount}${truncation}`);
+  lines.push(`  horizon          ${count(facts.horizon)} steps, discount ${facts.discount}`);
+  if (facts.truncationBound !== null) {
+    lines.push(
+      facts.horizonDerived
+        ? `                   (derived: cutting episodes there moves the value by at most ${sig(facts.truncationBound, 2)})`
+        : `                   (if the task has no time limit there, the untruncated value may differ by up to ${sig(facts.truncationBound, 2)})`,
+    );
+  }
   if (result.episodesAtHorizon > 0) {
     lines.push(`                   ${count(result.episodesAtHorizon)} episodes ran the full horizon without ending`);
   }

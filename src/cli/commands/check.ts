@@ -19,7 +19,8 @@ Examples:
 
 const OPTIONS = { env: { type: 'string' }, policy: { type: 'string' }, json: { type: 'boolean' } } as const;
 
-function list(names: readonly string[], max = 8): string {
+function list(items: readonly string[], max = 8): string {
+  const names = items.map((n) => (n.includes(',') ? `"${n}"` : n));
   return names.length <= max ? names.join(', ') : `${names.slice(0, max).join(', ')}, … (${names.length} in all)`;
 }
 
@@ -62,7 +63,13 @@ export async function run(args: string[]): Promise<number> {
   if (summary.start) lines.push(`  start          ${list(Object.keys(summary.start as object))}`);
   if (summary.terminals) lines.push(`  terminals      ${list(summary.terminals as string[]) || 'none'}`);
   lines.push(`  discount       ${facts.discount}; horizon ${facts.horizon}${facts.horizonDerived ? ' (derived from the truncation tolerance)' : ''}`);
-  if (facts.truncationBound !== null) lines.push(`  truncation     the horizon moves the value by at most ${sig(facts.truncationBound, 2)}`);
+  if (facts.truncationBound !== null) {
+    lines.push(
+      facts.horizonDerived
+        ? `  truncation     cutting episodes at the horizon moves the value by at most ${sig(facts.truncationBound, 2)}`
+        : `  truncation     if the task has no time limit at ${facts.horizon} steps, the untruncated value may differ by up to ${sig(facts.truncationBound, 2)}`,
+    );
+  }
   lines.push(`  rewards        ${facts.rewardRange ? `${sig(facts.rewardRange[0])} … ${sig(facts.rewardRange[1])} a step` : 'range not declared'}`);
   lines.push(
     `  return bounds  ${facts.returnBounds ? `${sig(facts.returnBounds[0])} … ${sig(facts.returnBounds[1])}${policy ? ' under this policy' : ' over all policies'}` : 'unknown (give --bounds to estimate for hoeffding/bernstein)'}`,

@@ -1,15 +1,65 @@
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
-import { run as estimate } from './estimate.js';
+import { loadEnvironmentFile, loadPolicyFile, readDefinitionFile } from '../../definitions/index.js';
+import { defaultWorkers } from '../../engine/pool.js';
+import { runEstimate } from '../../evaluate/estimate.js';
+import { exactEvaluation } from '../../exact/index.js';
+import { estimateText } from '../../report/estimate-text.js';
+import { decimalsFor, fixed } from '../../report/format.js';
+import { ProgressLine } from '../progress.js';
 
-/** What `npm start` runs: the bundled warehouse scenario, with a fixed seed. */
+export const HELP = `reckon demo: the bundled warehouse picking robot (what 'npm start' runs)
+
+Estimates two policies for the robot in envs/warehouse.json with a fixed seed, and checks each
+estimate against the exact value. See envs/README.md for the scenario.
+
+Usage: reckon demo
+`;
+
+/** What `npm start` runs: the bundled warehouse scenario, two policies, checked against the oracle. */
 export async function run(args: string[]): Promise<number> {
   if (args.includes('--help') || args.includes('-h')) {
-    process.stdout.write('reckon demo: estimate the bundled warehouse picking policy (envs/warehouse.json) with seed 1.\nUsage: reckon demo [estimate options]\n');
+    process.stdout.write(HELP);
     return 0;
   }
   const envs = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../../envs');
   const rel = (f: string) => path.relative(process.cwd(), path.join(envs, f)) || f;
-  process.stdout.write('reckon demo: the warehouse picking robot, direct route (see envs/README.md)\n\n');
-  return estimate(['--env', rel('warehouse.json'), '--policy', rel('picker-direct.json'), '--episodes', '50000', '--seed', '1', ...args]);
+  const envPath = rel('warehouse.json');
+  process.stdout.write('reckon demo: a warehouse picking robot, two routes to the packing station (envs/README.md)\n\n');
+  const env = await loadEnvironmentFile(envPath);
+  for (const policyFile of ['picker-direct.json', 'picker-careful.json']) {
+    const policyPath = rel(policyFile);
+    const progress = new ProgressLine();
+    const result = await runEstimate({
+      spec: { env: readDefinitionFile(envPath), policy: readDefinitionFile(policyPath), seed: 1, start: null },
+      episodes: 50000,
+      workers: defaultWorkers(),
+      method: 't',
+      level: 0.95,
+      bounds: null,
+      targetError: null,
+      onProgress: (p) => progress.update(p),
+    });
+    progress.clear();
+    process.stdout.write(estimateText(result, { env: envPath, policy: policyPath }));
+    const policy = await loadPolicyFile(policyPath, env.built);
+    if (env.built.kind === 'finite' && policy.built.matrix) {
+      const exact = exactEvaluation(env.built.mdp, policy.built.matrix);
+      const d = decimalsFor(result.ci.halfWidth) + 1;
+      const inside = result.ci.low <= exact.value && exact.value <= result.ci.high;
+      process.stdout.write(
+        `\n  exact value      ${fixed(exact.value, d)} (reckon exact): ${inside ? 'inside' : 'OUTSIDE'} the interval${inside ? '' : ', which a 95% interval does 1 time in 20'}\n\n`,
+      );
+    }
+  }
+  process.stdout.write(
+    [
+      'Next:',
+      `  reckon estimate --env ${envPath} --policy ${rel('picker-careful.json')} --start 2,0 --seed 7`,
+      `  reckon exact --env ${envPath} --policy ${rel('picker-direct.json')}`,
+      `  reckon estimate --env ${rel('restock-env.json')} --policy ${rel('restock-base-stock.json')} --seed 3`,
+      '',
+    ].join('\n'),
+  );
+  return 0;
 }
