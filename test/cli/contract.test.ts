@@ -1,0 +1,58 @@
+import { describe, expect, it } from 'vitest';
+import path from 'node:path';
+import { FIXTURES, reckon } from './run-cli.js';
+
+/** The command-line contract of the core issue, on the textbook samples. */
+const C = path.join(FIXTURES, 'contract');
+
+describe('command-line contract', () => {
+  it('exact --json prints value 8.7893 for state "0,1" of the 5×5 portal grid (Sutton & Barto 2018, Fig. 3.2)', () => {
+    const out = reckon(['exact', '--env', path.join(C, 'grid-5x5-portals.json'), '--policy', path.join(C, 'uniform.json'), '--start', '0,1', '--json']);
+    expect(out.code).toBe(0);
+    const json = JSON.parse(out.stdout);
+    expect(Math.abs(json.value - 8.7893)).toBeLessThan(1e-4);
+    for (const key of ['value', 'std', 'states', 'value_infinite']) expect(json).toHaveProperty(key);
+    expect(Object.keys(json.states)).toHaveLength(25);
+  });
+
+  it('estimate --json has the listed keys and an interval around the AIMA value 0.705 of state "2,0"', () => {
+    const out = reckon([
+      'estimate', '--env', path.join(C, 'grid-4x3-slip.json'), '--policy', path.join(C, 'grid-4x3-policy.json'),
+      '--start', '2,0', '--episodes', '2000', '--seed', '1', '--no-store', '--json',
+    ]);
+    expect(out.code).toBe(0);
+    const json = JSON.parse(out.stdout);
+    for (const key of ['episodes', 'mean', 'std', 'stderr', 'ci', 'projection', 'seed', 'horizon', 'truncation_bound', 'mean_length', 'steps_per_second']) {
+      expect(json).toHaveProperty(key);
+    }
+    for (const key of ['method', 'level', 'low', 'high']) expect(json.ci).toHaveProperty(key);
+    for (const key of ['half_width', 'episodes_needed', 'more_episodes', 'seconds']) expect(json.projection[0]).toHaveProperty(key);
+    expect(json.episodes).toBe(2000);
+    expect(json.ci.low).toBeLessThan(json.mean);
+    expect(json.mean).toBeLessThan(json.ci.high);
+    // Russell & Norvig, AIMA 3rd ed., Fig. 17.3 (from memory): U(1,1) = 0.705.
+    expect(json.ci.low - 0.001).toBeLessThan(0.705);
+    expect(json.ci.high + 0.001).toBeGreaterThan(0.705);
+  });
+
+  it('the projection asked for with --target-error is in the table', () => {
+    const out = reckon([
+      'estimate', '--env', path.join(C, 'grid-4x3-slip.json'), '--policy', path.join(C, 'grid-4x3-policy.json'),
+      '--episodes', '1000', '--seed', '2', '--target-error', '0.005', '--json',
+    ]);
+    const json = JSON.parse(out.stdout);
+    expect(json.projection[0].half_width).toBe(0.005);
+    // t projection ≈ (1.96·s/ε)² (METHODS §3; common practice).
+    const expected = (1.96 * json.std / 0.005) ** 2;
+    expect(Math.abs(json.projection[0].episodes_needed - expected) / expected).toBeLessThan(0.01);
+  });
+
+  it('--help works on every command and exits 0', () => {
+    for (const command of ['estimate', 'exact', 'check', 'demo']) {
+      const out = reckon([command, '--help']);
+      expect(out.code).toBe(0);
+      expect(out.stdout).toContain(`reckon ${command}`);
+    }
+    expect(reckon(['--help']).code).toBe(0);
+  });
+});
