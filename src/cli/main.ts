@@ -65,6 +65,10 @@ main(process.argv.slice(2)).then(
     if (e instanceof InputError) {
       process.stderr.write(`reckon: ${e.message}\n`);
       process.exitCode = e.exitCode;
+    } else if (e instanceof Error && e.name === 'PluginError') {
+      process.stderr.write(`reckon: ${e.message} (the same --seed replays it)\n`);
+      if (process.env.RECKON_DEBUG === '1') process.stderr.write(`${e.stack}\n`);
+      process.exitCode = 1;
     } else {
       const message = e instanceof Error ? e.message : String(e);
       process.stderr.write(`reckon: internal error: ${message}\n`);
