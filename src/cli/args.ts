@@ -11,10 +11,15 @@ export type OptionValues<T extends OptionSpec> = {
   [K in keyof T]?: T[K] extends { type: 'boolean' } ? boolean : string;
 } & { help?: boolean };
 
-export function parseCommandArgs<T extends OptionSpec>(command: string, args: string[], options: T): { values: OptionValues<T> } {
+export function parseCommandArgs<T extends OptionSpec>(
+  command: string,
+  args: string[],
+  options: T,
+  allowPositionals = false,
+): { values: OptionValues<T>; positionals: string[] } {
   try {
-    const parsed = parseArgs({ args, options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals: false });
-    return { values: parsed.values as OptionValues<T> };
+    const parsed = parseArgs({ args, options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals });
+    return { values: parsed.values as OptionValues<T>, positionals: parsed.positionals };
   } catch (e) {
     const message = (e as Error).message
       .replace(/\. To specify a positional argument.*$/s, '')

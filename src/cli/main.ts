@@ -13,6 +13,7 @@ const COMMANDS: Record<string, { summary: string; load: () => Promise<Command> }
   estimate: { summary: 'Monte Carlo estimate of a policy\'s expected return, with an interval and projections', load: () => import('./commands/estimate.js') },
   exact: { summary: 'exact value and return std of a policy on a finite environment (the oracle)', load: () => import('./commands/exact.js') },
   check: { summary: 'validate definition files and summarise the environment', load: () => import('./commands/check.js') },
+  runs: { summary: 'list, show (re-analyse), export, resume, delete and merge stored runs', load: () => import('./commands/runs.js') },
   demo: { summary: 'evaluate the bundled warehouse demo (what `npm start` runs)', load: () => import('./commands/demo.js') },
 };
 
@@ -56,6 +57,12 @@ async function main(argv: string[]): Promise<number> {
   const code = await (await command.load()).run(rest);
   return typeof code === 'number' ? code : 0;
 }
+
+// A reader that stops early (`reckon runs export ID | head`) is not an error.
+process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+  if (e.code === 'EPIPE') process.exit(0);
+  throw e;
+});
 
 main(process.argv.slice(2)).then(
   (code) => {

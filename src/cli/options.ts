@@ -39,6 +39,7 @@ export const optionSchemas = {
     .transform((p) => [p[0], p[1]] as [number, number]),
   targetError: positiveNumberText('the half-width to reach'),
   start: z.string().min(1, { message: 'must name a state' }),
+  limit: integerText(1, 1e6, 'how many runs to list'),
 } as const;
 
 /** Parses one option's text with its schema; a bad value is an InputError naming the option. */

@@ -4,9 +4,10 @@ import type { EstimateResult } from '../evaluate/estimate.js';
  * The `estimate --json` object. Keys are a contract that scripts rely on: add, never rename.
  * `env` and `policy` are the labels (paths) of the definitions.
  */
-export function estimateJson(result: EstimateResult, labels: { env: string; policy: string }, version: string) {
+export function estimateJson(result: EstimateResult, labels: { env: string; policy: string }, version: string, runId: string | null = null) {
   const facts = result.facts;
   return {
+    run_id: runId,
     env: labels.env,
     policy: labels.policy,
     episodes: result.episodes,

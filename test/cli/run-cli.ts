@@ -14,10 +14,13 @@ export interface CliResult {
   stderr: string;
 }
 
+/** Every test process gets its own default store, so tests never touch the user's. */
+const DEFAULT_STORE = path.join(mkdtempSync(path.join(tmpdir(), 'reckon-store-')), 'runs.sqlite');
+
 export function reckon(args: string[], options: { cwd?: string; env?: NodeJS.ProcessEnv } = {}): CliResult {
   const result = spawnSync(process.execPath, [CLI, ...args], {
     cwd: options.cwd,
-    env: { ...process.env, RECKON_NO_PROGRESS: '1', ...options.env },
+    env: { ...process.env, RECKON_NO_PROGRESS: '1', RECKON_STORE: DEFAULT_STORE, ...options.env },
     encoding: 'utf8',
     timeout: 120_000,
   });

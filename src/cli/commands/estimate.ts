@@ -2,7 +2,12 @@ import { randomInt } from 'node:crypto';
 import { readDefinitionFile } from '../../definitions/index.js';
 import { defaultWorkers } from '../../engine/pool.js';
 import type { RolloutSpec } from '../../engine/spec.js';
-import { runEstimate } from '../../evaluate/estimate.js';
+import { runEstimate, type EstimateResult } from '../../evaluate/estimate.js';
+import { runStoredEstimate } from '../../evaluate/stored-estimate.js';
+import { InputError } from '../../errors.js';
+import { defaultStorePath } from '../../store/location.js';
+import { openStore } from '../../store/open.js';
+import { parseShard, shardInfo, shardRange } from '../shard.js';
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { parseCommandArgs, required } from '../args.js';
@@ -28,7 +33,12 @@ Options:
   --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
   --target-error E      also project the episodes needed for a half-width of E
   --json                print one JSON object on stdout instead of the report
-  --no-store            do not keep this run (accepted; runs are not stored yet)
+  --shard K/M           run only the K-th of M disjoint parts of this seeded run (one per
+                        machine; 'reckon runs merge' joins them); auto/M reads K from
+                        JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID
+  --store PATH          the run store (default: $RECKON_STORE, else
+                        ~/.local/share/reckon/runs.sqlite)
+  --no-store            do not keep this run
   -h, --help            this help
 
 Examples:
@@ -50,6 +60,8 @@ const OPTIONS = {
   'target-error': { type: 'string' },
   json: { type: 'boolean' },
   'no-store': { type: 'boolean' },
+  store: { type: 'string' },
+  shard: { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -69,37 +81,57 @@ export async function run(args: string[]): Promise<number> {
   const targetError = values['target-error'] === undefined ? null : parseOption('target-error', 'targetError', values['target-error']);
   const start = values.start === undefined ? null : parseOption('start', 'start', values.start);
 
+  const shard = values.shard === undefined ? null : parseShard(values.shard);
+  const range = shard ? shardRange(shard, episodes) : { first: 0, count: episodes };
+  if (range.count < 2) throw new InputError('--shard', `leaves ${range.count} episode(s) for shard ${shard?.index}; give more --episodes or fewer shards`);
+
   const envFile = readDefinitionFile(envPath);
   const policyFile = readDefinitionFile(policyPath);
   const spec: RolloutSpec = { env: envFile, policy: policyFile, seed, start };
+  const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());
+  const db = storePath === null ? null : openStore(storePath);
 
   const progress = new ProgressLine();
   const controller = new AbortController();
   const onSigint = () => controller.abort();
   process.once('SIGINT', onSigint);
-  let result;
+  let result: EstimateResult;
+  let runId: string | null = null;
   try {
-    result = await runEstimate({
-      spec,
-      episodes,
-      workers,
-      method,
-      level,
-      bounds,
-      targetError,
-      signal: controller.signal,
-      onProgress: (p) => progress.update(p),
-    });
+    const options = { episodes: range.count, method, level, bounds, targetError, workers };
+    if (db) {
+      const stored = await runStoredEstimate({
+        db,
+        spec,
+        options,
+        toolVersion: version(),
+        shard: shard ? shardInfo(shard, episodes) : null,
+        first: range.first,
+        signal: controller.signal,
+        onProgress: (p) => progress.update(p),
+      });
+      result = stored.result;
+      runId = stored.runId;
+    } else {
+      result = await runEstimate({ spec, ...options, first: range.first, signal: controller.signal, onProgress: (p) => progress.update(p) });
+    }
   } finally {
     progress.clear();
     process.off('SIGINT', onSigint);
+    db?.close();
   }
   const labels = { env: envPath, policy: policyPath };
   if (values.json) {
-    process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version()), null, 2)}\n`);
+    process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version(), runId), null, 2)}\n`);
   } else {
     process.stdout.write(estimateText(result, labels));
-    if (values.seed === undefined) process.stdout.write(`\n  (seed ${seed} was chosen at random; add --seed ${seed} to repeat this run exactly)\n`);
+    if (runId) process.stdout.write(`\n  Stored as run ${runId} in ${storePath}${shard ? ` (shard ${shard.index}/${shard.count})` : ''}.\n`);
+    if (values.seed === undefined) process.stdout.write(`  (seed ${seed} was chosen at random; add --seed ${seed} to repeat this run exactly)\n`);
   }
-  return result.interrupted ? 130 : 0;
+  if (result.interrupted) {
+    const how = runId ? ` Continue it with: reckon runs resume ${runId}${values.store ? ` --store ${storePath}` : ''}` : '';
+    process.stderr.write(`reckon: interrupted after ${result.episodes} of ${range.count} episodes.${how}\n`);
+    return 130;
+  }
+  return 0;
 }

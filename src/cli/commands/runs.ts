@@ -1,0 +1,259 @@
+import { writeFileSync } from 'node:fs';
+import { InputError } from '../../errors.js';
+import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-estimate.js';
+import { estimateJson } from '../../report/estimate-json.js';
+import { estimateText } from '../../report/estimate-text.js';
+import { runsListText } from '../../report/runs-text.js';
+import { defaultStorePath } from '../../store/location.js';
+import { mergeShards } from '../../store/merge.js';
+import { openStore, type Db } from '../../store/open.js';
+import { deleteRun, getRun, listRuns, loadEpisodes, type RunRecord } from '../../store/runs.js';
+import { parseCommandArgs, type OptionSpec } from '../args.js';
+import { parseOption } from '../options.js';
+import { ProgressLine } from '../progress.js';
+import { version } from '../version.js';
+
+export const HELP = `reckon runs: review, re-analyse, export, resume and merge stored runs
+
+Usage:
+  reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--json]
+  reckon runs show ID [--ci METHOD] [--confidence L] [--json]
+  reckon runs export ID --format csv|json [--out FILE]
+  reckon runs resume ID [--workers K] [--json]
+  reckon runs delete ID
+  reckon runs merge DB... [--into DB]
+
+Every subcommand takes --store PATH (default: $RECKON_STORE, else
+~/.local/share/reckon/runs.sqlite).
+
+  list     newest first: id, start time, environment, policy, episodes, mean ± half-width, status
+  show     the estimate's report recomputed from the stored returns; --ci and --confidence
+           re-analyse them without new episodes
+  export   every episode's return and length, for a notebook or a spreadsheet
+  resume   continue an interrupted run (Ctrl-C, a crash, a killed job) from its last
+           committed episode; the result equals an uninterrupted run's
+  delete   remove a run and its episodes
+  merge    join the shards of one run ('estimate --shard K/M' on several machines, each with
+           its own store) into one run in --into (default: --store)
+
+Examples:
+  reckon runs list --policy picker --limit 5
+  reckon runs show k3x9p2ab --ci bootstrap
+  reckon runs export k3x9p2ab --format csv --out returns.csv
+  reckon runs merge shard-1.sqlite shard-2.sqlite shard-3.sqlite --into all.sqlite
+`;
+
+const COMMON = { store: { type: 'string' }, json: { type: 'boolean' } } as const satisfies OptionSpec;
+
+function storeFor(value: string | undefined, readonly = true): { db: Db; label: string } {
+  const label = value ?? defaultStorePath();
+  return { db: openStore(label, { readonly }), label };
+}
+
+function oneId(sub: string, positionals: string[]): string {
+  if (positionals.length !== 1) {
+    throw new InputError(`runs ${sub}`, `needs exactly one run id (got ${positionals.length}); see the ids with 'reckon runs list'`);
+  }
+  return positionals[0];
+}
+
+function showJson(run: RunRecord, json: ReturnType<typeof estimateJson>) {
+  return {
+    ...json,
+    status: run.status,
+    created_at: run.createdAt,
+    finished_at: run.finishedAt,
+    env_hash: run.env.hash,
+    policy_hash: run.policy.hash,
+    shard: run.shard,
+    episodes_requested: run.episodesRequested,
+    tool_version: run.toolVersion,
+    machine: run.machine,
+  };
+}
+
+export async function run(args: string[]): Promise<number> {
+  const [sub, ...rest] = args;
+  if (sub === undefined || sub === '--help' || sub === '-h') {
+    process.stdout.write(HELP);
+    return sub === undefined ? 2 : 0;
+  }
+  switch (sub) {
+    case 'list':
+      return list(rest);
+    case 'show':
+      return show(rest);
+    case 'export':
+      return exportRun(rest);
+    case 'resume':
+      return resume(rest);
+    case 'delete':
+      return remove(rest);
+    case 'merge':
+      return merge(rest);
+    default:
+      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, export, resume, delete or merge (see 'reckon runs --help')`);
+  }
+}
+
+function wantsHelp(values: { help?: boolean }): boolean {
+  if (values.help) process.stdout.write(HELP);
+  return Boolean(values.help);
+}
+
+function list(args: string[]): number {
+  const { values } = parseCommandArgs('runs', args, { ...COMMON, 'env-hash': { type: 'string' }, policy: { type: 'string' }, limit: { type: 'string' } });
+  if (wantsHelp(values)) return 0;
+  const limit = values.limit === undefined ? 20 : parseOption('limit', 'limit', values.limit);
+  const { db } = storeFor(values.store);
+  try {
+    const runs = listRuns(db, { envHash: values['env-hash'], policy: values.policy, limit, parentId: null });
+    if (values.json) {
+      const rows = runs.map((r) => ({
+        id: r.id,
+        kind: r.kind,
+        status: r.status,
+        created_at: r.createdAt,
+        env: r.env.label,
+        env_hash: r.env.hash,
+        policy: r.policy.label,
+        policy_hash: r.policy.hash,
+        seed: r.seed,
+        episodes: r.episodesDone,
+        episodes_requested: r.episodesRequested,
+        shard: r.shard,
+        summary: r.summary,
+      }));
+      process.stdout.write(`${JSON.stringify(rows, null, 2)}\n`);
+    } else {
+      process.stdout.write(runsListText(runs));
+    }
+  } finally {
+    db.close();
+  }
+  return 0;
+}
+
+function show(args: string[]): number {
+  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, ci: { type: 'string' }, confidence: { type: 'string' } }, true);
+  if (wantsHelp(values)) return 0;
+  const id = oneId('show', positionals);
+  const method = values.ci === undefined ? undefined : parseOption('ci', 'ci', values.ci);
+  const level = values.confidence === undefined ? undefined : parseOption('confidence', 'confidence', values.confidence);
+  const { db, label } = storeFor(values.store);
+  try {
+    const run = getRun(db, id, label);
+    const result = analyzeStoredRun(db, run, { method, level });
+    const labels = { env: run.env.label, policy: run.policy.label };
+    if (values.json) {
+      process.stdout.write(`${JSON.stringify(showJson(run, estimateJson(result, labels, run.toolVersion, run.id)), null, 2)}\n`);
+    } else {
+      const shard = run.shard ? `, shard ${run.shard.index}/${run.shard.count}` : '';
+      process.stdout.write(`Run ${run.id} (${run.status}${shard}), started ${run.createdAt}, reckon ${run.toolVersion}\n`);
+      process.stdout.write(`  environment hash ${run.env.hash.slice(0, 12)}, policy hash ${run.policy.hash.slice(0, 12)}\n\n`);
+      process.stdout.write(estimateText(result, labels));
+      if (run.status !== 'done') process.stdout.write(`\n  Not finished: continue it with 'reckon runs resume ${run.id}'.\n`);
+    }
+  } finally {
+    db.close();
+  }
+  return 0;
+}
+
+function exportRun(args: string[]): number {
+  const { values, positionals } = parseCommandArgs('runs', args, { store: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' } }, true);
+  if (wantsHelp(values)) return 0;
+  const id = oneId('export', positionals);
+  const format = values.format ?? 'csv';
+  if (format !== 'csv' && format !== 'json') throw new InputError('--format', `must be csv or json (got "${format}")`);
+  const { db, label } = storeFor(values.store);
+  let text: string;
+  try {
+    const run = getRun(db, id, label);
+    const { returns, lengths } = loadEpisodes(db, run);
+    if (format === 'csv') {
+      const lines = ['episode,return,length'];
+      for (let i = 0; i < returns.length; i++) lines.push(`${run.firstEpisode + i},${returns[i]},${lengths[i]}`);
+      text = lines.join('\n') + '\n';
+    } else {
+      text = `${JSON.stringify({ run_id: run.id, seed: run.seed, first_episode: run.firstEpisode, returns: Array.from(returns), lengths: Array.from(lengths) })}\n`;
+    }
+  } finally {
+    db.close();
+  }
+  if (values.out) writeFileSync(values.out, text);
+  else process.stdout.write(text);
+  return 0;
+}
+
+async function resume(args: string[]): Promise<number> {
+  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, workers: { type: 'string' } }, true);
+  if (wantsHelp(values)) return 0;
+  const id = oneId('resume', positionals);
+  const workers = values.workers === undefined ? undefined : parseOption('workers', 'workers', values.workers);
+  const { db, label } = storeFor(values.store);
+  const progress = new ProgressLine();
+  const controller = new AbortController();
+  const onSigint = () => controller.abort();
+  process.once('SIGINT', onSigint);
+  try {
+    const run = getRun(db, id, label);
+    const { result } = await resumeStoredEstimate(db, run, { signal: controller.signal, onProgress: (p) => progress.update(p), workers });
+    progress.clear();
+    const labels = { env: run.env.label, policy: run.policy.label };
+    if (values.json) process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version(), run.id), null, 2)}\n`);
+    else process.stdout.write(`Run ${run.id} resumed from episode ${run.firstEpisode + run.episodesDone}.\n\n${estimateText(result, labels)}`);
+    if (result.interrupted) {
+      process.stderr.write(`reckon: interrupted again after ${result.episodes} episodes; continue with 'reckon runs resume ${run.id}'\n`);
+      return 130;
+    }
+  } finally {
+    progress.clear();
+    process.off('SIGINT', onSigint);
+    db.close();
+  }
+  return 0;
+}
+
+function remove(args: string[]): number {
+  const { values, positionals } = parseCommandArgs('runs', args, { store: { type: 'string' } }, true);
+  if (wantsHelp(values)) return 0;
+  const id = oneId('delete', positionals);
+  const { db, label } = storeFor(values.store);
+  try {
+    getRun(db, id, label);
+    deleteRun(db, id);
+    process.stdout.write(`Deleted run ${id} and its episodes from ${label}.\n`);
+  } finally {
+    db.close();
+  }
+  return 0;
+}
+
+function merge(args: string[]): number {
+  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, into: { type: 'string' } }, true);
+  if (wantsHelp(values)) return 0;
+  if (positionals.length === 0) throw new InputError('runs merge', "needs the stores holding the shards, e.g. 'reckon runs merge a.sqlite b.sqlite --into all.sqlite'");
+  const sources = positionals.map((file) => ({ label: file, db: openStore(file, { readonly: true }) }));
+  const intoLabel = values.into ?? values.store ?? defaultStorePath();
+  const into = openStore(intoLabel);
+  try {
+    const { runId, parts } = mergeShards(sources, into, (merged) => {
+      const result = analyzeStoredRun(into, merged);
+      return { episodes: result.episodes, mean: result.mean, std: result.std, ci: result.ci };
+    });
+    const run = getRun(into, runId, intoLabel);
+    const result = analyzeStoredRun(into, run);
+    const labels = { env: run.env.label, policy: run.policy.label };
+    if (values.json) {
+      process.stdout.write(`${JSON.stringify({ ...estimateJson(result, labels, version(), runId), merged_from: parts.map((p) => p.id) }, null, 2)}\n`);
+    } else {
+      process.stdout.write(`Merged ${parts.length} shards (${parts.map((p) => p.id).join(', ')}) into run ${runId} in ${intoLabel}.\n\n`);
+      process.stdout.write(estimateText(result, labels));
+    }
+  } finally {
+    for (const s of sources) s.db.close();
+    into.close();
+  }
+  return 0;
+}

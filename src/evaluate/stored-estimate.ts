@@ -1,0 +1,181 @@
+import { hostname } from 'node:os';
+import type { RolloutSpec } from '../engine/spec.js';
+import { InputError } from '../errors.js';
+import { definitionHash } from '../store/definition-hash.js';
+import { machineFacts } from '../store/machine.js';
+import type { Db } from '../store/open.js';
+import { appendChunk, claimRun, createRun, finishRun, loadEpisodes, type RunRecord, type ShardInfo } from '../store/runs.js';
+import type { CiMethod } from '../stats/index.js';
+import type { EnvironmentFacts } from './environment-facts.js';
+import { runEstimate, type EstimateProgress, type EstimateResult } from './estimate.js';
+import { computeFigures } from './figures.js';
+import { ReturnsBuffer } from './returns-buffer.js';
+
+/** The options a stored estimate keeps, to resume it and to re-analyse it the same way. */
+export interface StoredOptions {
+  readonly episodes: number;
+  readonly method: CiMethod;
+  readonly level: number;
+  readonly bounds: [number, number] | null;
+  readonly targetError: number | null;
+  readonly workers: number;
+}
+
+export interface StoredEstimateRequest {
+  readonly db: Db;
+  readonly spec: RolloutSpec;
+  readonly options: StoredOptions;
+  readonly toolVersion: string;
+  readonly shard: ShardInfo | null;
+  /** Episode range of this run: all of it, or one shard's part. */
+  readonly first: number;
+  readonly signal?: AbortSignal;
+  readonly onProgress?: (p: EstimateProgress) => void;
+  /** Told the run id as soon as the run exists (so Ctrl-C can say how to resume). */
+  readonly onRunId?: (id: string) => void;
+}
+
+function storedDefinition(part: RolloutSpec['env']) {
+  return { label: part.source.label, json: part.json, baseDir: part.source.baseDir, hash: definitionHash(part.json, part.source.baseDir) };
+}
+
+/**
+ * An estimate whose episodes are committed to the store as they finish, in episode order,
+ * one transaction a block: killed at any point, the run keeps every committed block and
+ * `resumeStoredEstimate` finishes it with the figures of an uninterrupted run.
+ */
+export async function runStoredEstimate(request: StoredEstimateRequest): Promise<{ runId: string; result: EstimateResult }> {
+  const { db, spec, options } = request;
+  let runId = '';
+  const env = storedDefinition(spec.env);
+  const policy = storedDefinition(spec.policy);
+  return execute(request, null, (facts: EnvironmentFacts) => {
+    runId = createRun(db, {
+      kind: 'estimate',
+      env,
+      policy,
+      seed: spec.seed,
+      start: spec.start,
+      firstEpisode: request.first,
+      episodesRequested: options.episodes,
+      options: { ...options },
+      facts,
+      toolVersion: request.toolVersion,
+      machine: machineFacts(),
+      shard: request.shard,
+    });
+    request.onRunId?.(runId);
+    return runId;
+  });
+}
+
+/** Continues a run that was interrupted or whose process died, from its last committed episode. */
+export async function resumeStoredEstimate(
+  db: Db,
+  run: RunRecord,
+  extra: { signal?: AbortSignal; onProgress?: (p: EstimateProgress) => void; workers?: number },
+): Promise<{ runId: string; result: EstimateResult }> {
+  if (run.kind !== 'estimate') throw new InputError(`run ${run.id}`, `is a ${run.kind} run; only estimate runs can be resumed`);
+  if (run.status === 'done') throw new InputError(`run ${run.id}`, "is already done; see it with 'reckon runs show " + run.id + "'");
+  if (run.status === 'running' && ownerAlive(run)) {
+    throw new InputError(`run ${run.id}`, `is still running (process ${run.ownerPid}); stop it first, or wait for it`);
+  }
+  const spec: RolloutSpec = {
+    env: { json: run.env.json, source: { label: run.env.label, baseDir: run.env.baseDir } },
+    policy: { json: run.policy.json, source: { label: run.policy.label, baseDir: run.policy.baseDir } },
+    seed: run.seed,
+    start: run.start,
+  };
+  for (const [what, stored] of [['environment', run.env], ['policy', run.policy]] as const) {
+    if (definitionHash(stored.json, stored.baseDir) !== stored.hash) {
+      throw new InputError(`run ${run.id}`, `the ${what} files it used (${stored.label}) have changed since it started, so it cannot be continued exactly; start a new run`);
+    }
+  }
+  const stored = run.options as unknown as StoredOptions;
+  const options: StoredOptions = { ...stored, workers: extra.workers ?? stored.workers };
+  claimRun(db, run.id);
+  const prior = loadEpisodes(db, run);
+  return execute(
+    { db, spec, options, toolVersion: run.toolVersion, shard: run.shard, first: run.firstEpisode, signal: extra.signal, onProgress: extra.onProgress },
+    { prior, seconds: run.seconds },
+    () => run.id,
+  );
+}
+
+async function execute(
+  request: StoredEstimateRequest,
+  resume: { prior: { returns: Float64Array; lengths: Uint32Array }; seconds: number } | null,
+  open: (facts: EnvironmentFacts) => string,
+): Promise<{ runId: string; result: EstimateResult }> {
+  const { db, spec, options } = request;
+  let runId = '';
+  try {
+    const result = await runEstimate({
+      spec,
+      episodes: options.episodes,
+      workers: options.workers,
+      method: options.method,
+      level: options.level,
+      bounds: options.bounds,
+      targetError: options.targetError,
+      first: request.first,
+      prior: resume?.prior,
+      priorSeconds: resume?.seconds,
+      signal: request.signal,
+      onProgress: request.onProgress,
+      onFacts: (facts) => {
+        runId = open(facts);
+      },
+      onBlock: (block, steps, seconds) => appendChunk(db, runId, block, steps, seconds),
+    });
+    finishRun(db, runId, result.interrupted ? 'interrupted' : 'done', result.interrupted ? null : summaryOf(result));
+    return { runId, result };
+  } catch (e) {
+    if (runId) finishRun(db, runId, 'failed', null, e instanceof Error ? e.message : String(e));
+    throw e;
+  }
+}
+
+/** What `runs list` shows without re-reading the episodes. */
+function summaryOf(result: EstimateResult): Record<string, unknown> {
+  return { episodes: result.episodes, mean: result.mean, std: result.std, ci: result.ci };
+}
+
+function ownerAlive(run: RunRecord): boolean {
+  if (run.ownerPid === null || run.ownerHost !== hostname()) return false;
+  try {
+    process.kill(run.ownerPid, 0);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/**
+ * The figures of a stored run recomputed from its stored returns: a different interval method
+ * or level is a re-analysis, with no new episodes.
+ */
+export function analyzeStoredRun(db: Db, run: RunRecord, overrides: { method?: CiMethod; level?: number } = {}): EstimateResult {
+  const stored = run.options as unknown as StoredOptions;
+  const facts = run.facts as EnvironmentFacts;
+  const episodes = loadEpisodes(db, run);
+  if (episodes.returns.length < 2) {
+    throw new InputError(`run ${run.id}`, `has ${episodes.returns.length} stored episode(s), too few for an interval; resume it with 'reckon runs resume ${run.id}'`);
+  }
+  const buffer = new ReturnsBuffer(episodes.returns.length, facts.horizon);
+  buffer.append(episodes.returns, episodes.lengths);
+  return computeFigures(
+    buffer,
+    facts,
+    {
+      method: overrides.method ?? stored.method,
+      level: overrides.level ?? stored.level,
+      bounds: stored.bounds,
+      targetError: stored.targetError,
+      seed: run.seed,
+      start: run.start,
+    },
+    { steps: run.steps, seconds: run.seconds, workers: stored.workers },
+    run.episodesRequested,
+  );
+}

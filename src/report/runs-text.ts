@@ -1,0 +1,28 @@
+import type { RunRecord } from '../store/runs.js';
+import { columns, count, decimalsFor, fixed } from './format.js';
+
+function shortTime(iso: string): string {
+  return iso.replace('T', ' ').slice(0, 16);
+}
+
+function clip(text: string, width: number): string {
+  return text.length <= width ? text : `…${text.slice(text.length - width + 1)}`;
+}
+
+/** One line a run, newest first: what `reckon runs list` prints. */
+export function runsListText(runs: readonly RunRecord[]): string {
+  if (runs.length === 0) return "No runs stored yet. Start one with 'reckon estimate --env F --policy F'.\n";
+  const rows = [['id', 'started (UTC)', 'environment', 'policy', 'episodes', 'mean ± half-width', 'status']];
+  for (const run of runs) {
+    const summary = run.summary as { mean?: number; ci?: { halfWidth?: number; level?: number; method?: string } } | null;
+    let estimate = '';
+    if (summary?.mean !== undefined && summary.ci?.halfWidth !== undefined) {
+      const d = decimalsFor(summary.ci.halfWidth);
+      estimate = `${fixed(summary.mean, d)} ± ${fixed(summary.ci.halfWidth, d)}`;
+    }
+    const episodes = run.status === 'done' ? count(run.episodesDone) : `${count(run.episodesDone)}/${count(run.episodesRequested)}`;
+    const shard = run.shard ? ` [${run.shard.index}/${run.shard.count}]` : '';
+    rows.push([run.id, shortTime(run.createdAt), clip(run.env.label, 28), clip(run.policy.label, 28), episodes + shard, estimate, run.status]);
+  }
+  return columns(rows, '').join('\n') + '\n';
+}

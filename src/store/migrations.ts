@@ -1,0 +1,61 @@
+/**
+ * The store's schema, as forward migrations. A store records the version it is at; opening it
+ * applies every later migration in one transaction. Never edit a migration once released:
+ * add a new one.
+ */
+export const MIGRATIONS: readonly string[] = [
+  // 1: runs and their episodes, a blob of returns and lengths per chunk of episodes.
+  `
+  CREATE TABLE runs (
+    id                 TEXT PRIMARY KEY,
+    kind               TEXT NOT NULL,
+    status             TEXT NOT NULL CHECK (status IN ('running', 'done', 'interrupted', 'failed')),
+    created_at         TEXT NOT NULL,
+    finished_at        TEXT,
+    env_label          TEXT NOT NULL,
+    env_json           TEXT NOT NULL,
+    env_hash           TEXT NOT NULL,
+    env_base_dir       TEXT NOT NULL,
+    policy_label       TEXT NOT NULL,
+    policy_json        TEXT NOT NULL,
+    policy_hash        TEXT NOT NULL,
+    policy_base_dir    TEXT NOT NULL,
+    seed               INTEGER NOT NULL,
+    start_state        TEXT,
+    first_episode      INTEGER NOT NULL,
+    episodes_requested INTEGER NOT NULL,
+    options_json       TEXT NOT NULL,
+    facts_json         TEXT NOT NULL,
+    tool_version       TEXT NOT NULL,
+    machine_json       TEXT NOT NULL,
+    episodes_done      INTEGER NOT NULL DEFAULT 0,
+    steps              INTEGER NOT NULL DEFAULT 0,
+    seconds            REAL NOT NULL DEFAULT 0,
+    summary_json       TEXT,
+    error              TEXT
+  );
+  CREATE TABLE episode_chunks (
+    run_id  TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+    first   INTEGER NOT NULL,
+    count   INTEGER NOT NULL,
+    returns BLOB NOT NULL,
+    lengths BLOB NOT NULL,
+    PRIMARY KEY (run_id, first)
+  ) WITHOUT ROWID;
+  CREATE INDEX runs_by_time ON runs (created_at);
+  `,
+  // 2: shards of one run split across machines, the process that owns a running run (so a
+  // run whose process died can be resumed), and comparison runs that group per-policy runs.
+  `
+  ALTER TABLE runs ADD COLUMN shard_index INTEGER;
+  ALTER TABLE runs ADD COLUMN shard_count INTEGER;
+  ALTER TABLE runs ADD COLUMN total_episodes INTEGER;
+  ALTER TABLE runs ADD COLUMN owner_pid INTEGER;
+  ALTER TABLE runs ADD COLUMN owner_host TEXT;
+  ALTER TABLE runs ADD COLUMN parent_id TEXT REFERENCES runs (id) ON DELETE CASCADE;
+  CREATE INDEX runs_by_env_hash ON runs (env_hash);
+  CREATE INDEX runs_by_parent ON runs (parent_id);
+  `,
+];
+
+export const SCHEMA_VERSION = MIGRATIONS.length;

@@ -1,0 +1,302 @@
+import { randomBytes } from 'node:crypto';
+import { hostname } from 'node:os';
+import { NotFoundError } from '../errors.js';
+import type { Db } from './open.js';
+
+export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
+export type RunKind = 'estimate' | 'comparison';
+
+export interface StoredDefinition {
+  readonly label: string;
+  readonly json: unknown;
+  readonly baseDir: string;
+  readonly hash: string;
+}
+
+export interface ShardInfo {
+  /** 1-based shard number K of M. */
+  readonly index: number;
+  readonly count: number;
+  /** Episodes of the whole (unsharded) run. */
+  readonly total: number;
+}
+
+export interface NewRun {
+  readonly kind: RunKind;
+  readonly env: StoredDefinition;
+  readonly policy: StoredDefinition;
+  readonly seed: number;
+  readonly start: string | null;
+  readonly firstEpisode: number;
+  readonly episodesRequested: number;
+  readonly options: Record<string, unknown>;
+  readonly facts: unknown;
+  readonly toolVersion: string;
+  readonly machine: Record<string, unknown>;
+  readonly shard?: ShardInfo | null;
+  readonly parentId?: string | null;
+}
+
+export interface RunRecord {
+  readonly id: string;
+  readonly kind: RunKind;
+  readonly status: RunStatus;
+  readonly createdAt: string;
+  readonly finishedAt: string | null;
+  readonly env: StoredDefinition;
+  readonly policy: StoredDefinition;
+  readonly seed: number;
+  readonly start: string | null;
+  readonly firstEpisode: number;
+  readonly episodesRequested: number;
+  readonly options: Record<string, unknown>;
+  readonly facts: unknown;
+  readonly toolVersion: string;
+  readonly machine: Record<string, unknown>;
+  readonly episodesDone: number;
+  readonly steps: number;
+  readonly seconds: number;
+  readonly summary: Record<string, unknown> | null;
+  readonly error: string | null;
+  readonly shard: ShardInfo | null;
+  readonly ownerPid: number | null;
+  readonly ownerHost: string | null;
+  readonly parentId: string | null;
+}
+
+interface RunRow {
+  id: string;
+  kind: RunKind;
+  status: RunStatus;
+  created_at: string;
+  finished_at: string | null;
+  env_label: string;
+  env_json: string;
+  env_hash: string;
+  env_base_dir: string;
+  policy_label: string;
+  policy_json: string;
+  policy_hash: string;
+  policy_base_dir: string;
+  seed: number;
+  start_state: string | null;
+  first_episode: number;
+  episodes_requested: number;
+  options_json: string;
+  facts_json: string;
+  tool_version: string;
+  machine_json: string;
+  episodes_done: number;
+  steps: number;
+  seconds: number;
+  summary_json: string | null;
+  error: string | null;
+  shard_index: number | null;
+  shard_count: number | null;
+  total_episodes: number | null;
+  owner_pid: number | null;
+  owner_host: string | null;
+  parent_id: string | null;
+}
+
+const ID_ALPHABET = 'abcdefghijkmnpqrstuvwxyz23456789';
+
+/** A short id that is easy to read aloud and type (no 0/o, 1/l). */
+export function newRunId(): string {
+  const bytes = randomBytes(8);
+  let id = '';
+  for (const b of bytes) id += ID_ALPHABET[b % ID_ALPHABET.length];
+  return id;
+}
+
+export function createRun(db: Db, run: NewRun): string {
+  const insert = db.prepare(`
+    INSERT INTO runs (id, kind, status, created_at, env_label, env_json, env_hash, env_base_dir,
+      policy_label, policy_json, policy_hash, policy_base_dir, seed, start_state, first_episode,
+      episodes_requested, options_json, facts_json, tool_version, machine_json,
+      shard_index, shard_count, total_episodes, owner_pid, owner_host, parent_id)
+    VALUES (@id, @kind, 'running', @created_at, @env_label, @env_json, @env_hash, @env_base_dir,
+      @policy_label, @policy_json, @policy_hash, @policy_base_dir, @seed, @start_state, @first_episode,
+      @episodes_requested, @options_json, @facts_json, @tool_version, @machine_json,
+      @shard_index, @shard_count, @total_episodes, @owner_pid, @owner_host, @parent_id)`);
+  for (let attempt = 0; ; attempt++) {
+    const id = newRunId();
+    try {
+      insert.run({
+        id,
+        kind: run.kind,
+        created_at: new Date().toISOString(),
+        env_label: run.env.label,
+        env_json: JSON.stringify(run.env.json),
+        env_hash: run.env.hash,
+        env_base_dir: run.env.baseDir,
+        policy_label: run.policy.label,
+        policy_json: JSON.stringify(run.policy.json),
+        policy_hash: run.policy.hash,
+        policy_base_dir: run.policy.baseDir,
+        seed: run.seed,
+        start_state: run.start,
+        first_episode: run.firstEpisode,
+        episodes_requested: run.episodesRequested,
+        options_json: JSON.stringify(run.options),
+        facts_json: JSON.stringify(run.facts),
+        tool_version: run.toolVersion,
+        machine_json: JSON.stringify(run.machine),
+        shard_index: run.shard?.index ?? null,
+        shard_count: run.shard?.count ?? null,
+        total_episodes: run.shard?.total ?? null,
+        owner_pid: process.pid,
+        owner_host: hostname(),
+        parent_id: run.parentId ?? null,
+      });
+      return id;
+    } catch (e) {
+      if ((e as { code?: string }).code === 'SQLITE_CONSTRAINT_PRIMARYKEY' && attempt < 5) continue;
+      throw e;
+    }
+  }
+}
+
+/** Little-endian bytes of a typed array, copied out of its (possibly larger) buffer. */
+function bytesOf(array: Float64Array | Uint32Array): Buffer {
+  return Buffer.from(array.buffer, array.byteOffset, array.byteLength);
+}
+
+/**
+ * Commits one chunk of finished episodes and the run's counters in one transaction, so a run
+ * killed at any moment keeps exactly the chunks whose transactions completed.
+ */
+export function appendChunk(
+  db: Db,
+  runId: string,
+  chunk: { first: number; returns: Float64Array; lengths: Uint32Array },
+  steps: number,
+  seconds: number,
+): void {
+  const insert = db.prepare('INSERT INTO episode_chunks (run_id, first, count, returns, lengths) VALUES (?, ?, ?, ?, ?)');
+  const update = db.prepare('UPDATE runs SET episodes_done = episodes_done + ?, steps = steps + ?, seconds = ? WHERE id = ?');
+  db.transaction(() => {
+    insert.run(runId, chunk.first, chunk.returns.length, bytesOf(chunk.returns), bytesOf(chunk.lengths));
+    update.run(chunk.returns.length, steps, seconds, runId);
+  })();
+}
+
+export function finishRun(db: Db, runId: string, status: RunStatus, summary: unknown = null, error: string | null = null): void {
+  db.prepare('UPDATE runs SET status = ?, finished_at = ?, summary_json = ?, error = ?, owner_pid = NULL WHERE id = ?').run(
+    status,
+    new Date().toISOString(),
+    summary === null ? null : JSON.stringify(summary),
+    error,
+    runId,
+  );
+}
+
+/** Marks a run as running again under this process (resume). */
+export function claimRun(db: Db, runId: string): void {
+  db.prepare("UPDATE runs SET status = 'running', owner_pid = ?, owner_host = ?, finished_at = NULL, error = NULL WHERE id = ?").run(
+    process.pid,
+    hostname(),
+    runId,
+  );
+}
+
+function toRecord(row: RunRow): RunRecord {
+  return {
+    id: row.id,
+    kind: row.kind,
+    status: row.status,
+    createdAt: row.created_at,
+    finishedAt: row.finished_at,
+    env: { label: row.env_label, json: JSON.parse(row.env_json), baseDir: row.env_base_dir, hash: row.env_hash },
+    policy: { label: row.policy_label, json: JSON.parse(row.policy_json), baseDir: row.policy_base_dir, hash: row.policy_hash },
+    seed: row.seed,
+    start: row.start_state,
+    firstEpisode: row.first_episode,
+    episodesRequested: row.episodes_requested,
+    options: JSON.parse(row.options_json),
+    facts: JSON.parse(row.facts_json),
+    toolVersion: row.tool_version,
+    machine: JSON.parse(row.machine_json),
+    episodesDone: row.episodes_done,
+    steps: row.steps,
+    seconds: row.seconds,
+    summary: row.summary_json === null ? null : JSON.parse(row.summary_json),
+    error: row.error,
+    shard: row.shard_index === null || row.shard_count === null ? null : { index: row.shard_index, count: row.shard_count, total: row.total_episodes ?? 0 },
+    ownerPid: row.owner_pid,
+    ownerHost: row.owner_host,
+    parentId: row.parent_id,
+  };
+}
+
+export function findRun(db: Db, id: string): RunRecord | null {
+  const row = db.prepare('SELECT * FROM runs WHERE id = ?').get(id) as RunRow | undefined;
+  return row ? toRecord(row) : null;
+}
+
+export function getRun(db: Db, id: string, storeLabel: string): RunRecord {
+  const run = findRun(db, id);
+  if (!run) throw new NotFoundError(`run ${id}`, `no such run in ${storeLabel}; see the ids with 'reckon runs list'`);
+  return run;
+}
+
+export interface RunFilter {
+  readonly envHash?: string;
+  readonly policy?: string;
+  readonly limit?: number;
+  readonly parentId?: string | null;
+}
+
+/** Runs newest first; `envHash` matches a prefix, `policy` a part of the policy's label. */
+export function listRuns(db: Db, filter: RunFilter = {}): RunRecord[] {
+  const where: string[] = [];
+  const params: unknown[] = [];
+  if (filter.envHash) {
+    where.push("env_hash LIKE ? ESCAPE '\\'");
+    params.push(`${filter.envHash.replace(/[\\%_]/g, (c) => `\\${c}`)}%`);
+  }
+  if (filter.policy) {
+    where.push("policy_label LIKE ? ESCAPE '\\'");
+    params.push(`%${filter.policy.replace(/[\\%_]/g, (c) => `\\${c}`)}%`);
+  }
+  if (filter.parentId !== undefined) {
+    where.push(filter.parentId === null ? 'parent_id IS NULL' : 'parent_id = ?');
+    if (filter.parentId !== null) params.push(filter.parentId);
+  }
+  const sql = `SELECT * FROM runs ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY created_at DESC, rowid DESC LIMIT ?`;
+  params.push(filter.limit ?? 20);
+  return (db.prepare(sql).all(...params) as RunRow[]).map(toRecord);
+}
+
+export function deleteRun(db: Db, id: string): boolean {
+  return db.prepare('DELETE FROM runs WHERE id = ?').run(id).changes > 0;
+}
+
+/** Every stored episode of a run in episode order (checked to be one contiguous range). */
+export function loadEpisodes(db: Db, run: RunRecord): { returns: Float64Array; lengths: Uint32Array } {
+  const rows = db
+    .prepare('SELECT first, count, returns, lengths FROM episode_chunks WHERE run_id = ? ORDER BY first')
+    .all(run.id) as { first: number; count: number; returns: Buffer; lengths: Buffer }[];
+  const total = rows.reduce((n, r) => n + r.count, 0);
+  const returns = new Float64Array(total);
+  const lengths = new Uint32Array(total);
+  let expected = run.firstEpisode;
+  let offset = 0;
+  for (const row of rows) {
+    if (row.first !== expected) throw new Error(`run ${run.id}: stored episodes jump from ${expected} to ${row.first}`);
+    // Copy out: SQLite's buffers need not be aligned for a typed-array view.
+    new Uint8Array(returns.buffer, offset * 8, row.count * 8).set(row.returns);
+    new Uint8Array(lengths.buffer, offset * 4, row.count * 4).set(row.lengths);
+    offset += row.count;
+    expected += row.count;
+  }
+  return { returns, lengths };
+}
+
+/** Finished shard runs of a store (or one given run, for re-reading after a merge). */
+export function listRunsForMerge(db: Db, id?: string): RunRecord[] {
+  const rows = id
+    ? (db.prepare('SELECT * FROM runs WHERE id = ?').all(id) as RunRow[])
+    : (db.prepare("SELECT * FROM runs WHERE shard_count IS NOT NULL AND status = 'done' AND kind = 'estimate' ORDER BY shard_index").all() as RunRow[]);
+  return rows.map(toRecord);
+}

@@ -1,0 +1,261 @@
+import { describe, expect, it } from 'vitest';
+import { spawn } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import Database from 'better-sqlite3';
+import { CLI, FIXTURES, reckon, tempFiles } from '../cli/run-cli.js';
+import { MIGRATIONS } from '../../src/store/migrations.js';
+
+/**
+ * The run store through the command line: what is stored comes back identical, a killed run
+ * resumes to the figures of an uninterrupted one, shards merge to the unsharded run, old
+ * stores migrate, foreign files are refused untouched, and two writers share one store.
+ * Equality here is the store's own contract (same episodes → same figures), so the reference
+ * is always a run of the same spec that never touched the store.
+ */
+const C = path.join(FIXTURES, 'contract');
+const grid = ['--env', path.join(C, 'grid-4x3-slip.json'), '--policy', path.join(C, 'grid-4x3-policy.json')];
+
+/** A deliberately slow code environment (a busy loop per step), so a run lasts long enough to kill. */
+const slowDir = tempFiles({
+  'slow.json': { kind: 'module', path: './slow.js', options: {} },
+  'uniform.json': { kind: 'uniform' },
+  'slow.js': `export default () => ({
+    actions: ['a', 'b'], discount: 0.95, horizon: 40, rewardRange: [-1, 1],
+    reset: (rng) => 0,
+    step(state, action, rng, out) {
+      let spin = 0; for (let i = 0; i < 3000; i++) spin += Math.sqrt(i);
+      out.state = state + 1; out.reward = rng.uniform() * 2 - 1 + (spin < 0 ? 1 : 0);
+      out.done = rng.uniform() < 0.05; return out;
+    },
+  });`,
+});
+const slow = ['--env', path.join(slowDir, 'slow.json'), '--policy', path.join(slowDir, 'uniform.json')];
+
+function json(result: { code: number | null; stdout: string; stderr: string }) {
+  if (result.code !== 0) throw new Error(`exit ${result.code}: ${result.stderr}`);
+  return JSON.parse(result.stdout);
+}
+
+function storeIn(dir: string, name = 'runs.sqlite'): string {
+  return path.join(dir, name);
+}
+
+describe('round trip', () => {
+  it('runs show recomputes exactly the figures estimate printed, and a re-analysis changes only the interval', () => {
+    const store = storeIn(tempFiles({}));
+    const est = json(reckon(['estimate', ...grid, '--episodes', '5000', '--seed', '3', '--store', store, '--json']));
+    expect(est.run_id).toMatch(/^[a-z2-9]{8}$/);
+    const shown = json(reckon(['runs', 'show', est.run_id, '--store', store, '--json']));
+    for (const key of ['episodes', 'mean', 'std', 'stderr', 'ci', 'seed', 'horizon', 'truncation_bound', 'mean_length', 'min', 'max']) {
+      expect(shown[key]).toStrictEqual(est[key]);
+    }
+    expect(shown.projection.map((p: { episodes_needed: number }) => p.episodes_needed)).toStrictEqual(est.projection.map((p: { episodes_needed: number }) => p.episodes_needed));
+    expect(shown.status).toBe('done');
+    const boot = json(reckon(['runs', 'show', est.run_id, '--store', store, '--ci', 'bootstrap', '--confidence', '0.9', '--json']));
+    expect(boot.mean).toBe(est.mean);
+    expect(boot.ci.method).toBe('bootstrap');
+    expect(boot.ci.level).toBe(0.9);
+    const csv = reckon(['runs', 'export', est.run_id, '--store', store, '--format', 'csv']).stdout.trim().split('\n');
+    expect(csv[0]).toBe('episode,return,length');
+    expect(csv).toHaveLength(5001);
+    const exported = JSON.parse(reckon(['runs', 'export', est.run_id, '--store', store, '--format', 'json']).stdout);
+    const mean = exported.returns.reduce((a: number, b: number) => a + b, 0) / exported.returns.length;
+    expect(Math.abs(mean - est.mean)).toBeLessThan(1e-12);
+    const listed = json(reckon(['runs', 'list', '--store', store, '--json']));
+    expect(listed.map((r: { id: string }) => r.id)).toContain(est.run_id);
+    expect(reckon(['runs', 'delete', est.run_id, '--store', store]).code).toBe(0);
+    expect(json(reckon(['runs', 'list', '--store', store, '--json']))).toHaveLength(0);
+  });
+
+  it('an unknown run id: exit 2, the id and a hint', () => {
+    const store = storeIn(tempFiles({}));
+    reckon(['estimate', ...grid, '--episodes', '100', '--seed', '1', '--store', store]);
+    const out = reckon(['runs', 'show', 'zzzzzzzz', '--store', store]);
+    expect(out.code).toBe(2);
+    expect(out.stderr).toContain('zzzzzzzz');
+    expect(out.stderr).toContain('reckon runs list');
+  });
+
+  it('--no-store keeps nothing and reports run_id null', () => {
+    const store = storeIn(tempFiles({}));
+    const out = json(reckon(['estimate', ...grid, '--episodes', '100', '--seed', '1', '--no-store', '--json'], { env: { RECKON_STORE: store } }));
+    expect(out.run_id).toBeNull();
+    expect(reckon(['runs', 'list', '--store', store]).code).toBe(2); // never created
+  });
+});
+
+function waitForEpisodes(store: string, atLeast: number, timeoutMs: number): Promise<void> {
+  const started = Date.now();
+  return new Promise((resolve, reject) => {
+    const poll = () => {
+      try {
+        const db = new Database(store, { readonly: true, fileMustExist: true });
+        const row = db.prepare('SELECT episodes_done FROM runs').get() as { episodes_done: number } | undefined;
+        db.close();
+        if (row && row.episodes_done >= atLeast) return resolve();
+      } catch {
+        // not created yet
+      }
+      if (Date.now() - started > timeoutMs) return reject(new Error('the run never committed episodes'));
+      setTimeout(poll, 50);
+    };
+    poll();
+  });
+}
+
+describe('crash safety', () => {
+  const episodes = '30000';
+
+  it('a run killed with SIGKILL keeps its committed chunks, and resume ends with the uninterrupted figures', async () => {
+    const store = storeIn(tempFiles({}));
+    const child = spawn(process.execPath, [CLI, 'estimate', ...slow, '--episodes', episodes, '--seed', '11', '--workers', '2', '--store', store, '--json'], {
+      env: { ...process.env, RECKON_NO_PROGRESS: '1' },
+      stdio: 'ignore',
+    });
+    await waitForEpisodes(store, 500, 30000);
+    child.kill('SIGKILL');
+    await new Promise((r) => child.on('exit', r));
+    const db = new Database(store, { readonly: true });
+    const row = db.prepare('SELECT id, status, episodes_done FROM runs').get() as { id: string; status: string; episodes_done: number };
+    const chunked = db.prepare('SELECT SUM(count) AS n FROM episode_chunks').get() as { n: number };
+    db.close();
+    expect(row.status).toBe('running'); // nobody could mark it
+    expect(row.episodes_done).toBeLessThan(Number(episodes));
+    expect(chunked.n).toBe(row.episodes_done);
+
+    const resumed = json(reckon(['runs', 'resume', row.id, '--store', store, '--json']));
+    const reference = json(reckon(['estimate', ...slow, '--episodes', episodes, '--seed', '11', '--no-store', '--json']));
+    expect(resumed.episodes).toBe(reference.episodes);
+    expect(Math.abs(resumed.mean - reference.mean)).toBeLessThanOrEqual(1e-12 * Math.abs(reference.mean));
+    expect(Math.abs(resumed.std - reference.std)).toBeLessThanOrEqual(1e-12 * reference.std);
+    expect(resumed.ci).toStrictEqual(reference.ci);
+    const shown = json(reckon(['runs', 'show', row.id, '--store', store, '--json']));
+    expect(shown.status).toBe('done');
+  });
+
+  it('Ctrl-C marks the run interrupted and says how to resume', async () => {
+    const store = storeIn(tempFiles({}));
+    const child = spawn(process.execPath, [CLI, 'estimate', ...slow, '--episodes', episodes, '--seed', '12', '--store', store], {
+      env: { ...process.env, RECKON_NO_PROGRESS: '1' },
+    });
+    let stderr = '';
+    child.stderr.on('data', (d) => (stderr += d));
+    await waitForEpisodes(store, 200, 30000);
+    child.kill('SIGINT');
+    const code = await new Promise((r) => child.on('exit', r));
+    expect(code).toBe(130);
+    expect(stderr).toMatch(/reckon runs resume [a-z2-9]{8}/);
+    const db = new Database(store, { readonly: true });
+    const row = db.prepare('SELECT status FROM runs').get() as { status: string };
+    db.close();
+    expect(row.status).toBe('interrupted');
+  });
+});
+
+describe('shards', () => {
+  it('shards 1/3, 2/3 and 3/3 in three stores merge to the unsharded run', () => {
+    const dir = tempFiles({});
+    const base = ['estimate', ...grid, '--episodes', '9001', '--seed', '21', '--json'];
+    for (const k of [1, 2, 3]) json(reckon([...base, '--shard', `${k}/3`, '--store', path.join(dir, `s${k}.sqlite`)]));
+    const merged = json(reckon(['runs', 'merge', ...[1, 2, 3].map((k) => path.join(dir, `s${k}.sqlite`)), '--into', path.join(dir, 'all.sqlite'), '--json']));
+    const whole = json(reckon([...base, '--no-store']));
+    expect(merged.episodes).toBe(9001);
+    expect(merged.mean).toBe(whole.mean);
+    expect(merged.std).toBe(whole.std);
+    expect(merged.ci).toStrictEqual(whole.ci);
+  });
+
+  it('--shard auto/M reads the job-array index (Kubernetes JOB_COMPLETION_INDEX is 0-based)', () => {
+    const store = storeIn(tempFiles({}));
+    const out = json(reckon(['estimate', ...grid, '--episodes', '300', '--seed', '2', '--shard', 'auto/3', '--store', store, '--json'], { env: { JOB_COMPLETION_INDEX: '2' } }));
+    const shown = json(reckon(['runs', 'show', out.run_id, '--store', store, '--json']));
+    expect(shown.shard).toStrictEqual({ index: 3, count: 3, total: 300 });
+    expect(out.episodes).toBe(100);
+  });
+
+  it('merging shards of different seeds is refused, naming the field', () => {
+    const dir = tempFiles({});
+    json(reckon(['estimate', ...grid, '--episodes', '300', '--seed', '1', '--shard', '1/2', '--store', path.join(dir, 'a.sqlite'), '--json']));
+    json(reckon(['estimate', ...grid, '--episodes', '300', '--seed', '2', '--shard', '2/2', '--store', path.join(dir, 'b.sqlite'), '--json']));
+    const out = reckon(['runs', 'merge', path.join(dir, 'a.sqlite'), path.join(dir, 'b.sqlite'), '--into', path.join(dir, 'c.sqlite')]);
+    expect(out.code).toBe(2);
+    expect(out.stderr).toContain('seed');
+  });
+});
+
+describe('opening stores', () => {
+  function sha(file: string): string {
+    return createHash('sha256').update(readFileSync(file)).digest('hex');
+  }
+
+  it('a store of schema version 1, made by this test, is migrated forward and its runs still show', () => {
+    const store = storeIn(tempFiles({}));
+    const db = new Database(store);
+    db.exec('CREATE TABLE reckon_schema (version INTEGER NOT NULL); INSERT INTO reckon_schema VALUES (1);');
+    db.exec(MIGRATIONS[0]);
+    const returns = new Float64Array([1, 2, 3, 4]);
+    const lengths = new Uint32Array([5, 6, 7, 8]);
+    db.prepare(`INSERT INTO runs (id, kind, status, created_at, env_label, env_json, env_hash, env_base_dir, policy_label, policy_json,
+      policy_hash, policy_base_dir, seed, start_state, first_episode, episodes_requested, options_json, facts_json, tool_version,
+      machine_json, episodes_done, steps, seconds) VALUES ('oldrun22', 'estimate', 'done', '2026-01-01T00:00:00.000Z', 'e.json', '{}', 'ab', '/',
+      'p.json', '{}', 'cd', '/', 5, NULL, 0, 4, ?, ?, '0.0.1', '{}', 4, 26, 1)`).run(
+      JSON.stringify({ episodes: 4, method: 't', level: 0.95, bounds: null, targetError: null, workers: 1 }),
+      JSON.stringify({ kind: 'finite', discount: 1, horizon: 10, horizonDerived: false, actions: ['a'], states: 2, rewardRange: [0, 1], returnBounds: null, truncationBound: null }),
+    );
+    db.prepare('INSERT INTO episode_chunks VALUES (?, 0, 4, ?, ?)').run('oldrun22', Buffer.from(returns.buffer), Buffer.from(lengths.buffer));
+    db.close();
+    const shown = json(reckon(['runs', 'show', 'oldrun22', '--store', store, '--json']));
+    expect(shown.mean).toBe(2.5);
+    // Sample std of 1, 2, 3, 4 = √(5/3) (common practice).
+    expect(shown.std).toBeCloseTo(Math.sqrt(5 / 3), 14);
+    const after = new Database(store, { readonly: true });
+    expect((after.prepare('SELECT version FROM reckon_schema').get() as { version: number }).version).toBe(MIGRATIONS.length);
+    after.close();
+  });
+
+  it('a file that is not a database, a foreign SQLite file, and a newer store are refused (exit 2) and left untouched', () => {
+    const dir = tempFiles({ 'notes.txt': 'shopping list: tape, labels\n'.repeat(100) });
+    const foreign = path.join(dir, 'other.sqlite');
+    const f = new Database(foreign);
+    f.exec('CREATE TABLE recipes (name TEXT)');
+    f.close();
+    const newer = path.join(dir, 'newer.sqlite');
+    const n = new Database(newer);
+    n.exec('CREATE TABLE reckon_schema (version INTEGER NOT NULL); INSERT INTO reckon_schema VALUES (99);');
+    n.close();
+    for (const [file, text] of [
+      [path.join(dir, 'notes.txt'), 'not a reckon store'],
+      [foreign, 'not a reckon store'],
+      [newer, 'newer reckon'],
+    ] as const) {
+      const before = sha(file);
+      const out = reckon(['estimate', ...grid, '--episodes', '100', '--seed', '1', '--store', file]);
+      expect(out.code).toBe(2);
+      expect(out.stderr).toContain(text);
+      expect(out.stderr).toContain(file);
+      expect(reckon(['runs', 'list', '--store', file]).code).toBe(2);
+      expect(sha(file)).toBe(before);
+    }
+  });
+});
+
+describe('two writers', () => {
+  it('two estimate runs writing one store at once both succeed', async () => {
+    const store = storeIn(tempFiles({}));
+    const start = (seed: string) =>
+      new Promise<number | null>((resolve) => {
+        const child = spawn(process.execPath, [CLI, 'estimate', ...slow, '--episodes', '4000', '--seed', seed, '--workers', '1', '--store', store], {
+          env: { ...process.env, RECKON_NO_PROGRESS: '1' },
+          stdio: 'ignore',
+        });
+        child.on('exit', resolve);
+      });
+    const codes = await Promise.all([start('1'), start('2')]);
+    expect(codes).toStrictEqual([0, 0]);
+    const runs = json(reckon(['runs', 'list', '--store', store, '--json']));
+    expect(runs).toHaveLength(2);
+    expect(runs.every((r: { status: string; episodes: number }) => r.status === 'done' && r.episodes === 4000)).toBe(true);
+  });
+});
