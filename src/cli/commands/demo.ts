@@ -2,7 +2,10 @@ import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 import { loadEnvironmentFile, loadPolicyFile, readDefinitionFile } from '../../definitions/index.js';
 import { defaultWorkers } from '../../engine/pool.js';
-import { runEstimate } from '../../evaluate/estimate.js';
+import { runStoredEstimate } from '../../evaluate/stored-estimate.js';
+import { defaultStorePath } from '../../store/location.js';
+import { openStore } from '../../store/open.js';
+import { version } from '../version.js';
 import { exactEvaluation } from '../../exact/index.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { decimalsFor, fixed } from '../../report/format.js';
@@ -10,8 +13,8 @@ import { ProgressLine } from '../progress.js';
 
 export const HELP = `reckon demo: the bundled warehouse picking robot (what 'npm start' runs)
 
-Estimates two policies for the robot in envs/warehouse.json with a fixed seed, and checks each
-estimate against the exact value. See envs/README.md for the scenario.
+Estimates two policies for the robot in envs/warehouse.json with a fixed seed, checks each
+estimate against the exact value, and stores both runs (see 'reckon runs list'). See envs/README.md for the scenario.
 
 Usage: reckon demo
 `;
@@ -27,36 +30,44 @@ export async function run(args: string[]): Promise<number> {
   const envPath = rel('warehouse.json');
   process.stdout.write('reckon demo: a warehouse picking robot, two routes to the packing station (envs/README.md)\n\n');
   const env = await loadEnvironmentFile(envPath);
+  const storePath = defaultStorePath();
+  const db = openStore(storePath);
+  try {
   for (const policyFile of ['picker-direct.json', 'picker-careful.json']) {
     const policyPath = rel(policyFile);
     const progress = new ProgressLine();
-    const result = await runEstimate({
+    const { result, runId } = await runStoredEstimate({
+      db,
       spec: { env: readDefinitionFile(envPath), policy: readDefinitionFile(policyPath), seed: 1, start: null },
-      episodes: 50000,
-      workers: defaultWorkers(),
-      method: 't',
-      level: 0.95,
-      bounds: null,
-      targetError: null,
+      options: { episodes: 50000, workers: defaultWorkers(), method: 't', level: 0.95, bounds: null, targetError: null },
+      toolVersion: version(),
+      shard: null,
+      first: 0,
       onProgress: (p) => progress.update(p),
     });
     progress.clear();
     process.stdout.write(estimateText(result, { env: envPath, policy: policyPath }));
+    process.stdout.write('\n');
     const policy = await loadPolicyFile(policyPath, env.built);
     if (env.built.kind === 'finite' && policy.built.matrix) {
       const exact = exactEvaluation(env.built.mdp, policy.built.matrix);
       const d = decimalsFor(result.ci.halfWidth) + 1;
       const inside = result.ci.low <= exact.value && exact.value <= result.ci.high;
       process.stdout.write(
-        `\n  exact value      ${fixed(exact.value, d)} (reckon exact): ${inside ? 'inside' : 'OUTSIDE'} the interval${inside ? '' : ', which a 95% interval does 1 time in 20'}\n\n`,
+        `  exact value      ${fixed(exact.value, d)} (reckon exact): ${inside ? 'inside' : 'OUTSIDE'} the interval${inside ? '' : ', which a 95% interval does 1 time in 20'}\n`,
       );
     }
+    process.stdout.write(`  stored as run    ${runId} ('reckon runs show ${runId}')\n\n`);
+  }
+  } finally {
+    db.close();
   }
   process.stdout.write(
     [
       'Next:',
       `  reckon estimate --env ${envPath} --policy ${rel('picker-careful.json')} --start 2,0 --seed 7`,
       `  reckon exact --env ${envPath} --policy ${rel('picker-direct.json')}`,
+      `  reckon runs list        (these runs are kept in ${storePath})`,
       `  reckon estimate --env ${rel('restock-env.json')} --policy ${rel('restock-base-stock.json')} --seed 3`,
       '',
     ].join('\n'),
