@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { InputError } from '../errors.js';
 import { MAX_SEED } from '../engine/streams.js';
 import { CI_METHODS } from '../stats/interval.js';
+import { SEQUENCE_METHODS } from '../evaluate/sequence.js';
 
 /**
  * Zod schemas for command-line option values: the same rules will validate the HTTP API's
@@ -30,6 +31,8 @@ export const optionSchemas = {
     .transform((s) => Number(s))
     .refine((n) => Number.isFinite(n) && n > 0 && n < 1, { message: 'must be a level between 0 and 1, e.g. 0.95' }),
   ci: z.enum(CI_METHODS, { message: `must be one of ${CI_METHODS.join(', ')}` }),
+  interval: z.enum([...CI_METHODS, ...SEQUENCE_METHODS], { message: `must be one of ${[...CI_METHODS, ...SEQUENCE_METHODS].join(', ')}` }),
+  sigma: positiveNumberText('the returns\' sub-Gaussian scale'),
   bounds: z
     .string()
     .transform((s) => s.split(',').map((p) => Number(p.trim())))

@@ -22,7 +22,15 @@ export class ProgressLine {
     const perSecond = p.done / p.seconds;
     const left = perSecond > 0 ? (p.total - p.done) / perSecond : null;
     const hw = Number.isFinite(p.halfWidth) ? ` ± ${sig(p.halfWidth, 2)}` : '';
-    const text = `  ${count(p.done)}/${count(p.total)} episodes  ${rate(perSecond)}/s  mean ${sig(p.mean)}${hw}  ~${duration(left)} left`;
+    let text: string;
+    if (p.targetError !== null) {
+      // The 1/√n law: episodes to go until the half-width meets the target, at this rate.
+      const needed = Number.isFinite(p.halfWidth) ? p.done * (p.halfWidth / p.targetError) ** 2 : Number.NaN;
+      const eta = Number.isFinite(needed) && perSecond > 0 ? Math.max(0, needed - p.done) / perSecond : null;
+      text = `  ${count(p.done)} episodes  ${rate(perSecond)}/s  mean ${sig(p.mean)}${hw} (target ±${sig(p.targetError, 2)})  ~${duration(eta)} left`;
+    } else {
+      text = `  ${count(p.done)}/${count(p.total)} episodes  ${rate(perSecond)}/s  mean ${sig(p.mean)}${hw}  ~${duration(left)} left`;
+    }
     this.stream.write(`\r${text.padEnd(78)}`);
     this.drawn = true;
   }

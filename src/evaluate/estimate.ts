@@ -2,28 +2,39 @@ import { runEpisodes } from '../engine/pool.js';
 import { prepareRollout } from '../engine/prepare.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
-import { confidenceInterval, summarize, type CiMethod, type Interval, type ProjectionRow } from '../stats/index.js';
-import { computeFigures } from './figures.js';
+import type { CiMethod, ProjectionRow } from '../stats/index.js';
+import { computeFigures, checkIntervalPossible, type ReportedInterval, type TargetOutcome } from './figures.js';
 import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import { RunningMoments } from './running-moments.js';
+import { InputError } from '../errors.js';
+import { chooseSequence, isSequenceMethod, makeRunningInterval, targetReached, type SequenceChoice, type SequenceSettings } from './sequence.js';
+
+/** A fixed-sample interval method, or a sequence for a run that stops at a target error. */
+export type IntervalChoice = CiMethod | SequenceChoice;
 
 export interface EstimateRequest {
   readonly spec: RolloutSpec;
-  /** Episodes the run should have when done (counting `prior`). */
+  /** Episodes the run should have when done (counting `prior`); with `targetError`, the cap. */
   readonly episodes: number;
   readonly workers: number;
-  readonly method: CiMethod;
+  /** Interval method; null lets a target-error run choose its default sequence. */
+  readonly method: IntervalChoice | null;
   readonly level: number;
   /** Return bounds given by the user (`--bounds`); they replace the environment's. */
   readonly bounds: [number, number] | null;
-  /** A half-width the user wants projected (`--target-error`). */
+  /**
+   * Run until the interval's half-width is at most this (or `episodes` is reached), with an
+   * interval that stays valid at that data-dependent stop. Null runs exactly `episodes`.
+   */
   readonly targetError: number | null;
+  /** The user's sub-Gaussian scale for the normal-mixture sequence (`--sigma`). */
+  readonly sigma?: number | null;
   readonly onProgress?: (progress: EstimateProgress) => void;
   /** Called with every block in episode order, with its steps and the run's seconds so far. */
   readonly onBlock?: (block: EpisodeBlock, steps: number, seconds: number) => void;
-  /** Called once the environment is built, before any episode runs. */
-  readonly onFacts?: (facts: EnvironmentFacts) => void;
+  /** Called once the environment is built and the interval settled, before any episode runs. */
+  readonly onFacts?: (facts: EnvironmentFacts, method: IntervalChoice) => void;
   /** Index of the run's first episode (a shard starts later); default 0. */
   readonly first?: number;
   /** Episodes already run and stored (a resumed run), from `first` on. */
@@ -37,8 +48,9 @@ export interface EstimateProgress {
   readonly total: number;
   readonly seconds: number;
   readonly mean: number;
-  /** A normal-approximation half-width at the run's level, for display only. */
+  /** The current half-width: the sequence's in a target-error run, else a normal approximation. */
   readonly halfWidth: number;
+  readonly targetError: number | null;
 }
 
 /** The figures of one estimate; the JSON output is built from this. */
@@ -53,7 +65,7 @@ export interface EstimateResult {
   readonly stderr: number;
   readonly min: number;
   readonly max: number;
-  readonly ci: Interval;
+  readonly ci: ReportedInterval;
   readonly bounds: [number, number] | null;
   readonly boundsSource: 'user' | 'environment' | null;
   readonly projection: ProjectionRow[];
@@ -64,58 +76,109 @@ export interface EstimateResult {
   readonly seconds: number;
   readonly workers: number;
   readonly interrupted: boolean;
+  /** Set for a run until a target error. */
+  readonly target: TargetOutcome | null;
 }
 
 /**
  * Runs the episodes of a spec and computes every figure of the report from the returns in
  * episode order, so the result is the same whatever the number of workers, and a resumed run
  * (given its stored episodes as `prior`) ends with the figures of an uninterrupted one.
+ *
+ * A target-error run checks its sequence after every episode, in episode order, and stops at
+ * the first episode where the half-width is within the target: the stopping point, and so the
+ * result, depends only on the returns, never on block sizes or workers. Episodes that were
+ * already running past that point are discarded.
  */
 export async function runEstimate(request: EstimateRequest): Promise<EstimateResult> {
   const { spec } = request;
   const prepared = await prepareRollout(spec);
   const facts = environmentFacts(prepared.env, prepared.policy, prepared.startIndex);
   const bounds = request.bounds ?? facts.returnBounds;
-  // Check now, not after the run, that the interval can be computed (e.g. bounds are known).
-  if ((request.method === 'hoeffding' || request.method === 'bernstein') && bounds === null) {
-    confidenceInterval(new Float64Array(2), summarize(new Float64Array(2)), { method: request.method, level: request.level, bounds });
+  const sigma = request.sigma ?? null;
+  let method: IntervalChoice;
+  let sequenceSettings: SequenceSettings | null = null;
+  if (request.targetError !== null) {
+    const choice = chooseSequence(request.method, bounds, sigma);
+    sequenceSettings = { method: choice, level: request.level, bounds, sigma, targetError: request.targetError };
+    method = choice;
+  } else {
+    const fixed = request.method ?? 't';
+    if (isSequenceMethod(fixed)) {
+      throw new InputError('--ci', `${fixed} is for runs that stop at a target error: add --target-error E (or choose t, normal, bootstrap, bootstrap-percentile, hoeffding or bernstein)`);
+    }
+    checkIntervalPossible(fixed, bounds, request.level);
+    method = fixed;
   }
-  request.onFacts?.(facts);
+  request.onFacts?.(facts, method);
+
   const buffer = new ReturnsBuffer(request.episodes, facts.horizon);
   const moments = new RunningMoments();
+  const sequence = sequenceSettings ? makeRunningInterval(sequenceSettings) : null;
+  const single = new Float64Array(1);
+  let reached = false;
+  const offer = (returns: Float64Array): number => {
+    // How many of these returns the run keeps: all, unless the target is reached among them.
+    if (!sequence || !sequenceSettings) return returns.length;
+    for (let i = 0; i < returns.length; i++) {
+      single[0] = returns[i];
+      sequence.add(single);
+      if (targetReached(sequence, sequenceSettings)) {
+        reached = true;
+        return i + 1;
+      }
+    }
+    return returns.length;
+  };
+  const halfWidthNow = () => (sequence ? sequence.interval().halfWidth : moments.halfWidth(request.level));
+
   const first = request.first ?? 0;
-  const prior = request.prior;
-  let priorSteps = 0;
-  if (prior && prior.returns.length > 0) {
-    buffer.append(prior.returns, prior.lengths);
-    moments.addAll(prior.returns);
-    for (const length of prior.lengths) priorSteps += length;
+  if (request.prior && request.prior.returns.length > 0) {
+    const keep = offer(request.prior.returns);
+    buffer.append(request.prior.returns.subarray(0, keep), request.prior.lengths.subarray(0, keep));
+    moments.addAll(request.prior.returns.subarray(0, keep));
   }
   const priorSeconds = request.priorSeconds ?? 0;
   const started = performance.now();
-  const outcome = await runEpisodes(spec, {
-    first: first + buffer.count,
-    count: request.episodes - buffer.count,
-    workers: request.workers,
-    signal: request.signal,
-    onBlock: (block, steps) => {
-      buffer.append(block.returns, block.lengths);
-      moments.addAll(block.returns);
-      request.onBlock?.(block, steps, priorSeconds + (performance.now() - started) / 1000);
-      request.onProgress?.({
-        done: buffer.count,
-        total: request.episodes,
-        seconds: (performance.now() - started) / 1000,
-        mean: moments.mean,
-        halfWidth: moments.halfWidth(request.level),
-      });
-    },
-  });
-  const timing = { steps: priorSteps + outcome.steps, seconds: priorSeconds + outcome.seconds, workers: request.workers };
+  const stop = new AbortController();
+  const signal = request.signal ? AbortSignal.any([request.signal, stop.signal]) : stop.signal;
+  let outcomeSeconds = 0;
+  if (!reached && buffer.count < request.episodes) {
+    const outcome = await runEpisodes(spec, {
+      first: first + buffer.count,
+      count: request.episodes - buffer.count,
+      workers: request.workers,
+      signal,
+      onBlock: (block) => {
+        if (reached) return;
+        const keep = offer(block.returns);
+        const kept: EpisodeBlock =
+          keep === block.count
+            ? block
+            : { first: block.first, count: keep, returns: block.returns.subarray(0, keep), lengths: block.lengths.subarray(0, keep) };
+        let steps = 0;
+        for (let i = 0; i < kept.count; i++) steps += kept.lengths[i];
+        buffer.append(kept.returns, kept.lengths);
+        moments.addAll(kept.returns);
+        request.onBlock?.(kept, steps, priorSeconds + (performance.now() - started) / 1000);
+        request.onProgress?.({
+          done: buffer.count,
+          total: request.episodes,
+          seconds: (performance.now() - started) / 1000,
+          mean: moments.mean,
+          halfWidth: halfWidthNow(),
+          targetError: request.targetError,
+        });
+        if (reached) stop.abort();
+      },
+    });
+    outcomeSeconds = outcome.seconds;
+  }
+  const timing = { steps: buffer.lengthSum, seconds: priorSeconds + outcomeSeconds, workers: request.workers };
   return computeFigures(
     buffer,
     facts,
-    { method: request.method, level: request.level, bounds: request.bounds, targetError: request.targetError, seed: spec.seed, start: spec.start },
+    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start },
     timing,
     request.episodes,
   );

@@ -6,6 +6,7 @@ import { machineFacts } from '../store/machine.js';
 import type { Db } from '../store/open.js';
 import { appendChunk, claimRun, createRun, finishRun, loadEpisodes, type RunRecord, type ShardInfo } from '../store/runs.js';
 import type { CiMethod } from '../stats/index.js';
+import type { IntervalChoice } from './estimate.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import { runEstimate, type EstimateProgress, type EstimateResult } from './estimate.js';
 import { computeFigures } from './figures.js';
@@ -13,8 +14,11 @@ import { ReturnsBuffer } from './returns-buffer.js';
 
 /** The options a stored estimate keeps, to resume it and to re-analyse it the same way. */
 export interface StoredOptions {
+  /** Episodes to run; the cap in a target-error run. */
   readonly episodes: number;
-  readonly method: CiMethod;
+  /** As asked (null: the default); the stored record keeps the method actually used. */
+  readonly method: IntervalChoice | null;
+  readonly sigma: number | null;
   readonly level: number;
   readonly bounds: [number, number] | null;
   readonly targetError: number | null;
@@ -49,7 +53,7 @@ export async function runStoredEstimate(request: StoredEstimateRequest): Promise
   let runId = '';
   const env = storedDefinition(spec.env);
   const policy = storedDefinition(spec.policy);
-  return execute(request, null, (facts: EnvironmentFacts) => {
+  return execute(request, null, (facts: EnvironmentFacts, method: IntervalChoice) => {
     runId = createRun(db, {
       kind: 'estimate',
       env,
@@ -58,7 +62,7 @@ export async function runStoredEstimate(request: StoredEstimateRequest): Promise
       start: spec.start,
       firstEpisode: request.first,
       episodesRequested: options.episodes,
-      options: { ...options },
+      options: { ...options, method },
       facts,
       toolVersion: request.toolVersion,
       machine: machineFacts(),
@@ -105,7 +109,7 @@ export async function resumeStoredEstimate(
 async function execute(
   request: StoredEstimateRequest,
   resume: { prior: { returns: Float64Array; lengths: Uint32Array }; seconds: number } | null,
-  open: (facts: EnvironmentFacts) => string,
+  open: (facts: EnvironmentFacts, method: IntervalChoice) => string,
 ): Promise<{ runId: string; result: EstimateResult }> {
   const { db, spec, options } = request;
   let runId = '';
@@ -118,13 +122,14 @@ async function execute(
       level: options.level,
       bounds: options.bounds,
       targetError: options.targetError,
+      sigma: options.sigma,
       first: request.first,
       prior: resume?.prior,
       priorSeconds: resume?.seconds,
       signal: request.signal,
       onProgress: request.onProgress,
-      onFacts: (facts) => {
-        runId = open(facts);
+      onFacts: (facts, method) => {
+        runId = open(facts, method);
       },
       onBlock: (block, steps, seconds) => appendChunk(db, runId, block, steps, seconds),
     });
@@ -156,6 +161,8 @@ function ownerAlive(run: RunRecord): boolean {
  * or level is a re-analysis, with no new episodes.
  */
 export function analyzeStoredRun(db: Db, run: RunRecord, overrides: { method?: CiMethod; level?: number } = {}): EstimateResult {
+  // A target-error run re-analysed with a fixed-sample method is a what-if: the interval then
+  // ignores that the run stopped on the data, and no target is reported.
   const stored = run.options as unknown as StoredOptions;
   const facts = run.facts as EnvironmentFacts;
   const episodes = loadEpisodes(db, run);
@@ -168,10 +175,11 @@ export function analyzeStoredRun(db: Db, run: RunRecord, overrides: { method?: C
     buffer,
     facts,
     {
-      method: overrides.method ?? stored.method,
+      method: overrides.method ?? stored.method ?? 't',
       level: overrides.level ?? stored.level,
       bounds: stored.bounds,
-      targetError: stored.targetError,
+      targetError: overrides.method ? null : stored.targetError,
+      sigma: stored.sigma ?? null,
       seed: run.seed,
       start: run.start,
     },

@@ -8,6 +8,11 @@ const METHOD_NAMES: Record<string, string> = {
   'bootstrap-percentile': 'bootstrap percentile',
   hoeffding: 'Hoeffding',
   bernstein: 'empirical Bernstein',
+  'empirical-bernstein': 'anytime-valid empirical-Bernstein',
+  'normal-mixture': 'anytime-valid normal-mixture',
+  'normal-mixture-asymptotic': 'normal-mixture (plug-in σ, asymptotic)',
+  'chow-robbins': 'Chow–Robbins fixed-width (asymptotic)',
+  'chow-robbins-asymptotic': 'Chow–Robbins fixed-width (asymptotic)',
 };
 
 /** The plain-text report of an estimate: the estimate first, then how sure, then what more would cost. */
@@ -20,6 +25,14 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
   lines.push(`Policy ${labels.policy} in ${labels.env}${result.start ? `, every episode from state ${result.start}` : ''}`);
   lines.push('');
   lines.push(`  expected return  ${fixed(result.mean, d)}  ± ${fixed(ci.halfWidth, d)}   (${level} ${METHOD_NAMES[ci.method] ?? ci.method} interval ${fixed(ci.low, d)} … ${fixed(ci.high, d)})`);
+  if (result.target) {
+    const t = result.target;
+    lines.push(
+      t.reached
+        ? `  target           ±${fixed(t.error, decimalsFor(t.error))} reached after ${count(result.episodes)} episodes (the interval stays valid although the run stopped on the data)`
+        : `  target           ±${fixed(t.error, decimalsFor(t.error))} NOT reached within ${count(t.maxEpisodes)} episodes; reached ±${fixed(ci.halfWidth, d)}`,
+    );
+  }
   lines.push(`  spread           std ${sig(result.std)}, standard error ${sig(result.stderr)}, returns from ${sig(result.min)} to ${sig(result.max)}`);
   lines.push(`  episodes         ${count(result.episodes)} with seed ${result.seed}; mean length ${sig(result.meanLength, 3)} steps, longest ${count(result.longestEpisode)}`);
   lines.push(`  horizon          ${count(facts.horizon)} steps, discount ${facts.discount}`);

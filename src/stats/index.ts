@@ -21,3 +21,12 @@ export {
   type ProjectionRow,
   type ProjectionRule,
 } from './projection.js';
+export { comparePolicies, type CompareOptions, type PolicyComparison, type PairResult, type PolicyStanding } from './compare-policies.js';
+export { comparePair, DIFFERENCE_METHODS, type DifferenceMethod, type PairedComparison } from './paired-comparison.js';
+export { holmAdjust } from './holm.js';
+export { EmpiricalBernsteinSequence, episodesNeededEmpiricalBernstein } from './empirical-bernstein-sequence.js';
+export { NormalMixtureSequence, episodesNeededNormalMixture } from './normal-mixture-sequence.js';
+export { ChowRobbinsRule } from './chow-robbins.js';
+export { differenceBounds, type RunningInterval, type SequentialInterval, type SequenceMethod } from './sequential-interval.js';
+export { planEpisodes, type EpisodePlan } from './episode-plan.js';
+export { pairedSampleSize, pairedTestPower } from './paired-sample-size.js';

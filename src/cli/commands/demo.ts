@@ -39,7 +39,7 @@ export async function run(args: string[]): Promise<number> {
     const { result, runId } = await runStoredEstimate({
       db,
       spec: { env: readDefinitionFile(envPath), policy: readDefinitionFile(policyPath), seed: 1, start: null },
-      options: { episodes: 50000, workers: defaultWorkers(), method: 't', level: 0.95, bounds: null, targetError: null },
+      options: { episodes: 50000, workers: defaultWorkers(), method: 't', level: 0.95, bounds: null, targetError: null, sigma: null },
       toolVersion: version(),
       shard: null,
       first: 0,

@@ -22,16 +22,23 @@ Usage: reckon estimate --env FILE --policy FILE [options]
 Options:
   --env FILE            environment definition (gridworld, tabular or module)
   --policy FILE         policy definition (uniform, table, epsilon, arrows or module)
-  --episodes N          episodes to run (default 10000)
+  --episodes N          episodes to run (default 10000); with --target-error, the most to run
+                        (default 10,000,000; --max-episodes says the same)
   --seed S              seed; the result is a pure function of env, policy, seed and episodes
                         (default: a random seed, printed so the run can be repeated)
   --workers K           worker threads (default: all cores); never changes the result
   --start STATE         start every episode in STATE (e.g. "2,0"): the value of that state
   --confidence L        two-sided confidence level (default 0.95)
   --ci METHOD           t (default), normal, bootstrap (BCa), bootstrap-percentile,
-                        hoeffding, bernstein (the last two need return bounds)
+                        hoeffding, bernstein (the last two need return bounds);
+                        with --target-error: empirical-bernstein (default when bounds are
+                        known), normal-mixture (needs --sigma or bounds), chow-robbins
+                        (asymptotic only)
   --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
-  --target-error E      also project the episodes needed for a half-width of E
+  --target-error E      run until the interval's half-width is at most E, with an interval
+                        that stays valid although the run stops on the data
+  --max-episodes N      cap for --target-error runs
+  --sigma S             the returns' sub-Gaussian scale, for --ci normal-mixture
   --json                print one JSON object on stdout instead of the report
   --shard K/M           run only the K-th of M disjoint parts of this seeded run (one per
                         machine; 'reckon runs merge' joins them); auto/M reads K from
@@ -44,7 +51,7 @@ Options:
 Examples:
   reckon estimate --env envs/warehouse.json --policy envs/picker-direct.json --episodes 20000 --seed 7
   reckon estimate --env envs/warehouse.json --policy envs/picker-careful.json --ci bernstein --json
-  reckon estimate --env envs/restock-env.json --policy envs/restock-base-stock.json --target-error 0.5
+  reckon estimate --env envs/restock-env.json --policy envs/restock-base-stock.json --target-error 2
 `;
 
 const OPTIONS = {
@@ -58,6 +65,8 @@ const OPTIONS = {
   ci: { type: 'string' },
   bounds: { type: 'string' },
   'target-error': { type: 'string' },
+  'max-episodes': { type: 'string' },
+  sigma: { type: 'string' },
   json: { type: 'boolean' },
   'no-store': { type: 'boolean' },
   store: { type: 'string' },
@@ -72,13 +81,21 @@ export async function run(args: string[]): Promise<number> {
   }
   const envPath = required('estimate', 'env', values.env, '--env envs/warehouse.json');
   const policyPath = required('estimate', 'policy', values.policy, '--policy envs/picker-direct.json');
-  const episodes = values.episodes === undefined ? 10000 : parseOption('episodes', 'episodes', values.episodes);
+  const targetError = values['target-error'] === undefined ? null : parseOption('target-error', 'targetError', values['target-error']);
+  if (values.episodes !== undefined && values['max-episodes'] !== undefined) {
+    throw new InputError('--max-episodes', 'give either --episodes or --max-episodes, not both');
+  }
+  if (values['max-episodes'] !== undefined && targetError === null) {
+    throw new InputError('--max-episodes', 'caps a --target-error run; without --target-error use --episodes');
+  }
+  const episodesText = values['max-episodes'] ?? values.episodes;
+  const episodes = episodesText === undefined ? (targetError === null ? 10000 : 10_000_000) : parseOption(values['max-episodes'] ? 'max-episodes' : 'episodes', 'episodes', episodesText);
+  const sigma = values.sigma === undefined ? null : parseOption('sigma', 'sigma', values.sigma);
   const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
   const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);
   const level = values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence);
-  const method = values.ci === undefined ? 't' : parseOption('ci', 'ci', values.ci);
+  const method = values.ci === undefined ? null : parseOption('ci', 'interval', values.ci);
   const bounds = values.bounds === undefined ? null : parseOption('bounds', 'bounds', values.bounds);
-  const targetError = values['target-error'] === undefined ? null : parseOption('target-error', 'targetError', values['target-error']);
   const start = values.start === undefined ? null : parseOption('start', 'start', values.start);
 
   const shard = values.shard === undefined ? null : parseShard(values.shard);
@@ -98,7 +115,7 @@ export async function run(args: string[]): Promise<number> {
   let result: EstimateResult;
   let runId: string | null = null;
   try {
-    const options = { episodes: range.count, method, level, bounds, targetError, workers };
+    const options = { episodes: range.count, method, level, bounds, targetError, sigma, workers };
     if (db) {
       const stored = await runStoredEstimate({
         db,
@@ -127,6 +144,11 @@ export async function run(args: string[]): Promise<number> {
     process.stdout.write(estimateText(result, labels));
     if (runId) process.stdout.write(`\n  Stored as run ${runId} in ${storePath}${shard ? ` (shard ${shard.index}/${shard.count})` : ''}.\n`);
     if (values.seed === undefined) process.stdout.write(`  (seed ${seed} was chosen at random; add --seed ${seed} to repeat this run exactly)\n`);
+  }
+  if (result.target && !result.target.reached) {
+    process.stderr.write(
+      `reckon: the target half-width ${targetError} was not reached within ${result.episodes} episodes (reached ±${result.ci.halfWidth.toPrecision(3)}); raise --max-episodes or accept a wider target\n`,
+    );
   }
   if (result.interrupted) {
     const how = runId ? ` Continue it with: reckon runs resume ${runId}${values.store ? ` --store ${storePath}` : ''}` : '';

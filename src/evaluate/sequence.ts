@@ -1,0 +1,104 @@
+import { InputError } from '../errors.js';
+import {
+  ChowRobbinsRule,
+  EmpiricalBernsteinSequence,
+  NormalMixtureSequence,
+  episodesNeeded,
+  episodesNeededEmpiricalBernstein,
+  episodesNeededNormalMixture,
+  type ReturnSummary,
+  type RunningInterval,
+} from '../stats/index.js';
+
+/**
+ * The intervals a run may stop on when it stops because the interval is narrow enough
+ * (`--target-error`). A fixed-n interval loses its coverage under such a data-dependent stop;
+ * these keep it (the first two, anytime-valid) or keep it in the limit (Chow–Robbins).
+ */
+export const SEQUENCE_METHODS = ['empirical-bernstein', 'normal-mixture', 'chow-robbins'] as const;
+export type SequenceChoice = (typeof SEQUENCE_METHODS)[number];
+
+export function isSequenceMethod(name: string): name is SequenceChoice {
+  return (SEQUENCE_METHODS as readonly string[]).includes(name);
+}
+
+export interface SequenceSettings {
+  readonly method: SequenceChoice;
+  readonly level: number;
+  readonly bounds: readonly [number, number] | null;
+  /** The user's sub-Gaussian scale for the normal mixture (`--sigma`). */
+  readonly sigma: number | null;
+  readonly targetError: number;
+}
+
+/**
+ * The default for a target-error run: the empirical-Bernstein sequence when returns are
+ * bounded (adapts to the variance, assumes nothing else), else the normal mixture with the
+ * user's σ. With neither, nothing anytime-valid is possible: say what would make it so.
+ */
+export function chooseSequence(requested: string | null, bounds: readonly [number, number] | null, sigma: number | null): SequenceChoice {
+  if (requested !== null) {
+    if (isSequenceMethod(requested)) {
+      if (requested === 'empirical-bernstein' && !bounds) {
+        throw new InputError('--ci empirical-bernstein', 'needs return bounds: give --bounds LOW,HIGH (none are known for this environment)');
+      }
+      if (requested === 'normal-mixture' && !bounds && sigma === null) {
+        throw new InputError('--ci normal-mixture', 'needs a variance assumption: give --sigma S (the returns\' sub-Gaussian scale) or --bounds LOW,HIGH');
+      }
+      return requested;
+    }
+    throw new InputError(
+      '--ci',
+      `"${requested}" is a fixed-sample interval, which loses its coverage when the run stops on the data; with --target-error use ${SEQUENCE_METHODS.join(', ')}`,
+    );
+  }
+  if (bounds) return 'empirical-bernstein';
+  if (sigma !== null) return 'normal-mixture';
+  throw new InputError(
+    '--target-error',
+    'needs either return bounds (--bounds LOW,HIGH, or an environment that declares its reward range) or a variance assumption (--sigma S) for an interval that stays valid when the run stops on the data; --ci chow-robbins is an asymptotic alternative',
+  );
+}
+
+export function makeRunningInterval(settings: SequenceSettings): RunningInterval {
+  const bounds = settings.bounds ? ([settings.bounds[0], settings.bounds[1]] as [number, number]) : null;
+  switch (settings.method) {
+    case 'empirical-bernstein':
+      return new EmpiricalBernsteinSequence({ level: settings.level, bounds: bounds! });
+    case 'normal-mixture': {
+      const sigma = settings.sigma ?? (bounds![1] - bounds![0]) / 2;
+      // ρ tuned to the episodes this σ and target imply, so the boundary is tightest there.
+      const { rho } = episodesNeededNormalMixture({ epsilon: settings.targetError, sigma, level: settings.level });
+      return new NormalMixtureSequence({ level: settings.level, sigma: settings.sigma ?? undefined, bounds, rho });
+    }
+    case 'chow-robbins':
+      return new ChowRobbinsRule({ level: settings.level, minEpisodes: 10 });
+  }
+}
+
+/** Whether the run may stop now. Chow–Robbins has its own test; the others stop when narrow enough. */
+export function targetReached(sequence: RunningInterval, settings: SequenceSettings): boolean {
+  if (sequence instanceof ChowRobbinsRule) return sequence.reached(settings.targetError);
+  return sequence.interval().halfWidth <= settings.targetError;
+}
+
+/** The reported interval: the sequence's, except Chow–Robbins, which reports mean ± d once stopped. */
+export function sequenceInterval(sequence: RunningInterval, settings: SequenceSettings, reached: boolean, mean: number) {
+  const interval = sequence.interval();
+  if (sequence instanceof ChowRobbinsRule && reached) {
+    return { ...interval, low: mean - settings.targetError, high: mean + settings.targetError, halfWidth: settings.targetError };
+  }
+  return interval;
+}
+
+/** Episodes a run of this sequence would need for half-width ε, from the current returns. */
+export function sequenceEpisodesNeeded(settings: SequenceSettings, summary: ReturnSummary, epsilon: number): number {
+  switch (settings.method) {
+    case 'empirical-bernstein':
+      return episodesNeededEmpiricalBernstein({ epsilon, variance: summary.variance, bounds: [settings.bounds![0], settings.bounds![1]], level: settings.level });
+    case 'normal-mixture':
+      return episodesNeededNormalMixture({ epsilon, sigma: settings.sigma ?? (settings.bounds![1] - settings.bounds![0]) / 2, level: settings.level }).episodes;
+    case 'chow-robbins':
+      return Math.max(10, episodesNeeded('normal', summary, epsilon, settings.level));
+  }
+}
