@@ -27,7 +27,7 @@ export class ProgressLine {
       // The 1/√n law: episodes to go until the half-width meets the target, at this rate.
       const needed = Number.isFinite(p.halfWidth) ? p.done * (p.halfWidth / p.targetError) ** 2 : Number.NaN;
       const eta = Number.isFinite(needed) && perSecond > 0 ? Math.max(0, needed - p.done) / perSecond : null;
-      text = `  ${count(p.done)} episodes  ${rate(perSecond)}/s  mean ${sig(p.mean)}${hw} (target ±${sig(p.targetError, 2)})  ~${duration(eta)} left`;
+      text = `  ${count(p.done)} episodes  ${rate(perSecond)}/s  ${Number.isFinite(p.mean) ? `mean ${sig(p.mean)}` : 'half-width'}${hw} (target ±${sig(p.targetError, 2)})  ~${duration(eta)} left`;
     } else {
       text = `  ${count(p.done)}/${count(p.total)} episodes  ${rate(perSecond)}/s  mean ${sig(p.mean)}${hw}  ~${duration(left)} left`;
     }

@@ -4,6 +4,9 @@ import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-es
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
+import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
+import { compareJson } from '../../report/compare-json.js';
+import { compareText } from '../../report/compare-text.js';
 import { defaultStorePath } from '../../store/location.js';
 import { mergeShards } from '../../store/merge.js';
 import { openStore, type Db } from '../../store/open.js';
@@ -143,6 +146,15 @@ function show(args: string[]): number {
   const { db, label } = storeFor(values.store);
   try {
     const run = getRun(db, id, label);
+    if (run.kind === 'comparison') {
+      const { result, labels } = analyzeStoredComparison(db, run);
+      if (values.json) {
+        process.stdout.write(`${JSON.stringify({ ...compareJson(result, labels, run.toolVersion, run.id), kind: 'comparison', status: run.status, created_at: run.createdAt, env_hash: run.env.hash }, null, 2)}\n`);
+      } else {
+        process.stdout.write(`Run ${run.id} (comparison, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n\n${compareText(result, labels)}`);
+      }
+      return 0;
+    }
     const result = analyzeStoredRun(db, run, { method, level });
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) {

@@ -1,0 +1,167 @@
+import { randomInt } from 'node:crypto';
+import { readDefinitionFile } from '../../definitions/index.js';
+import { defaultWorkers } from '../../engine/pool.js';
+import { InputError } from '../../errors.js';
+import { runComparison, type CompareRequest, type ComparisonResult } from '../../evaluate/compare.js';
+import { isSequenceMethod, type SequenceChoice } from '../../evaluate/sequence.js';
+import { runStoredComparison } from '../../evaluate/stored-compare.js';
+import { compareJson } from '../../report/compare-json.js';
+import { compareText } from '../../report/compare-text.js';
+import type { DifferenceMethod } from '../../stats/index.js';
+import { defaultStorePath } from '../../store/location.js';
+import { openStore } from '../../store/open.js';
+import { parseCommandArgs, required } from '../args.js';
+import { parseOption } from '../options.js';
+import { ProgressLine } from '../progress.js';
+import { version } from '../version.js';
+
+export const HELP = `reckon compare: is one policy really better than another, and by how much?
+
+Runs every policy on the same episodes with the same environment noise (common random
+numbers) and reports each policy's expected return, and for every pair the paired
+difference (first minus second) with its interval, p-value, the correlation of the paired
+returns, how many times cheaper pairing made the comparison, and the probability that the
+first policy returns more than the second. With three or more policies the p-values are
+Holm-adjusted and the policies ranked.
+
+Usage: reckon compare --env FILE --policy A --policy B [--policy C ...] [options]
+
+Options:
+  --env FILE            environment definition
+  --policy FILE         a policy definition; give two or more
+  --episodes N          episodes per policy (default 10000); with --target-error, the cap
+  --target-error E      run until every difference's half-width is at most E, with intervals
+                        that stay valid although the run stops on the data
+  --max-episodes N      cap for --target-error (default 10,000,000)
+  --seed S              seed (default: random, printed)
+  --confidence L        two-sided level (default 0.95)
+  --ci METHOD           difference intervals: t (paired t, default), bootstrap (BCa of the
+                        paired differences), bootstrap-percentile; with --target-error:
+                        empirical-bernstein (default when bounds are known), normal-mixture,
+                        chow-robbins (asymptotic)
+  --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
+  --sigma S             one return's sub-Gaussian scale, for normal-mixture
+  --iqm                 also the interquartile mean of each policy (stratified bootstrap)
+  --start STATE         start every episode in STATE
+  --workers K           worker threads (default: all cores)
+  --store PATH | --no-store
+  --json                one JSON object: policies[{name, mean, std, ci, episodes}],
+                        differences[{a, b, mean, low, high, p_value, correlation,
+                        variance_reduction, ...}] with a, b indices into policies
+
+Examples:
+  reckon compare --env envs/warehouse.json --policy envs/picker-direct.json --policy envs/picker-careful.json --seed 1
+  reckon compare --env envs/warehouse.json --policy envs/picker-direct.json --policy envs/picker-direct-eps.json --target-error 0.05
+  reckon compare --env envs/restock-env.json --policy envs/restock-base-stock.json --policy envs/restock-fixed.json --iqm
+`;
+
+const OPTIONS = {
+  env: { type: 'string' },
+  policy: { type: 'string', multiple: true },
+  episodes: { type: 'string' },
+  'target-error': { type: 'string' },
+  'max-episodes': { type: 'string' },
+  seed: { type: 'string' },
+  confidence: { type: 'string' },
+  ci: { type: 'string' },
+  bounds: { type: 'string' },
+  sigma: { type: 'string' },
+  iqm: { type: 'boolean' },
+  start: { type: 'string' },
+  workers: { type: 'string' },
+  store: { type: 'string' },
+  'no-store': { type: 'boolean' },
+  json: { type: 'boolean' },
+} as const;
+
+export async function run(args: string[]): Promise<number> {
+  const { values } = parseCommandArgs('compare', args, OPTIONS);
+  if (values.help) {
+    process.stdout.write(HELP);
+    return 0;
+  }
+  const envPath = required('compare', 'env', values.env, '--env envs/warehouse.json');
+  const policyPaths = (values.policy as string[] | undefined) ?? [];
+  if (policyPaths.length < 2) {
+    throw new InputError('--policy', `give at least two policies to compare (got ${policyPaths.length}), e.g. --policy envs/picker-direct.json --policy envs/picker-careful.json`);
+  }
+  const targetError = values['target-error'] === undefined ? null : parseOption('target-error', 'targetError', values['target-error']);
+  if (values.episodes !== undefined && values['max-episodes'] !== undefined) throw new InputError('--max-episodes', 'give either --episodes or --max-episodes, not both');
+  if (values['max-episodes'] !== undefined && targetError === null) throw new InputError('--max-episodes', 'caps a --target-error run; without --target-error use --episodes');
+  const episodesText = values['max-episodes'] ?? values.episodes;
+  const episodes = episodesText === undefined ? (targetError === null ? 10000 : 10_000_000) : parseOption('episodes', 'episodes', episodesText);
+  const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
+  const level = values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence);
+  const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);
+  const bounds = values.bounds === undefined ? null : parseOption('bounds', 'bounds', values.bounds);
+  const sigma = values.sigma === undefined ? null : parseOption('sigma', 'sigma', values.sigma);
+  const start = values.start === undefined ? null : parseOption('start', 'start', values.start);
+  let method: DifferenceMethod = 't';
+  let sequence: SequenceChoice | null = null;
+  if (values.ci !== undefined) {
+    const ci = parseOption('ci', 'interval', values.ci);
+    if (isSequenceMethod(ci)) {
+      if (targetError === null) throw new InputError('--ci', `${ci} is for runs that stop at a target error: add --target-error E`);
+      sequence = ci;
+    } else if (ci === 't' || ci === 'bootstrap' || ci === 'bootstrap-percentile') {
+      if (targetError !== null) throw new InputError('--ci', `"${ci}" is a fixed-sample interval, which loses its coverage when the run stops on the data; with --target-error use empirical-bernstein, normal-mixture or chow-robbins`);
+      method = ci;
+    } else {
+      throw new InputError('--ci', `"${ci}" is not offered for differences; choose t, bootstrap or bootstrap-percentile`);
+    }
+  }
+
+  const request: CompareRequest = {
+    env: readDefinitionFile(envPath),
+    policies: policyPaths.map((p) => readDefinitionFile(p)),
+    seed,
+    start,
+    episodes,
+    workers,
+    method,
+    sequence,
+    level,
+    bounds,
+    sigma,
+    targetError,
+    interquartileMean: Boolean(values.iqm),
+  };
+  const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());
+  const db = storePath === null ? null : openStore(storePath);
+  const progress = new ProgressLine();
+  const controller = new AbortController();
+  const onSigint = () => controller.abort();
+  process.once('SIGINT', onSigint);
+  let result: ComparisonResult;
+  let runId: string | null = null;
+  try {
+    const withProgress: CompareRequest = {
+      ...request,
+      signal: controller.signal,
+      onProgress: (p) => progress.update({ ...p, mean: Number.NaN }),
+    };
+    if (db) {
+      const stored = await runStoredComparison(db, withProgress, version());
+      result = stored.result;
+      runId = stored.runId;
+    } else {
+      result = await runComparison(withProgress);
+    }
+  } finally {
+    progress.clear();
+    process.off('SIGINT', onSigint);
+    db?.close();
+  }
+  const labels = { env: envPath, policies: policyPaths };
+  if (values.json) {
+    process.stdout.write(`${JSON.stringify(compareJson(result, labels, version(), runId), null, 2)}\n`);
+  } else {
+    process.stdout.write(compareText(result, labels));
+    if (runId) process.stdout.write(`  Stored as run ${runId} in ${storePath}.\n`);
+    if (values.seed === undefined) process.stdout.write(`  (seed ${seed} was chosen at random; add --seed ${seed} to repeat this comparison exactly)\n`);
+  }
+  if (result.target && !result.target.reached) {
+    process.stderr.write(`reckon: the target ±${targetError} was not reached on every difference within ${result.episodes} episodes; raise --max-episodes or accept a wider target\n`);
+  }
+  return result.interrupted ? 130 : 0;
+}

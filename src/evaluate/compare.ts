@@ -1,0 +1,242 @@
+import { runEpisodes } from '../engine/pool.js';
+import { prepareRollout } from '../engine/prepare.js';
+import type { EpisodeBlock } from '../engine/episode-block.js';
+import type { RolloutSpec } from '../engine/spec.js';
+import { InputError } from '../errors.js';
+import { comparePolicies, differenceBounds, type DifferenceMethod, type PolicyComparison, type RunningInterval } from '../stats/index.js';
+import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
+import type { EstimateResult } from './estimate.js';
+import { computeFigures, type ReportedInterval, type TargetOutcome } from './figures.js';
+import { ReturnsBuffer } from './returns-buffer.js';
+import { chooseSequence, makeRunningInterval, sequenceInterval, targetReached, type SequenceChoice, type SequenceSettings } from './sequence.js';
+
+type Definition = RolloutSpec['env'];
+
+export interface CompareRequest {
+  readonly env: Definition;
+  readonly policies: readonly Definition[];
+  readonly seed: number;
+  readonly start: string | null;
+  /** Episodes per policy; with `targetError`, the cap. */
+  readonly episodes: number;
+  readonly workers: number;
+  /** Interval for each paired difference in a fixed-size comparison. */
+  readonly method: DifferenceMethod;
+  /** Sequence for a target-error comparison (null: the default). */
+  readonly sequence: SequenceChoice | null;
+  readonly level: number;
+  readonly bounds: [number, number] | null;
+  readonly sigma: number | null;
+  /** Run until every pairwise difference's interval is at most this wide (half-width). */
+  readonly targetError: number | null;
+  readonly interquartileMean: boolean;
+  readonly signal?: AbortSignal;
+  readonly onProgress?: (progress: { done: number; total: number; seconds: number; halfWidth: number; targetError: number | null }) => void;
+  /** Called once facts are known, before any episode: lets a caller create stored runs. */
+  readonly onStart?: (facts: readonly EnvironmentFacts[], sequence: SequenceChoice | null) => void;
+  /** Called with each policy's kept episodes, in episode order, batch by batch. */
+  readonly onEpisodes?: (policy: number, block: EpisodeBlock, steps: number, seconds: number) => void;
+}
+
+export interface ComparisonResult {
+  readonly request: CompareRequest;
+  readonly facts: readonly EnvironmentFacts[];
+  /** Each policy's own estimate (fixed-sample t, or its sequence in a target-error run). */
+  readonly estimates: readonly EstimateResult[];
+  readonly comparison: PolicyComparison;
+  /** Per pair (in `comparison.pairs` order), the interval reported for the difference. */
+  readonly differenceIntervals: readonly ReportedInterval[];
+  readonly episodes: number;
+  readonly seconds: number;
+  readonly target: TargetOutcome | null;
+  readonly interrupted: boolean;
+}
+
+/**
+ * Runs every policy on the same episode indices with the same seed. Environment and policy
+ * draw from separate streams (engine/streams.ts), so episode i's environment noise is common
+ * to all policies (common random numbers) and the paired differences have the variance
+ * Var A + Var B − 2 Cov(A, B) (METHODS.md §5). A target-error comparison runs in growing
+ * batches and stops at the first episode where every pair's confidence sequence is narrow
+ * enough; that episode depends on the returns alone.
+ */
+export async function runComparison(request: CompareRequest): Promise<ComparisonResult> {
+  if (request.policies.length < 2) throw new InputError('--policy', 'a comparison needs at least two policies: give --policy twice or more');
+  const specs: RolloutSpec[] = request.policies.map((policy) => ({ env: request.env, policy, seed: request.seed, start: request.start }));
+  const facts: EnvironmentFacts[] = [];
+  for (const spec of specs) {
+    const prepared = await prepareRollout(spec);
+    facts.push(environmentFacts(prepared.env, prepared.policy, prepared.startIndex));
+  }
+  const k = specs.length;
+  const pairs: [number, number][] = [];
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) pairs.push([i, j]);
+
+  let sequences: RunningInterval[] = [];
+  let pairSettings: SequenceSettings[] = [];
+  let sequence: SequenceChoice | null = null;
+  if (request.targetError !== null) {
+    const policyBounds = facts.map((f) => request.bounds ?? f.returnBounds);
+    pairSettings = pairs.map(([i, j]) => {
+      const bounds = policyBounds[i] && policyBounds[j] ? differenceBounds(policyBounds[i]!, policyBounds[j]!) : null;
+      // A user's σ is for one return; a difference of two such returns is at most 2σ-sub-Gaussian.
+      const sigma = request.sigma === null ? null : 2 * request.sigma;
+      const method = chooseSequence(request.sequence, bounds, sigma);
+      return { method, level: request.level, bounds, sigma, targetError: request.targetError! };
+    });
+    sequence = pairSettings[0].method;
+    sequences = pairSettings.map(makeRunningInterval);
+  }
+  request.onStart?.(facts, sequence);
+
+  const buffers = facts.map((f) => new ReturnsBuffer(Math.min(request.episodes, 1 << 20), f.horizon));
+  const single = new Float64Array(1);
+  const started = performance.now();
+  let reached = false;
+  let done = 0;
+  let batch = request.targetError === null ? request.episodes : 2000;
+  while (done < request.episodes && !reached && !request.signal?.aborted) {
+    const count = Math.min(batch, request.episodes - done);
+    const blocks: EpisodeBlock[][] = [];
+    for (let p = 0; p < k; p++) {
+      const collected: EpisodeBlock[] = [];
+      await runEpisodes(specs[p], {
+        first: done,
+        count,
+        workers: request.workers,
+        signal: request.signal,
+        onBlock: (block) => {
+          collected.push(block);
+          request.onProgress?.({
+            done: done + ((p * count + collected.reduce((n, b) => n + b.count, 0)) / k),
+            total: request.episodes,
+            seconds: (performance.now() - started) / 1000,
+            halfWidth: Number.NaN,
+            targetError: request.targetError,
+          });
+        },
+      });
+      blocks.push(collected);
+    }
+    const batchReturns = blocks.map((list) => concat(list, 'returns') as Float64Array);
+    const batchLengths = blocks.map((list) => concat(list, 'lengths') as Uint32Array);
+    let keep = Math.min(...batchReturns.map((r) => r.length)); // shorter only when interrupted
+    if (sequences.length > 0) {
+      for (let e = 0; e < keep && !reached; e++) {
+        let all = true;
+        pairs.forEach(([i, j], q) => {
+          single[0] = batchReturns[i][e] - batchReturns[j][e];
+          sequences[q].add(single);
+          if (!targetReached(sequences[q], pairSettings[q])) all = false;
+        });
+        if (all) {
+          reached = true;
+          keep = e + 1;
+        }
+      }
+    }
+    const seconds = (performance.now() - started) / 1000;
+    for (let p = 0; p < k; p++) {
+      const returns = batchReturns[p].subarray(0, keep);
+      const lengths = batchLengths[p].subarray(0, keep);
+      buffers[p].append(returns, lengths);
+      let steps = 0;
+      for (let e = 0; e < keep; e++) steps += lengths[e];
+      request.onEpisodes?.(p, { first: done, count: keep, returns, lengths }, steps, seconds);
+    }
+    done += keep;
+    if (sequences.length > 0) {
+      request.onProgress?.({
+        done,
+        total: request.episodes,
+        seconds,
+        halfWidth: Math.max(...sequences.map((s) => s.interval().halfWidth)),
+        targetError: request.targetError,
+      });
+    }
+    batch = Math.min(batch * 2, 200_000);
+  }
+  if (done < 2) throw new InputError('compare', `stopped after ${done} episode(s), too few to compare`);
+  const seconds = (performance.now() - started) / 1000;
+  return summarizeComparison(request, facts, buffers, sequence, seconds, reached);
+}
+
+/**
+ * Every figure of a comparison from the policies' returns: shared by a fresh comparison and
+ * by `runs show` on a stored one, so both print the same numbers.
+ */
+export function summarizeComparison(
+  request: CompareRequest,
+  facts: readonly EnvironmentFacts[],
+  buffers: readonly ReturnsBuffer[],
+  sequence: SequenceChoice | null,
+  seconds: number,
+  reached: boolean,
+): ComparisonResult {
+  const episodes = buffers[0].count;
+  const estimates = buffers.map((buffer, p) =>
+    computeFigures(
+      buffer,
+      facts[p],
+      {
+        method: sequence ?? (request.method === 't' ? 't' : request.method),
+        level: request.level,
+        bounds: request.bounds,
+        targetError: null,
+        sigma: request.sigma,
+        seed: request.seed,
+        start: request.start,
+      },
+      { steps: buffer.lengthSum, seconds: seconds / buffers.length, workers: request.workers },
+      request.episodes,
+    ),
+  );
+  const comparison = comparePolicies(
+    buffers.map((b) => b.view()),
+    { level: request.level, method: request.method, seed: request.seed, interquartileMean: request.interquartileMean },
+  );
+  let differenceIntervals: ReportedInterval[] = comparison.pairs.map((pair) => ({ ...pair.interval, anytimeValid: false }));
+  if (sequence !== null && request.targetError !== null) {
+    differenceIntervals = comparison.pairs.map((pair) => {
+      const boundsA = request.bounds ?? facts[pair.first].returnBounds;
+      const boundsB = request.bounds ?? facts[pair.second].returnBounds;
+      const settings: SequenceSettings = {
+        method: sequence,
+        level: request.level,
+        bounds: boundsA && boundsB ? differenceBounds(boundsA, boundsB) : null,
+        sigma: request.sigma === null ? null : 2 * request.sigma,
+        targetError: request.targetError!,
+      };
+      const running = makeRunningInterval(settings);
+      const a = buffers[pair.first].view();
+      const b = buffers[pair.second].view();
+      const differences = new Float64Array(a.length);
+      for (let e = 0; e < a.length; e++) differences[e] = a[e] - b[e];
+      running.add(differences);
+      return sequenceInterval(running, settings, targetReached(running, settings), pair.meanDifference);
+    });
+  }
+  const target = request.targetError === null ? null : { error: request.targetError, reached, maxEpisodes: request.episodes };
+  return {
+    request,
+    facts,
+    estimates,
+    comparison,
+    differenceIntervals,
+    episodes,
+    seconds,
+    target,
+    interrupted: target ? !reached && episodes < request.episodes : episodes < request.episodes,
+  };
+}
+
+function concat(blocks: readonly EpisodeBlock[], key: 'returns' | 'lengths'): Float64Array | Uint32Array {
+  const total = blocks.reduce((n, b) => n + b.count, 0);
+  const out = key === 'returns' ? new Float64Array(total) : new Uint32Array(total);
+  let offset = 0;
+  for (const b of blocks) {
+    out.set(b[key], offset);
+    offset += b.count;
+  }
+  return out;
+}

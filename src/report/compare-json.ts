@@ -1,0 +1,62 @@
+import type { ComparisonResult } from '../evaluate/compare.js';
+
+/**
+ * The `compare --json` object. `policies` and `differences` (with a, b indices into
+ * `policies`, differences a − b) are a contract that scripts rely on: add keys, never rename.
+ */
+export function compareJson(result: ComparisonResult, labels: { env: string; policies: readonly string[] }, version: string, runId: string | null = null) {
+  const { comparison } = result;
+  const holm = comparison.pairs.length > 1;
+  return {
+    run_id: runId,
+    env: labels.env,
+    seed: result.request.seed,
+    start: result.request.start,
+    episodes: result.episodes,
+    level: result.request.level,
+    policies: result.estimates.map((estimate, p) => ({
+      name: labels.policies[p],
+      mean: estimate.mean,
+      std: estimate.std,
+      ci: { low: estimate.ci.low, high: estimate.ci.high, method: estimate.ci.method, level: estimate.ci.level },
+      episodes: estimate.episodes,
+      rank: comparison.policies[p].rank,
+      mean_length: estimate.meanLength,
+      iqm: comparison.policies[p].interquartileMean
+        ? {
+            estimate: comparison.policies[p].interquartileMean!.estimate,
+            low: comparison.policies[p].interquartileMean!.interval.low,
+            high: comparison.policies[p].interquartileMean!.interval.high,
+            method: 'stratified-bootstrap',
+          }
+        : null,
+    })),
+    differences: comparison.pairs.map((pair, q) => ({
+      a: pair.first,
+      b: pair.second,
+      mean: pair.meanDifference,
+      low: result.differenceIntervals[q].low,
+      high: result.differenceIntervals[q].high,
+      method: result.differenceIntervals[q].method,
+      anytime_valid: result.differenceIntervals[q].anytimeValid ?? false,
+      p_value: pair.pValue,
+      adjusted_p_value: pair.adjustedPValue,
+      correlation: pair.correlation,
+      variance_reduction: pair.varianceReduction,
+      probability_of_improvement: {
+        estimate: pair.probabilityOfImprovement.estimate,
+        low: pair.probabilityOfImprovement.interval.low,
+        high: pair.probabilityOfImprovement.interval.high,
+      },
+    })),
+    ranking: [...comparison.policies].sort((x, y) => x.rank - y.rank || x.policy - y.policy).map((p) => p.policy),
+    p_value_adjustment: holm ? 'holm' : 'none',
+    target_error: result.target?.error ?? null,
+    target_reached: result.target ? result.target.reached : null,
+    max_episodes: result.target?.maxEpisodes ?? null,
+    seconds: result.seconds,
+    workers: result.request.workers,
+    interrupted: result.interrupted,
+    reckon_version: version,
+  };
+}

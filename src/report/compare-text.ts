@@ -1,0 +1,67 @@
+import type { ComparisonResult } from '../evaluate/compare.js';
+import { columns, count, decimalsFor, duration, fixed, sig } from './format.js';
+
+function pText(p: number): string {
+  return p < 1e-4 ? '< 0.0001' : p.toFixed(4);
+}
+
+/** The plain-text report of a comparison: who is ahead, by how much, how sure, and what pairing bought. */
+export function compareText(result: ComparisonResult, labels: { env: string; policies: readonly string[] }): string {
+  const { comparison } = result;
+  const level = `${+(result.request.level * 100).toFixed(4)}%`;
+  const lines: string[] = [];
+  lines.push(`Comparing ${labels.policies.length} policies in ${labels.env}${result.request.start ? ` from state ${result.request.start}` : ''}`);
+  lines.push(`  ${count(result.episodes)} episodes each, the same seed (${result.request.seed}) and environment noise for every policy (common random numbers)`);
+  if (result.target) {
+    lines.push(
+      result.target.reached
+        ? `  target ±${result.target.error} on every difference reached after ${count(result.episodes)} episodes (anytime-valid intervals)`
+        : `  target ±${result.target.error} NOT reached within ${count(result.target.maxEpisodes)} episodes`,
+    );
+  }
+  lines.push('');
+  const widest = Math.max(...result.estimates.map((e) => e.ci.halfWidth));
+  const d = decimalsFor(Math.min(...result.differenceIntervals.map((i) => i.halfWidth), widest));
+  const policyRows = [['rank', 'policy', 'expected return', `${level} interval`, 'mean length']];
+  const order = [...comparison.policies].sort((a, b) => a.rank - b.rank || a.policy - b.policy);
+  for (const standing of order) {
+    const e = result.estimates[standing.policy];
+    policyRows.push([
+      String(standing.rank),
+      `[${standing.policy}] ${labels.policies[standing.policy]}`,
+      fixed(e.mean, d),
+      `${fixed(e.ci.low, d)} … ${fixed(e.ci.high, d)}`,
+      sig(e.meanLength, 3),
+    ]);
+  }
+  lines.push(...columns(policyRows));
+  if (comparison.policies.some((p) => p.interquartileMean)) {
+    lines.push('', '  Interquartile mean (middle 50% of returns) with a stratified bootstrap interval:');
+    for (const p of comparison.policies) {
+      const iqm = p.interquartileMean!;
+      lines.push(`    [${p.policy}] ${fixed(iqm.estimate, d)}  (${fixed(iqm.interval.low, d)} … ${fixed(iqm.interval.high, d)})`);
+    }
+  }
+  lines.push('', `  Paired differences (first − second), ${level} ${result.differenceIntervals[0]?.method ?? ''} intervals:`);
+  const multiple = comparison.pairs.length > 1;
+  comparison.pairs.forEach((pair, q) => {
+    const interval = result.differenceIntervals[q];
+    const sign = pair.meanDifference >= 0 ? '+' : '';
+    const pPart = multiple ? `p ${pText(pair.pValue)}, Holm-adjusted ${pText(pair.adjustedPValue)}` : `p ${pText(pair.pValue)}`;
+    lines.push(
+      `    [${pair.first}] − [${pair.second}]   ${sign}${fixed(pair.meanDifference, d)}  (${fixed(interval.low, d)} … ${fixed(interval.high, d)}), ${pPart}`,
+    );
+    const poi = pair.probabilityOfImprovement;
+    lines.push(
+      `        P([${pair.first}] returns more than [${pair.second}]) ${poi.estimate.toFixed(3)} (${poi.interval.low.toFixed(3)} … ${poi.interval.high.toFixed(3)}); ` +
+        `correlation ${pair.correlation.toFixed(3)}: ` +
+        (pair.varianceReduction >= 1.05
+          ? `pairing made this ${sig(pair.varianceReduction, 3)}× cheaper than independent runs`
+          : `pairing bought little here (${sig(pair.varianceReduction, 3)}×: the policies' returns hardly move together)`),
+    );
+  });
+  if (multiple) lines.push('', `  With ${comparison.pairs.length} pairs, p-values are Holm-adjusted (Holm 1979) to keep the chance of any false difference at ${(100 - result.request.level * 100).toFixed(0)}%.`);
+  lines.push('', `  time ${duration(result.seconds)} on ${result.request.workers} worker${result.request.workers === 1 ? '' : 's'}`);
+  if (result.interrupted) lines.push(`  Stopped early after ${count(result.episodes)} episodes; the figures above use those.`);
+  return lines.join('\n') + '\n';
+}

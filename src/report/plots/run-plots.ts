@@ -1,0 +1,55 @@
+import { convergenceSeries, convergenceSpec } from './convergence.js';
+import type { RunExactValues } from './exact-for-run.js';
+import { histogramBins, histogramSpec } from './histogram.js';
+import { COLOURS, type PlotSpec } from './palette.js';
+import { valueMapCells, valueMapSpec } from './value-map.js';
+
+export const RUN_PLOT_KINDS = ['convergence', 'histogram', 'lengths', 'value-map'] as const;
+export type RunPlotKind = (typeof RUN_PLOT_KINDS)[number];
+
+export interface RunPlotInput {
+  readonly runId: string;
+  readonly envLabel: string;
+  readonly policyLabel: string;
+  readonly level: number;
+  readonly returns: Float64Array;
+  readonly lengths: Uint32Array;
+  readonly exact: RunExactValues | null;
+}
+
+/** The plot of one kind for a stored run, or null when it does not apply (a value map of a code environment). */
+export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { width?: number; height?: number } = {}): PlotSpec | null {
+  const what = `${input.policyLabel} on ${input.envLabel} (run ${input.runId}, ${input.returns.length.toLocaleString('en-US')} episodes)`;
+  switch (kind) {
+    case 'convergence':
+      return convergenceSpec(convergenceSeries(input.returns, input.level), {
+        title: `Convergence: ${what}`,
+        level: input.level,
+        exact: input.exact?.value ?? null,
+        ...size,
+      });
+    case 'histogram': {
+      const mean = input.returns.reduce((s, x) => s + x, 0) / Math.max(1, input.returns.length);
+      return histogramSpec(histogramBins(input.returns), {
+        title: `Returns: ${what}`,
+        xTitle: 'discounted return',
+        marker: input.returns.length > 0 ? { value: mean, label: 'sample mean' } : null,
+        ...size,
+      });
+    }
+    case 'lengths':
+      return histogramSpec(histogramBins(input.lengths, { integer: true }), {
+        title: `Episode lengths: ${what}`,
+        xTitle: 'steps in the episode',
+        colour: COLOURS.purple,
+        ...size,
+      });
+    case 'value-map': {
+      if (!input.exact || !input.exact.mdp.grid) return null;
+      return valueMapSpec(valueMapCells(input.exact.mdp, input.exact.states), {
+        title: `State values: ${input.policyLabel} on ${input.envLabel}`,
+        subtitle: `exact expected return from each cell over the horizon (${input.exact.mdp.horizon} steps); terminals outlined`,
+      });
+    }
+  }
+}
