@@ -35,20 +35,37 @@ describe('command-line contract', () => {
     expect(json.ci.high + 0.001).toBeGreaterThan(0.705);
   });
 
-  it('the projection asked for with --target-error is in the table', () => {
+  it('the projection table covers the current half-width /2, /5 and /10 by the t rule (METHODS §3)', () => {
+    const out = reckon([
+      'estimate', '--env', path.join(C, 'grid-4x3-slip.json'), '--policy', path.join(C, 'grid-4x3-policy.json'),
+      '--episodes', '1000', '--seed', '2', '--json',
+    ]);
+    const json = JSON.parse(out.stdout);
+    expect(json.projection.map((row: { half_width: number }) => row.half_width / json.ci.half_width)).toEqual([0.5, 0.2, 0.1].map((f) => expect.closeTo(f, 12)));
+    // t projection ≈ (1.96·s/ε)² once n is large (common practice).
+    for (const row of json.projection) {
+      const expected = (1.96 * json.std / row.half_width) ** 2;
+      expect(Math.abs(row.episodes_needed - expected) / expected).toBeLessThan(0.01);
+    }
+  });
+
+  it('--target-error that cannot be reached within the cap says so and reports what it reached', () => {
     const out = reckon([
       'estimate', '--env', path.join(C, 'grid-4x3-slip.json'), '--policy', path.join(C, 'grid-4x3-policy.json'),
       '--episodes', '1000', '--seed', '2', '--target-error', '0.005', '--json',
     ]);
+    expect(out.code).toBe(0);
     const json = JSON.parse(out.stdout);
+    expect(json.episodes).toBe(1000);
+    expect(json.target_reached).toBe(false);
+    expect(json.ci.anytime_valid).toBe(true);
     expect(json.projection[0].half_width).toBe(0.005);
-    // t projection ≈ (1.96·s/ε)² (METHODS §3; common practice).
-    const expected = (1.96 * json.std / 0.005) ** 2;
-    expect(Math.abs(json.projection[0].episodes_needed - expected) / expected).toBeLessThan(0.01);
+    expect(json.projection[0].episodes_needed).toBeGreaterThan(1000);
+    expect(out.stderr).toContain('was not reached');
   });
 
   it('--help works on every command and exits 0', () => {
-    for (const command of ['estimate', 'exact', 'check', 'demo']) {
+    for (const command of ['estimate', 'exact', 'check', 'demo', 'compare', 'plan', 'runs']) {
       const out = reckon([command, '--help']);
       expect(out.code).toBe(0);
       expect(out.stdout).toContain(`reckon ${command}`);

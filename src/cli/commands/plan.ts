@@ -1,0 +1,182 @@
+import { randomInt } from 'node:crypto';
+import { readDefinitionFile } from '../../definitions/index.js';
+import { defaultWorkers } from '../../engine/pool.js';
+import { InputError } from '../../errors.js';
+import { runPilot, type PilotResult } from '../../evaluate/pilot.js';
+import { columns, count, duration, rate as formatRate, sig } from '../../report/format.js';
+import { differenceBounds, pairedSampleSize, planEpisodes, summarize } from '../../stats/index.js';
+import { pairingGain } from '../../stats/pairing-gain.js';
+import { parseCommandArgs, required } from '../args.js';
+import { parseOption } from '../options.js';
+
+export const HELP = `reckon plan: how many episodes, and how long, before running them
+
+Runs a short pilot (a few seconds, or --pilot N episodes), then projects the episodes and the
+time on this machine that a target half-width E needs: with a fixed-n Student-t run
+(episodes_needed), with a run that stops when it reaches E ('estimate --target-error', whose
+interval stays valid at that data-dependent stop: episodes_needed_sequential), and with
+Hoeffding's distribution-free bound when return bounds are known. With two policies and
+--difference D it plans a comparison instead: the paired episodes that detect a true
+difference D with the given power.
+
+Usage:
+  reckon plan --env FILE --policy FILE --target-error E [options]
+  reckon plan --env FILE --policy A --policy B --difference D [--power P] [options]
+
+Options:
+  --target-error E      the half-width to reach
+  --difference D        the smallest true difference worth detecting (two policies)
+  --power P             chance of detecting it (default 0.8)
+  --pilot N             pilot episodes (default: adaptive, about 2 seconds)
+  --confidence L        two-sided level (default 0.95)
+  --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
+  --sigma S             the returns' sub-Gaussian scale for the normal-mixture sequence
+  --seed S              pilot seed (default: random)
+  --workers K           worker threads the real run will use (default: all cores)
+  --json                one JSON object
+
+Examples:
+  reckon plan --env envs/warehouse.json --policy envs/picker-direct.json --target-error 0.01
+  reckon plan --env envs/warehouse.json --policy envs/picker-direct.json --policy envs/picker-direct-eps.json --difference 0.05
+`;
+
+const OPTIONS = {
+  env: { type: 'string' },
+  policy: { type: 'string', multiple: true },
+  'target-error': { type: 'string' },
+  difference: { type: 'string' },
+  power: { type: 'string' },
+  pilot: { type: 'string' },
+  confidence: { type: 'string' },
+  bounds: { type: 'string' },
+  sigma: { type: 'string' },
+  seed: { type: 'string' },
+  workers: { type: 'string' },
+  json: { type: 'boolean' },
+  start: { type: 'string' },
+} as const;
+
+function seconds(episodes: number | null, rate: number): number | null {
+  return episodes === null || !Number.isFinite(episodes) ? null : episodes / rate;
+}
+
+export async function run(args: string[]): Promise<number> {
+  const { values } = parseCommandArgs('plan', args, OPTIONS);
+  if (values.help) {
+    process.stdout.write(HELP);
+    return 0;
+  }
+  const envPath = required('plan', 'env', values.env, '--env envs/warehouse.json');
+  const policyPaths = (values.policy as string[] | undefined) ?? [];
+  if (policyPaths.length === 0) throw new InputError('--policy', "is required; e.g. --policy envs/picker-direct.json (see 'reckon plan --help')");
+  if (policyPaths.length > 2) throw new InputError('--policy', 'plan takes one policy (an estimate) or two (a comparison)');
+  const level = values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence);
+  const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);
+  const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
+  const userBounds = values.bounds === undefined ? null : parseOption('bounds', 'bounds', values.bounds);
+  const sigma = values.sigma === undefined ? undefined : parseOption('sigma', 'sigma', values.sigma);
+  const pilotEpisodes = values.pilot === undefined ? null : parseOption('pilot', 'episodes', values.pilot);
+  const start = values.start === undefined ? null : parseOption('start', 'start', values.start);
+  const env = readDefinitionFile(envPath);
+  const pilotOptions = { episodes: pilotEpisodes, seconds: 2, minEpisodes: 100, maxEpisodes: 200_000, workers };
+  const pilot = (policyPath: string) => runPilot({ env, policy: readDefinitionFile(policyPath), seed, start }, pilotOptions);
+
+  if (policyPaths.length === 2) {
+    if (values.difference === undefined) throw new InputError('--difference', 'is required with two policies: the smallest true difference worth detecting, e.g. --difference 0.05');
+    const effect = parseOption('difference', 'targetError', values.difference);
+    const power = values.power === undefined ? 0.8 : parseOption('power', 'confidence', values.power);
+    const pilots: PilotResult[] = [];
+    for (const p of policyPaths) pilots.push(await pilot(p));
+    const n = Math.min(pilots[0].returns.length, pilots[1].returns.length);
+    const gain = pairingGain(pilots[0].returns.subarray(0, n), pilots[1].returns.subarray(0, n));
+    const sigmaDifference = Math.sqrt(gain.varianceDifference);
+    const size = pairedSampleSize({ effect, sigmaDifference, level, power });
+    // Both policies run each pair: the time per pair is the sum of their times per episode.
+    const rate = 1 / (1 / pilots[0].episodesPerSecond + 1 / pilots[1].episodesPerSecond);
+    const independent = pairedSampleSize({ effect, sigmaDifference: Math.sqrt(gain.varianceFirst + gain.varianceSecond), level, power });
+    const out = {
+      env: envPath,
+      policies: policyPaths,
+      difference: effect,
+      power,
+      level,
+      pilot: { episodes: n, seconds: pilots[0].seconds + pilots[1].seconds, pairs_per_second: rate },
+      sigma_difference: sigmaDifference,
+      correlation: gain.correlation,
+      variance_reduction: gain.varianceReduction,
+      episodes_needed: size.exactPairs,
+      episodes_needed_z: size.zPairs,
+      power_at_episodes_needed: size.powerAtExactPairs,
+      episodes_needed_unpaired: independent.exactPairs,
+      seconds: seconds(size.exactPairs, rate),
+      workers,
+    };
+    if (values.json) {
+      process.stdout.write(`${JSON.stringify(out, null, 2)}\n`);
+      return 0;
+    }
+    process.stdout.write(
+      [
+        `Plan: detect a true difference of ${effect} between ${policyPaths[0]} and ${policyPaths[1]} in ${envPath}`,
+        `  with power ${power} at the ${level * 100}% level (two-sided paired t test, common random numbers)`,
+        '',
+        `  pilot            ${count(n)} episodes per policy; σ of the paired difference ${sig(sigmaDifference)}, correlation ${gain.correlation.toFixed(3)}`,
+        `  episodes needed  ${count(size.exactPairs)} per policy (exact power ${size.powerAtExactPairs.toFixed(4)}; normal approximation ${count(size.zPairs)})`,
+        `  time             ${duration(out.seconds)} at ${formatRate(rate)} pairs/s on ${workers} worker${workers === 1 ? '' : 's'}`,
+        `  without pairing  ${count(independent.exactPairs)} per policy: pairing saves ${sig(gain.varianceReduction, 3)}×`,
+        '',
+      ].join('\n'),
+    );
+    return 0;
+  }
+
+  if (values['target-error'] === undefined) throw new InputError('--target-error', "is required: the half-width to plan for, e.g. --target-error 0.01 (see 'reckon plan --help')");
+  const epsilon = parseOption('target-error', 'targetError', values['target-error']);
+  const result = await pilot(policyPaths[0]);
+  const summary = summarize(result.returns);
+  const bounds = userBounds ?? result.facts.returnBounds;
+  const plan = planEpisodes({ pilot: summary, epsilon, level, bounds, sigma });
+  const sequentialMethod = bounds ? 'empirical-bernstein' : sigma !== undefined ? 'normal-mixture' : null;
+  const sequential = sequentialMethod === 'empirical-bernstein' ? plan.empiricalBernstein : sequentialMethod === 'normal-mixture' ? plan.normalMixture.episodes : null;
+  const rate = result.episodesPerSecond;
+  const out = {
+    env: envPath,
+    policy: policyPaths[0],
+    target_error: epsilon,
+    level,
+    pilot: { episodes: summary.n, mean: summary.mean, std: summary.std, seconds: result.seconds, episodes_per_second: rate },
+    episodes_needed: plan.fixedT,
+    episodes_needed_sequential: sequential,
+    sequential_method: sequentialMethod,
+    episodes_needed_normal_mixture: plan.normalMixture.sigmaSource === 'estimated' ? null : plan.normalMixture.episodes,
+    episodes_needed_hoeffding: plan.hoeffding,
+    seconds: { fixed: seconds(plan.fixedT, rate), sequential: seconds(sequential, rate), hoeffding: seconds(plan.hoeffding, rate) },
+    return_bounds: bounds,
+    workers,
+    note: 'projections use the pilot\'s standard deviation, so a run reaches the target about half the time at the projected size',
+  };
+  if (values.json) {
+    process.stdout.write(`${JSON.stringify(out, null, 2)}\n`);
+    return 0;
+  }
+  const rows = [['run', 'episodes', 'time at this machine\'s rate']];
+  rows.push(['fixed n, Student t', count(plan.fixedT), duration(out.seconds.fixed)]);
+  if (sequential !== null) rows.push([`until ±${epsilon} (--target-error, ${sequentialMethod})`, Number.isFinite(sequential) ? count(sequential) : 'over 10⁹', duration(out.seconds.sequential)]);
+  if (plan.hoeffding !== null) rows.push(['fixed n, Hoeffding (distribution-free)', count(plan.hoeffding), duration(out.seconds.hoeffding)]);
+  process.stdout.write(
+    [
+      `Plan: ${policyPaths[0]} in ${envPath} to within ±${epsilon} at the ${level * 100}% level`,
+      '',
+      `  pilot  ${count(summary.n)} episodes in ${duration(result.seconds)}: mean ${sig(summary.mean)}, std ${sig(summary.std)}, ${formatRate(rate)} episodes/s on ${workers} worker${workers === 1 ? '' : 's'}`,
+      '',
+      ...columns(rows),
+      '',
+      sequential === null ? '  (no return bounds and no --sigma: a run until the target has no valid interval to stop on; give --bounds or --sigma)' : '',
+      `  Projections use the pilot's spread: a run of the projected size reaches ±${epsilon} about half the time.`,
+      '',
+    ]
+      .filter((line, i, all) => line !== '' || all[i - 1] !== '')
+      .join('\n'),
+  );
+  return 0;
+}
