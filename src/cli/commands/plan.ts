@@ -162,6 +162,9 @@ export async function run(args: string[]): Promise<number> {
   const rows = [['run', 'episodes', 'time at this machine\'s rate']];
   rows.push(['fixed n, Student t', count(plan.fixedT), duration(out.seconds.fixed)]);
   if (sequential !== null) rows.push([`until ±${epsilon} (--target-error, ${sequentialMethod})`, Number.isFinite(sequential) ? count(sequential) : 'over 10⁹', duration(out.seconds.sequential)]);
+  if (out.episodes_needed_normal_mixture !== null && sequentialMethod !== 'normal-mixture') {
+    rows.push([`until ±${epsilon} (--target-error --ci normal-mixture)`, count(plan.normalMixture.episodes), duration(seconds(plan.normalMixture.episodes, rate))]);
+  }
   if (plan.hoeffding !== null) rows.push(['fixed n, Hoeffding (distribution-free)', count(plan.hoeffding), duration(out.seconds.hoeffding)]);
   process.stdout.write(
     [
