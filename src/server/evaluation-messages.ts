@@ -1,0 +1,27 @@
+import type { RolloutSpec } from '../engine/spec.js';
+import type { StoredOptions } from '../evaluate/stored-estimate.js';
+import type { JobProgress } from './run-queue.js';
+
+export interface EvaluationWorkerData {
+  readonly storePath: string;
+  readonly spec: RolloutSpec;
+  readonly options: StoredOptions;
+  readonly toolVersion: string;
+  /** One Int32: 0 wait, 1 go, 2 stop. The worker waits on it once its run exists in the store. */
+  readonly gate: SharedArrayBuffer;
+}
+
+export const GATE_WAIT = 0;
+export const GATE_GO = 1;
+export const GATE_STOP = 2;
+
+export type FromEvaluationWorker =
+  | { readonly type: 'created'; readonly runId: string }
+  | { readonly type: 'progress'; readonly progress: JobProgress }
+  | {
+      readonly type: 'end';
+      readonly status: 'done' | 'interrupted' | 'failed';
+      readonly error: string | null;
+      /** Set when the request itself was bad (before any run existed): the server answers 400. */
+      readonly input: { readonly where: string; readonly detail: string } | null;
+    };

@@ -1,0 +1,64 @@
+import type { FastifyInstance } from 'fastify';
+import { parseOption } from '../../cli/options.js';
+import { InputError } from '../../errors.js';
+import { getRun, listRuns, type RunRecord } from '../../store/runs.js';
+import type { ServerContext } from '../context.js';
+import { queryOptions } from '../query.js';
+import { runListRow, runPendingJson, runShowJson } from '../run-json.js';
+import type { JobState } from '../run-queue.js';
+
+/** The run's state as the server knows it: the store's status, or `queued` while it waits here. */
+export function liveState(ctx: ServerContext, run: RunRecord): { status: string; queue: JobState | null; progress: unknown } {
+  const queued = ctx.queue.state(run.id);
+  const status = queued?.state === 'queued' ? 'queued' : run.status;
+  const progress =
+    queued?.state === 'running' && queued.progress
+      ? { done: queued.progress.done, total: queued.progress.total, seconds: queued.progress.seconds, mean: queued.progress.mean, half_width: queued.progress.halfWidth }
+      : run.status === 'running' || queued
+        ? { done: run.episodesDone, total: run.episodesRequested, seconds: run.seconds, mean: null, half_width: null }
+        : null;
+  return { status, queue: queued, progress };
+}
+
+/** True when a run can no longer change, so what is computed from it may be kept. */
+export function isSettled(ctx: ServerContext, run: RunRecord): boolean {
+  return run.status !== 'running' && ctx.queue.state(run.id) === null;
+}
+
+export function findStoredRun(ctx: ServerContext, id: string): RunRecord {
+  return getRun(ctx.db, id, 'this server\'s store');
+}
+
+/** `GET /api/runs` (the filters of `runs list`) and `GET /api/runs/:id` (what `runs show --json` prints). */
+export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
+  app.get('/api/runs', async (request) => {
+    const q = queryOptions(request.query, ['env_hash', 'policy', 'limit', 'parent']);
+    const limit = q.limit === undefined ? 100 : parseOption('limit', 'limit', q.limit);
+    const runs = listRuns(ctx.db, { envHash: q.env_hash, policy: q.policy, limit, parentId: q.parent ?? null });
+    return runs.map((r) => {
+      const live = liveState(ctx, r);
+      return { ...runListRow(r), status: live.status, progress: live.progress };
+    });
+  });
+
+  app.get<{ Params: { id: string } }>('/api/runs/:id', async (request) => {
+    const q = queryOptions(request.query, ['ci', 'confidence']);
+    const method = q.ci === undefined ? undefined : parseOption('ci', 'ci', q.ci);
+    const level = q.confidence === undefined ? undefined : parseOption('confidence', 'confidence', q.confidence);
+    const run = findStoredRun(ctx, request.params.id);
+    const live = liveState(ctx, run);
+    if (run.kind !== 'estimate') {
+      throw new InputError(`run ${run.id}`, `is a ${run.kind} run; see it at /api/comparisons/${run.id}`);
+    }
+    if (run.episodesDone < 2) return { ...runPendingJson(run), status: live.status, progress: live.progress };
+    const result = ctx.analysis.figures(run, { method, level }, isSettled(ctx, run));
+    return { ...runShowJson(run, result), status: live.status, progress: live.progress };
+  });
+
+  /** The run's definitions as it ran them (and, for the command line's runs, as their files said). */
+  app.get<{ Params: { id: string } }>('/api/runs/:id/definitions', async (request) => {
+    queryOptions(request.query, []);
+    const run = findStoredRun(ctx, request.params.id);
+    return { env_name: run.env.label, env: run.env.json, policy_name: run.policy.label, policy: run.policy.json, seed: run.seed, start: run.start };
+  });
+}

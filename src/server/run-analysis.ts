@@ -1,0 +1,57 @@
+import type { EstimateResult } from '../evaluate/estimate.js';
+import { analyzeStoredRun } from '../evaluate/stored-estimate.js';
+import { exactForRun, type RunExactValues } from '../report/plots/exact-for-run.js';
+import type { CiMethod } from '../stats/index.js';
+import type { Db } from '../store/open.js';
+import { loadEpisodes, type RunRecord } from '../store/runs.js';
+
+const LIMIT = 64;
+
+/**
+ * Figures, episodes and exact values of stored runs, kept for runs that can no longer change
+ * (done, failed, interrupted and not being run here), so that many people looking at one run
+ * recompute nothing: a bootstrap re-analysis or an exact evaluation is done once.
+ */
+export class RunAnalysisCache {
+  private readonly entries = new Map<string, unknown>();
+
+  constructor(private readonly db: Db) {}
+
+  figures(run: RunRecord, overrides: { method?: CiMethod; level?: number }, stable: boolean): EstimateResult {
+    return this.get(`figures|${run.id}|${overrides.method ?? ''}|${overrides.level ?? ''}`, stable, () => analyzeStoredRun(this.db, run, overrides));
+  }
+
+  episodes(run: RunRecord, stable: boolean): { returns: Float64Array; lengths: Uint32Array } {
+    return this.get(`episodes|${run.id}`, stable, () => loadEpisodes(this.db, run));
+  }
+
+  /** Exact values depend only on the definitions, so they are kept whatever the run's state. */
+  exact(run: RunRecord): Promise<RunExactValues | null> {
+    return this.get(`exact|${run.id}`, true, () =>
+      exactForRun(
+        { json: run.env.json, source: { label: run.env.label, baseDir: run.env.baseDir } },
+        { json: run.policy.json, source: { label: run.policy.label, baseDir: run.policy.baseDir } },
+        run.start,
+      ),
+    );
+  }
+
+  forget(id: string): void {
+    for (const key of [...this.entries.keys()]) if (key.split('|')[1] === id) this.entries.delete(key);
+  }
+
+  private get<T>(key: string, stable: boolean, compute: () => T): T {
+    if (this.entries.has(key)) {
+      const value = this.entries.get(key) as T;
+      this.entries.delete(key);
+      this.entries.set(key, value);
+      return value;
+    }
+    const value = compute();
+    if (stable) {
+      this.entries.set(key, value);
+      if (this.entries.size > LIMIT) this.entries.delete(this.entries.keys().next().value as string);
+    }
+    return value;
+  }
+}

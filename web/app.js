@@ -1,0 +1,376 @@
+// The review page: stored runs, one run's plots and figures, comparisons, and a form to start
+// an evaluation. Plain modules, no build step; every request goes to this page's own server.
+import { drawPlot } from './plots.js';
+
+const main = document.getElementById('main');
+
+// ---- talking to the server ------------------------------------------------------------
+
+/** The access token, when the server needs one: given once as ?token=…, then kept for the tab. */
+const token = (() => {
+  const fromUrl = new URLSearchParams(location.search).get('token');
+  if (fromUrl) sessionStorage.setItem('reckon-token', fromUrl);
+  return sessionStorage.getItem('reckon-token');
+})();
+
+async function api(path, options = {}) {
+  const headers = { ...(options.headers ?? {}) };
+  if (token) headers.authorization = `Bearer ${token}`;
+  if (options.body !== undefined) headers['content-type'] = 'application/json';
+  const response = await fetch(path, { ...options, headers });
+  const body = await response.json().catch(() => ({ error: `${response.status} ${response.statusText}` }));
+  if (!response.ok) {
+    const error = new Error(body.error ?? response.statusText);
+    error.status = response.status;
+    error.field = body.field ?? null;
+    throw error;
+  }
+  return body;
+}
+
+function eventsUrl(id) {
+  return `/api/runs/${encodeURIComponent(id)}/events${token ? `?token=${encodeURIComponent(token)}` : ''}`;
+}
+
+// ---- small helpers -----------------------------------------------------------------------
+
+function el(tag, attributes = {}, ...children) {
+  const node = document.createElement(tag);
+  for (const [key, value] of Object.entries(attributes)) {
+    if (value === null || value === undefined || value === false) continue;
+    if (key.startsWith('on')) node.addEventListener(key.slice(2), value);
+    else node.setAttribute(key, value === true ? '' : String(value));
+  }
+  for (const child of children.flat()) {
+    if (child === null || child === undefined) continue;
+    node.append(child instanceof Node ? child : document.createTextNode(String(child)));
+  }
+  return node;
+}
+
+/** About four significant digits, with a true minus sign. */
+function num(x, digits = 4) {
+  if (x === null || x === undefined || !Number.isFinite(x)) return '–';
+  if (x === 0) return '0';
+  const magnitude = Math.abs(x);
+  const text = magnitude >= 1e-3 && magnitude < 1e9 ? x.toFixed(Math.max(0, digits - 1 - Math.floor(Math.log10(magnitude)))) : x.toExponential(digits - 1);
+  return text.replace(/^-/, '−');
+}
+
+const count = (n) => (n === null || n === undefined ? '–' : Math.round(n).toLocaleString('en-US'));
+
+function seconds(s) {
+  if (!Number.isFinite(s)) return '–';
+  if (s < 1) return `${(s * 1000).toFixed(0)} ms`;
+  if (s < 120) return `${s.toFixed(1)} s`;
+  if (s < 7200) return `${(s / 60).toFixed(1)} min`;
+  return `${(s / 3600).toFixed(1)} h`;
+}
+
+const STATUS_TEXT = { done: 'done', running: 'running', queued: 'queued', interrupted: 'interrupted', failed: 'failed' };
+
+function badge(status) {
+  return el('span', { class: `badge badge-${status}` }, STATUS_TEXT[status] ?? status);
+}
+
+function progressBar(progress) {
+  if (!progress || !progress.total) return null;
+  const share = Math.min(1, progress.done / progress.total);
+  return el('span', { class: 'progress', title: `${count(progress.done)} of ${count(progress.total)} episodes` }, el('span', { style: `width:${(share * 100).toFixed(1)}%` }));
+}
+
+function showError(error) {
+  main.replaceChildren(el('p', { class: 'error', role: 'alert' }, error.message));
+}
+
+let cleanup = [];
+function onLeave(fn) {
+  cleanup.push(fn);
+}
+
+// ---- runs list ---------------------------------------------------------------------------
+
+const listState = { sort: 'created_at', descending: true, env: '', policy: '' };
+
+const COLUMNS = [
+  { key: 'id', label: 'run' },
+  { key: 'created_at', label: 'started' },
+  { key: 'env', label: 'environment' },
+  { key: 'policy', label: 'policy' },
+  { key: 'episodes', label: 'episodes' },
+  { key: 'mean', label: 'mean ± half-width' },
+  { key: 'status', label: 'status' },
+];
+
+function sortValue(row, key) {
+  if (key === 'mean') return row.summary?.mean ?? -Infinity;
+  return row[key] ?? '';
+}
+
+async function renderRunList() {
+  const rows = await api('/api/runs?limit=500');
+  const environments = [...new Set(rows.map((r) => r.env))].sort();
+  const filterEnv = el('select', { id: 'filter-env', 'aria-label': 'environment' }, el('option', { value: '' }, 'all environments'), environments.map((e) => el('option', { value: e, selected: e === listState.env }, e)));
+  const filterPolicy = el('input', { id: 'filter-policy', type: 'search', placeholder: 'policy contains…', value: listState.policy, 'aria-label': 'policy' });
+  const table = el('table', { class: 'runs', id: 'runs-table' });
+  const draw = (data) => {
+    const shown = data
+      .filter((r) => (!listState.env || r.env === listState.env) && (!listState.policy || r.policy.toLowerCase().includes(listState.policy.toLowerCase())))
+      .sort((a, b) => {
+        const x = sortValue(a, listState.sort);
+        const y = sortValue(b, listState.sort);
+        const order = x < y ? -1 : x > y ? 1 : 0;
+        return listState.descending ? -order : order;
+      });
+    const head = el('tr', {}, COLUMNS.map((c) => el('th', { scope: 'col', 'aria-sort': listState.sort === c.key ? (listState.descending ? 'descending' : 'ascending') : null },
+      el('button', { type: 'button', class: 'sort', onclick: () => { listState.descending = listState.sort === c.key ? !listState.descending : c.key === 'created_at'; listState.sort = c.key; draw(data); } },
+        c.label, listState.sort === c.key ? (listState.descending ? ' ▼' : ' ▲') : ''))));
+    const body = shown.map((r) => {
+      const link = r.kind === 'comparison' ? `#/comparisons/${r.id}` : `#/runs/${r.id}`;
+      const summary = r.summary;
+      const mean = r.kind === 'comparison' ? 'comparison' : summary?.mean !== undefined ? `${num(summary.mean)} ± ${num(summary.ci?.halfWidth ?? summary.ci?.half_width, 2)}` : r.progress?.mean != null ? `${num(r.progress.mean)} ± ${num(r.progress.half_width, 2)} (so far)` : '–';
+      const done = r.progress ? r.progress.done : r.episodes;
+      return el('tr', { 'data-id': r.id, 'data-status': r.status },
+        el('td', {}, el('a', { href: link }, r.id)),
+        el('td', {}, new Date(r.created_at).toLocaleString()),
+        el('td', {}, r.env),
+        el('td', {}, r.policy),
+        el('td', { class: 'number' }, `${count(done)} / ${count(r.episodes_requested)}`, r.status === 'running' ? progressBar(r.progress ?? { done, total: r.episodes_requested }) : null),
+        el('td', { class: 'number' }, mean),
+        el('td', {}, badge(r.status)));
+    });
+    table.replaceChildren(el('thead', {}, head), el('tbody', {}, body.length ? body : el('tr', {}, el('td', { colspan: COLUMNS.length }, 'No runs match.'))));
+  };
+  filterEnv.addEventListener('change', () => { listState.env = filterEnv.value; draw(rows); });
+  filterPolicy.addEventListener('input', () => { listState.policy = filterPolicy.value; draw(rows); });
+  draw(rows);
+  main.replaceChildren(
+    el('h1', {}, 'Stored runs'),
+    el('div', { class: 'filters' }, el('label', {}, 'Environment ', filterEnv), el('label', {}, 'Policy ', filterPolicy), el('a', { class: 'button', href: '#/new' }, 'Start an evaluation')),
+    rows.length ? table : el('p', {}, 'No runs yet. Run ', el('code', {}, 'npm start'), ' (the demo) or start an evaluation.'),
+  );
+  // Live progress: refresh while anything runs or waits.
+  if (rows.some((r) => r.status === 'running' || r.status === 'queued')) {
+    const timer = setTimeout(async () => {
+      try {
+        const fresh = await api('/api/runs?limit=500');
+        rows.splice(0, rows.length, ...fresh);
+        draw(rows);
+        if (rows.some((r) => r.status === 'running' || r.status === 'queued')) route();
+      } catch { /* the next navigation retries */ }
+    }, 1000);
+    onLeave(() => clearTimeout(timer));
+  }
+}
+
+// ---- one run -----------------------------------------------------------------------------
+
+function figureRows(run) {
+  const rows = [
+    ['mean return', num(run.mean)],
+    [`${(run.ci.level * 100).toFixed(0)}% interval (${run.ci.method})`, `${num(run.ci.low)} to ${num(run.ci.high)}  (± ${num(run.ci.half_width, 3)})`],
+    ['standard deviation', num(run.std)],
+    ['episodes', `${count(run.episodes)} of ${count(run.episodes_requested)}`],
+    ['seed', String(run.seed)],
+    ['start', run.start ?? 'start distribution'],
+    ['discount, horizon', `${run.discount}, ${count(run.horizon)} steps${run.horizon_derived ? ' (derived)' : ''}`],
+    ['truncation bound', run.truncation_bound === null ? 'none' : num(run.truncation_bound, 2)],
+    ['mean episode length', `${num(run.mean_length)} steps (longest ${count(run.longest_episode)})`],
+    ['rate', run.steps_per_second ? `${count(run.steps_per_second)} steps/s on ${run.workers} workers` : '–'],
+  ];
+  return el('table', { class: 'figures' }, el('tbody', {}, rows.map(([k, v]) => el('tr', {}, el('th', { scope: 'row' }, k), el('td', {}, v)))));
+}
+
+function projectionTable(run) {
+  if (!run.projection?.length) return null;
+  return el('table', { class: 'projection', id: 'projection' },
+    el('caption', {}, `Episodes for ±ε, and time at this machine's rate (${run.ci.method} interval)`),
+    el('thead', {}, el('tr', {}, el('th', { scope: 'col' }, '±ε'), el('th', { scope: 'col' }, 'episodes needed'), el('th', { scope: 'col' }, 'more episodes'), el('th', { scope: 'col' }, 'time'))),
+    el('tbody', {}, run.projection.map((row) => el('tr', {},
+      el('td', { class: 'number' }, num(row.half_width ?? row.halfWidth, 3)),
+      el('td', { class: 'number' }, count(row.episodes_needed ?? row.episodesNeeded)),
+      el('td', { class: 'number' }, count(row.more_episodes ?? row.moreEpisodes)),
+      el('td', { class: 'number' }, seconds(row.seconds))))));
+}
+
+async function plotInto(container, id, kind) {
+  try {
+    const spec = await api(`/api/runs/${encodeURIComponent(id)}/plots/${kind}`);
+    await drawPlot(container, spec);
+  } catch (error) {
+    if (error.status === 404) container.remove();
+    else container.replaceChildren(el('p', { class: 'error' }, `Could not draw the ${kind} plot: ${error.message}`));
+  }
+}
+
+async function renderRun(id) {
+  const run = await api(`/api/runs/${encodeURIComponent(id)}`);
+  const live = run.status === 'running' || run.status === 'queued';
+  const plots = el('div', { class: 'plots' },
+    el('figure', { class: 'plot', id: 'plot-convergence', 'data-kind': 'convergence' }),
+    el('figure', { class: 'plot', id: 'plot-histogram', 'data-kind': 'histogram' }),
+    el('figure', { class: 'plot', id: 'plot-lengths', 'data-kind': 'lengths' }),
+    el('figure', { class: 'plot', id: 'plot-value-map', 'data-kind': 'value-map' }));
+  const definitions = await api(`/api/runs/${encodeURIComponent(id)}/definitions`).catch(() => null);
+  main.replaceChildren(
+    el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
+    el('h1', {}, `${run.policy} on ${run.env} `, badge(run.status)),
+    live ? el('p', { id: 'live' }, progressLine(run.progress)) : null,
+    run.error ? el('p', { class: 'error' }, run.error) : null,
+    run.mean !== undefined ? el('div', { class: 'summary' }, figureRows(run), projectionTable(run)) : el('p', {}, 'No figures yet: fewer than two episodes are stored.'),
+    run.episodes >= 2 ? plots : null,
+    definitions ? el('details', { class: 'definitions' }, el('summary', {}, 'Definitions and seed'),
+      el('p', {}, `seed ${run.seed}; environment hash ${run.env_hash.slice(0, 12)}, policy hash ${run.policy_hash.slice(0, 12)}`),
+      el('h3', {}, run.env), el('pre', {}, JSON.stringify(definitions.env, null, 2)),
+      el('h3', {}, run.policy), el('pre', {}, JSON.stringify(definitions.policy, null, 2))) : null,
+  );
+  if (run.episodes >= 2) {
+    await Promise.all([...plots.children].map((figure) => plotInto(figure, id, figure.dataset.kind)));
+  }
+  if (live) followRun(id);
+}
+
+function progressLine(p) {
+  if (!p) return 'waiting in the queue…';
+  const mean = p.mean === null || p.mean === undefined ? '' : `, running mean ${num(p.mean)} ± ${num(p.half_width, 2)}`;
+  return [`${count(p.done)} of ${count(p.total)} episodes${mean}`, progressBar(p)];
+}
+
+/** Live progress from the server's event stream; the page redraws when the run ends. */
+function followRun(id) {
+  const source = new EventSource(eventsUrl(id));
+  let redraw = null;
+  source.addEventListener('progress', (event) => {
+    const p = JSON.parse(event.data);
+    const line = document.getElementById('live');
+    if (line) line.replaceChildren(...[progressLine(p)].flat().filter(Boolean));
+    // Redraw the plots now and then while it runs.
+    redraw ??= setTimeout(() => { redraw = null; if (location.hash === `#/runs/${id}`) route(); }, 4000);
+  });
+  source.addEventListener('end', () => {
+    source.close();
+    if (location.hash === `#/runs/${id}`) route();
+  });
+  onLeave(() => { source.close(); clearTimeout(redraw); });
+}
+
+// ---- comparisons -------------------------------------------------------------------------
+
+async function renderComparison(id) {
+  const c = await api(`/api/comparisons/${encodeURIComponent(id)}`);
+  const names = c.policies.map((p) => p.name);
+  const plot = el('figure', { class: 'plot', id: 'plot-differences' });
+  main.replaceChildren(
+    el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
+    el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
+    el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers).`),
+    el('h2', {}, 'Ranking'),
+    el('ol', { class: 'ranking' }, c.ranking.map((p) => el('li', {}, `${names[p]}: ${num(c.policies[p].mean)} (${num(c.policies[p].ci.low)} to ${num(c.policies[p].ci.high)})`))),
+    plot,
+    el('table', { class: 'figures' },
+      el('thead', {}, el('tr', {}, ['difference', 'mean', 'interval', 'adjusted p', 'variance reduction by pairing'].map((h) => el('th', { scope: 'col' }, h)))),
+      el('tbody', {}, c.differences.map((d) => el('tr', {},
+        el('td', {}, `${names[d.a]} − ${names[d.b]}`),
+        el('td', { class: 'number' }, num(d.mean)),
+        el('td', { class: 'number' }, `${num(d.low)} to ${num(d.high)}`),
+        el('td', { class: 'number' }, num(d.adjusted_p_value, 2)),
+        el('td', { class: 'number' }, d.variance_reduction === null ? '–' : `${num(d.variance_reduction, 3)}×`))))),
+  );
+  await drawPlot(plot, await api(`/api/comparisons/${encodeURIComponent(id)}/plot`));
+}
+
+// ---- new evaluation -----------------------------------------------------------------------
+
+async function renderForm() {
+  const examples = await api('/api/examples');
+  const environments = examples.filter((e) => e.role === 'environment');
+  const policies = examples.filter((e) => e.role === 'policy');
+  const messages = {};
+  const field = (name, label, control, hint) => {
+    messages[name] = el('span', { class: 'field-error', id: `error-${name}`, role: 'alert' });
+    return el('div', { class: 'field', 'data-field': name }, el('label', { for: control.id }, label), control, hint ? el('small', {}, hint) : null, messages[name]);
+  };
+  const definitionPicker = (name, list) => {
+    const select = el('select', { id: `${name}-choice` }, list.map((e) => el('option', { value: e.name }, e.name)), el('option', { value: '' }, 'paste my own…'));
+    const text = el('textarea', { id: `${name}-json`, rows: 10, spellcheck: 'false' });
+    const fill = () => {
+      const chosen = list.find((e) => e.name === select.value);
+      if (chosen) text.value = JSON.stringify(chosen.definition, null, 2);
+    };
+    select.addEventListener('change', fill);
+    fill();
+    return { select, text };
+  };
+  const env = definitionPicker('env', environments);
+  const policy = definitionPicker('policy', policies);
+  const preferred = policies.find((p) => p.name === 'picker-careful.json');
+  if (preferred) { policy.select.value = preferred.name; policy.text.value = JSON.stringify(preferred.definition, null, 2); }
+  const episodes = el('input', { id: 'episodes', type: 'number', min: 2, value: 10000 });
+  const seed = el('input', { id: 'seed', type: 'number', min: 0, placeholder: 'random' });
+  const confidence = el('input', { id: 'confidence', type: 'number', step: 'any', value: 0.95 });
+  const ci = el('select', { id: 'ci' }, ['t', 'normal', 'bootstrap', 'bootstrap-percentile', 'hoeffding', 'bernstein'].map((m) => el('option', { value: m }, m)));
+  const targetError = el('input', { id: 'target_error', type: 'number', step: 'any', min: 0, placeholder: 'none' });
+  const submit = el('button', { type: 'submit', id: 'submit' }, 'Start');
+  const status = el('p', { id: 'form-status', role: 'status' });
+  const form = el('form', { id: 'evaluation-form', novalidate: true },
+    el('div', { class: 'columns' },
+      field('env', 'Environment', env.text, el('span', {}, 'bundled: ', env.select)),
+      field('policy', 'Policy', policy.text, el('span', {}, 'bundled: ', policy.select))),
+    el('div', { class: 'row' },
+      field('episodes', 'Episodes', episodes, 'with a target error: the most to run'),
+      field('seed', 'Seed', seed, 'empty: chosen at random and shown'),
+      field('confidence', 'Confidence', confidence),
+      field('ci', 'Interval', ci),
+      field('target_error', 'Target half-width', targetError, 'run until the interval is this narrow')),
+    submit, status);
+  form.addEventListener('submit', async (event) => {
+    event.preventDefault();
+    for (const m of Object.values(messages)) m.textContent = '';
+    status.textContent = '';
+    const body = { env_name: env.select.value || undefined, policy_name: policy.select.value || undefined };
+    for (const [name, picker] of [['env', env], ['policy', policy]]) {
+      try {
+        body[name] = JSON.parse(picker.text.value);
+      } catch (error) {
+        messages[name].textContent = `not JSON: ${error.message}`;
+        return;
+      }
+    }
+    const numbers = { episodes, seed, confidence, target_error: targetError };
+    for (const [name, input] of Object.entries(numbers)) if (input.value.trim() !== '') body[name] = Number(input.value);
+    if (body.target_error !== undefined) delete body.episodes;
+    if (ci.value !== 't') body.ci = ci.value;
+    submit.disabled = true;
+    try {
+      const started = await api('/api/evaluations', { method: 'POST', body: JSON.stringify(body) });
+      location.hash = `#/runs/${started.id}`;
+    } catch (error) {
+      const where = error.field && messages[error.field] ? messages[error.field] : status;
+      where.textContent = error.message;
+      status.textContent ||= error.status === 429 ? '' : 'Not started: see the message above.';
+    } finally {
+      submit.disabled = false;
+    }
+  });
+  main.replaceChildren(el('h1', {}, 'Start an evaluation'),
+    el('p', {}, 'Definitions as in the files (README, "Definition files"); code modules and file paths are not accepted here.'), form);
+}
+
+// ---- routing --------------------------------------------------------------------------------
+
+async function route() {
+  for (const fn of cleanup.splice(0)) fn();
+  const hash = location.hash || '#/';
+  try {
+    let match;
+    if ((match = hash.match(/^#\/runs\/([\w-]+)$/))) await renderRun(match[1]);
+    else if ((match = hash.match(/^#\/comparisons\/([\w-]+)$/))) await renderComparison(match[1]);
+    else if (hash === '#/new') await renderForm();
+    else await renderRunList();
+  } catch (error) {
+    showError(error);
+  }
+}
+
+window.addEventListener('hashchange', route);
+route();
