@@ -22,6 +22,7 @@ Usage:
   reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--json]
   reckon runs show ID [--ci METHOD] [--confidence L] [--json]
   reckon runs export ID --format csv|json [--out FILE]
+  reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]
   reckon runs resume ID [--workers K] [--json]
   reckon runs delete ID
   reckon runs merge DB... [--into DB]
@@ -33,6 +34,8 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
   show     the estimate's report recomputed from the stored returns; --ci and --confidence
            re-analyse them without new episodes
   export   every episode's return and length, for a notebook or a spreadsheet
+  plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
+           returns, lengths, or value-map (gridworlds)
   resume   continue an interrupted run (Ctrl-C, a crash, a killed job) from its last
            committed episode; the result equals an uninterrupted run's
   delete   remove a run and its episodes
@@ -88,6 +91,8 @@ export async function run(args: string[]): Promise<number> {
       return show(rest);
     case 'export':
       return exportRun(rest);
+    case 'plot':
+      return (await import('./runs-plot.js')).plot(rest, HELP);
     case 'resume':
       return resume(rest);
     case 'delete':
@@ -95,7 +100,7 @@ export async function run(args: string[]): Promise<number> {
     case 'merge':
       return merge(rest);
     default:
-      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, export, resume, delete or merge (see 'reckon runs --help')`);
+      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, export, plot, resume, delete or merge (see 'reckon runs --help')`);
   }
 }
 

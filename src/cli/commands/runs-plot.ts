@@ -1,0 +1,57 @@
+import { writeFileSync } from 'node:fs';
+import { InputError } from '../../errors.js';
+import { exactForRun } from '../../report/plots/exact-for-run.js';
+import { RUN_PLOT_KINDS, runPlotSpec, type RunPlotKind } from '../../report/plots/run-plots.js';
+import { renderSvg } from '../../report/plots/svg.js';
+import { defaultStorePath } from '../../store/location.js';
+import { openStore } from '../../store/open.js';
+import { getRun, loadEpisodes } from '../../store/runs.js';
+import { parseCommandArgs } from '../args.js';
+import { parseOption } from '../options.js';
+
+/**
+ * `reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]`: the
+ * page's plot of a stored run as an SVG file, for papers and reports.
+ */
+export async function plot(args: string[], help: string): Promise<number> {
+  const { values, positionals } = parseCommandArgs(
+    'runs',
+    args,
+    { store: { type: 'string' }, out: { type: 'string' }, kind: { type: 'string' }, confidence: { type: 'string' } },
+    true,
+  );
+  if (values.help) {
+    process.stdout.write(help);
+    return 0;
+  }
+  if (positionals.length !== 1) throw new InputError('runs plot', `needs exactly one run id (got ${positionals.length}); see the ids with 'reckon runs list'`);
+  if (!values.out) throw new InputError('--out', 'is required: the SVG file to write, e.g. --out convergence.svg');
+  const kind = (values.kind ?? 'convergence') as RunPlotKind;
+  if (!RUN_PLOT_KINDS.includes(kind)) throw new InputError('--kind', `must be one of ${RUN_PLOT_KINDS.join(', ')} (got "${values.kind}")`);
+  const storePath = values.store ?? defaultStorePath();
+  const db = openStore(storePath, { readonly: true });
+  let svg: string;
+  try {
+    const run = getRun(db, positionals[0], storePath);
+    if (run.kind !== 'estimate') throw new InputError(`run ${run.id}`, `is a ${run.kind} run; plot one of its member runs (reckon runs list --json shows them)`);
+    const level = values.confidence === undefined ? ((run.options as { level?: number }).level ?? 0.95) : parseOption('confidence', 'confidence', values.confidence);
+    const { returns, lengths } = loadEpisodes(db, run);
+    if (returns.length < 2) throw new InputError(`run ${run.id}`, `has ${returns.length} stored episode(s), too few to plot`);
+    const exact =
+      kind === 'convergence' || kind === 'value-map'
+        ? await exactForRun(
+            { json: run.env.json, source: { label: run.env.label, baseDir: run.env.baseDir } },
+            { json: run.policy.json, source: { label: run.policy.label, baseDir: run.policy.baseDir } },
+            run.start,
+          )
+        : null;
+    const spec = runPlotSpec(kind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact });
+    if (spec === null) throw new InputError('--kind', `value-map needs a gridworld run whose policy has known probabilities (run ${run.id} has none)`);
+    svg = await renderSvg(spec);
+  } finally {
+    db.close();
+  }
+  writeFileSync(values.out, svg);
+  process.stdout.write(`Wrote the ${kind} plot of run ${positionals[0]} to ${values.out}.\n`);
+  return 0;
+}
