@@ -4,7 +4,9 @@ import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 import { InputError } from '../errors.js';
 import { newBlock, type EpisodeBlock } from './episode-block.js';
-import { prepareRollout } from './prepare.js';
+import { prepareRollout, type PreparedRollout } from './prepare.js';
+import { rolloutTables } from './finite-rollout.js';
+import type { TableWorkerData } from './table-worker.js';
 import type { RolloutSpec } from './spec.js';
 import type { FromWorker } from './worker-messages.js';
 
@@ -12,7 +14,7 @@ export interface RunOptions {
   /** First episode index (a resumed or sharded run starts later). */
   readonly first: number;
   readonly count: number;
-  /** Worker threads; 1 runs in this thread. */
+  /** Threads that run episodes, this one included; 1 runs everything in this thread. */
   readonly workers: number;
   /** Called with every block, in episode order, exactly once each. */
   readonly onBlock: (block: EpisodeBlock, steps: number) => void;
@@ -20,11 +22,20 @@ export interface RunOptions {
   readonly signal?: AbortSignal;
   /** Wall-clock seconds a block should take (sets its size; never affects results). */
   readonly blockSeconds?: number;
+  /** The spec already prepared by the caller (`prepareRollout(spec)`), so it is not parsed again. */
+  readonly prepared?: PreparedRollout;
+  /**
+   * Whether this thread runs blocks too (default true): with K workers, this thread and K − 1
+   * worker threads. A caller whose event loop must stay responsive (a server) passes false
+   * and gets K worker threads.
+   */
+  readonly callerRuns?: boolean;
 }
 
 export interface RunOutcome {
   readonly episodes: number;
   readonly steps: number;
+  /** Seconds from the first episode to the last (excluding preparing the spec). */
   readonly seconds: number;
 }
 
@@ -39,8 +50,16 @@ export function defaultWorkers(): number {
  */
 export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promise<RunOutcome> {
   const workers = Math.max(1, Math.min(options.workers, Math.ceil(options.count / 64) || 1));
-  return workers === 1 ? runInline(spec, options) : runThreaded(spec, options, workers);
+  const callerRuns = options.callerRuns ?? true;
+  const prepared = callerRuns || workers === 1 || isFiniteSpec(spec) ? (options.prepared ?? (await prepareRollout(spec))) : null;
+  if (workers === 1 && prepared) return runInline(prepared, options);
+  return runThreaded(spec, prepared, options, workers, callerRuns);
 }
+
+const MIN_BLOCK = 16;
+const MAX_BLOCK = 65536;
+/** Block length for this thread when it shares the work with worker threads. */
+const CALLER_BLOCK_SECONDS = 0.02;
 
 /** Chooses block sizes so a block takes about `target` seconds, within [16, 65536] episodes. */
 class BlockSizer {
@@ -48,16 +67,20 @@ class BlockSizer {
   constructor(private readonly target: number) {}
   observe(count: number, seconds: number): void {
     if (seconds <= 0) {
-      this.size = Math.min(65536, this.size * 4);
+      this.size = Math.min(MAX_BLOCK, this.size * 4);
       return;
     }
     const ideal = (count / seconds) * this.target;
-    this.size = Math.max(16, Math.min(65536, Math.round(Math.min(ideal, this.size * 4))));
+    this.size = Math.max(MIN_BLOCK, Math.min(MAX_BLOCK, Math.round(Math.min(ideal, this.size * 4))));
   }
 }
 
-async function runInline(spec: RolloutSpec, options: RunOptions): Promise<RunOutcome> {
-  const prepared = await prepareRollout(spec);
+/** Lets signals, timers, worker messages and progress output through between blocks. */
+function yieldToEventLoop(): Promise<void> {
+  return new Promise<void>((resolve) => setImmediate(resolve));
+}
+
+async function runInline(prepared: PreparedRollout, options: RunOptions): Promise<RunOutcome> {
   const started = performance.now();
   const sizer = new BlockSizer(options.blockSeconds ?? 0.1);
   const end = options.first + options.count;
@@ -72,17 +95,39 @@ async function runInline(spec: RolloutSpec, options: RunOptions): Promise<RunOut
     steps += blockSteps;
     next += count;
     options.onBlock(block, blockSteps);
-    // Let signals, timers and progress output through between blocks.
-    await new Promise<void>((resolve) => setImmediate(resolve));
+    await yieldToEventLoop();
   }
   return { episodes: next - options.first, steps, seconds: (performance.now() - started) / 1000 };
 }
 
-function workerUrl(): string {
+function workerUrl(file: string): string {
   const here = fileURLToPath(import.meta.url);
   // Under the test runner this file is TypeScript source; workers always run the compiled build.
-  if (here.endsWith('.ts')) return path.resolve(path.dirname(here), '../../dist/engine/worker.js');
-  return path.join(path.dirname(here), 'worker.js');
+  if (here.endsWith('.ts')) return path.resolve(path.dirname(here), '../../dist/engine', file);
+  return path.join(path.dirname(here), file);
+}
+
+function isFiniteSpec(spec: RolloutSpec): boolean {
+  return (spec.env.json as { kind?: unknown } | null)?.kind !== 'module';
+}
+
+/**
+ * What the worker threads run. A finite MDP with a tabulated policy, compiled once in this
+ * thread, goes to light workers (table-worker.ts) as its tables: they skip the definitions
+ * layer and start in milliseconds. Anything else (code environments or policies) is
+ * prepared by each worker from the spec (worker.ts).
+ */
+function workerEntry(spec: RolloutSpec, prepared: PreparedRollout | null): { url: string; data: unknown } {
+  if (prepared && prepared.env.kind === 'finite' && prepared.policy.kind === 'matrix') {
+    const data: TableWorkerData = {
+      mdp: rolloutTables(prepared.env.mdp),
+      policy: prepared.policy.matrix,
+      seed: spec.seed,
+      start: prepared.startIndex,
+    };
+    return { url: workerUrl('table-worker.js'), data };
+  }
+  return { url: workerUrl('worker.js'), data: spec };
 }
 
 function rebuildError(message: Extract<FromWorker, { type: 'error' }>): Error {
@@ -94,80 +139,123 @@ function rebuildError(message: Extract<FromWorker, { type: 'error' }>): Error {
   return error;
 }
 
-function runThreaded(spec: RolloutSpec, options: RunOptions, workerCount: number): Promise<RunOutcome> {
-  return new Promise<RunOutcome>((resolve, reject) => {
-    const started = performance.now();
-    const end = options.first + options.count;
-    const sizer = new BlockSizer(options.blockSeconds ?? 0.1);
-    const pending = new Map<number, { block: EpisodeBlock; steps: number }>();
-    const threads: Worker[] = [];
-    const issuedAt = new Map<Worker, number>();
-    let next = options.first;
-    let delivered = options.first;
-    let steps = 0;
-    let running = 0;
-    let failed = false;
+/**
+ * Several threads. Unless `callerRuns` is false, this thread runs blocks too, between turns
+ * of its event loop: it starts at once, while the worker threads are still starting, and no
+ * core idles on a thread that only collects results. Each worker thread keeps two blocks in
+ * hand, so it never waits for this thread to answer. Near the end blocks shrink, so that all
+ * threads finish together.
+ */
+async function runThreaded(
+  spec: RolloutSpec,
+  prepared: PreparedRollout | null,
+  options: RunOptions,
+  workerCount: number,
+  callerRuns: boolean,
+): Promise<RunOutcome> {
+  const started = performance.now();
+  const end = options.first + options.count;
+  const blockSeconds = options.blockSeconds ?? 0.1;
+  const entry = workerEntry(spec, prepared);
+  const pending = new Map<number, { block: EpisodeBlock; steps: number }>();
+  const threads: Worker[] = [];
+  let next = options.first;
+  let delivered = options.first;
+  let steps = 0;
+  let inFlight = 0;
+  let failure: Error | null = null;
+  let wake: (() => void) | null = null;
 
-    const finishIfDone = () => {
-      if (running > 0) return;
-      if (next < end && !options.signal?.aborted && !failed) return;
-      for (const t of threads) void t.terminate();
-      if (!failed) resolve({ episodes: delivered - options.first, steps, seconds: (performance.now() - started) / 1000 });
-    };
-
-    const fail = (error: Error) => {
-      if (failed) return;
-      failed = true;
-      for (const t of threads) void t.terminate();
-      reject(error);
-    };
-
-    const issue = (worker: Worker) => {
-      if (failed || options.signal?.aborted || next >= end) {
-        finishIfDone();
-        return;
-      }
-      const count = Math.min(sizer.size, end - next);
-      issuedAt.set(worker, performance.now());
-      worker.postMessage({ type: 'run', first: next, count });
-      next += count;
-      running++;
-    };
-
-    const deliver = () => {
+  const stopped = () => failure !== null || options.signal?.aborted === true;
+  /** The next range of episodes for a thread whose blocks should be `size` long, or null when none is left. */
+  const take = (size: number): { first: number; count: number } | null => {
+    if (stopped() || next >= end) return null;
+    const remaining = end - next;
+    const count = Math.min(size, remaining, Math.max(MIN_BLOCK, Math.ceil(remaining / (2 * workerCount))));
+    const first = next;
+    next += count;
+    return { first, count };
+  };
+  const fail = (error: Error) => {
+    failure ??= error;
+    wake?.();
+  };
+  const accept = (block: EpisodeBlock, blockSteps: number) => {
+    pending.set(block.first, { block, steps: blockSteps });
+    try {
       for (let item = pending.get(delivered); item; item = pending.get(delivered)) {
         pending.delete(delivered);
         delivered += item.block.count;
         steps += item.steps;
         options.onBlock(item.block, item.steps);
       }
-    };
-
-    for (let w = 0; w < workerCount; w++) {
-      const worker = new Worker(workerUrl(), { workerData: spec });
-      threads.push(worker);
-      worker.on('message', (message: FromWorker) => {
-        if (message.type === 'ready') {
-          issue(worker);
-        } else if (message.type === 'block') {
-          running--;
-          const t0 = issuedAt.get(worker) ?? performance.now();
-          sizer.observe(message.count, (performance.now() - t0) / 1000);
-          const block: EpisodeBlock = { first: message.first, count: message.count, returns: message.returns, lengths: message.lengths };
-          pending.set(message.first, { block, steps: message.steps });
-          try {
-            deliver();
-          } catch (e) {
-            fail(e as Error);
-            return;
-          }
-          issue(worker);
-        } else {
-          fail(rebuildError(message));
-        }
-      });
-      worker.on('error', (e) => fail(e));
+    } catch (e) {
+      fail(e as Error);
     }
-    options.signal?.addEventListener('abort', () => finishIfDone());
-  });
+  };
+
+  // Worker threads size their blocks by the time between arrivals of their results. Those
+  // wait in the queue while this thread runs a block, so this thread runs short blocks: the
+  // arrival times stay accurate (and the threads are never kept waiting) for the cost of a
+  // few more turns of the event loop.
+  const callerSizer = new BlockSizer(Math.min(blockSeconds, CALLER_BLOCK_SECONDS));
+  for (let w = callerRuns ? 1 : 0; w < workerCount; w++) {
+    const worker = new Worker(entry.url, { workerData: entry.data });
+    const sizer = new BlockSizer(blockSeconds);
+    let lastArrival = 0;
+    const issue = () => {
+      const range = take(sizer.size);
+      if (!range) return;
+      worker.postMessage({ type: 'run', first: range.first, count: range.count });
+      inFlight++;
+    };
+    worker.on('message', (message: FromWorker) => {
+      if (message.type === 'ready') {
+        lastArrival = performance.now();
+        issue();
+        issue();
+      } else if (message.type === 'block') {
+        inFlight--;
+        // With a second block always queued, the time between arrivals is one block's work.
+        const now = performance.now();
+        sizer.observe(message.count, (now - lastArrival) / 1000);
+        lastArrival = now;
+        accept({ first: message.first, count: message.count, returns: message.returns, lengths: message.lengths }, message.steps);
+        issue();
+        wake?.();
+      } else {
+        fail(rebuildError(message));
+      }
+    });
+    worker.on('error', (e) => fail(e));
+    threads.push(worker);
+  }
+
+  const onAbort = () => wake?.();
+  options.signal?.addEventListener('abort', onAbort);
+  try {
+    const sizer = callerSizer;
+    for (;;) {
+      if (failure) throw failure;
+      const range = callerRuns && prepared ? take(sizer.size) : null;
+      if (range) {
+        const block = newBlock(range.first, range.count);
+        const t0 = performance.now();
+        const blockSteps = prepared!.runBlock(block);
+        sizer.observe(range.count, (performance.now() - t0) / 1000);
+        accept(block, blockSteps);
+        await yieldToEventLoop();
+      } else if (inFlight > 0 || (!stopped() && next < end)) {
+        // Blocks are still running on other threads, or (callerRuns false) threads are starting.
+        await new Promise<void>((resolve) => (wake = resolve));
+        wake = null;
+      } else {
+        break;
+      }
+    }
+  } finally {
+    options.signal?.removeEventListener('abort', onAbort);
+    for (const t of threads) void t.terminate();
+  }
+  return { episodes: delivered - options.first, steps, seconds: (performance.now() - started) / 1000 };
 }

@@ -35,11 +35,23 @@ function hi32(n: number): number {
 
 /** Re-seeds `rng` in place for (seed, stream, episode); seed and episode below 2^53, stream below 256. */
 export function seedStream(rng: Xoshiro128, seed: number, stream: number, episode: number): void {
+  streamWords(seed, stream, episode, scratch);
+  rng.setState(scratch[0], scratch[1], scratch[2], scratch[3]);
+}
+
+const scratch = new Int32Array(4);
+
+/**
+ * The four state words of the generator for (seed, stream, episode), written into `into`
+ * (as signed 32-bit words): what {@link seedStream} installs. Rollout loops that keep the
+ * generator's state in local variables seed from here.
+ */
+export function streamWords(seed: number, stream: number, episode: number, into: Int32Array): void {
   // One-to-one packing: the high words of seed and episode have at most 21 bits.
-  let a = seed >>> 0;
-  let b = (hi32(seed) | (stream << 24)) >>> 0;
-  let c = episode >>> 0;
-  let d = (hi32(episode) ^ 0x9e3779b9) >>> 0;
+  let a = seed | 0;
+  let b = hi32(seed) | (stream << 24);
+  let c = episode | 0;
+  let d = hi32(episode) ^ 0x9e3779b9;
   // Two rounds of invertible mixing: every output word depends on every input bit.
   for (let round = 0; round < 2; round++) {
     b ^= mix32(a ^ 0x6a09e667);
@@ -47,7 +59,12 @@ export function seedStream(rng: Xoshiro128, seed: number, stream: number, episod
     d ^= mix32(c ^ 0x3c6ef372);
     a ^= mix32(d ^ 0xa54ff53a);
   }
-  rng.setState(a, b, c, d);
+  // An all-zero state is a fixed point of the generator; replaced as Xoshiro128.setState does.
+  if ((a | b | c | d) === 0) d = 1;
+  into[0] = a;
+  into[1] = b;
+  into[2] = c;
+  into[3] = d;
 }
 
 /** A new generator for (seed, stream, episode): for one-off uses such as bootstrap resampling. */

@@ -1,0 +1,127 @@
+#!/usr/bin/env node
+// `npm run bench`: the engine against a plain C loop and a naive JavaScript loop on the same
+// workloads and episode counts, plus scaling, memory, storage and start-up. Every trial runs
+// in a fresh child process (trial.mjs) and is repeated; tables show medians, and the same
+// figures (with every repeat) are written as JSON to bench-results/.
+//
+// Usage: npm run build && node scripts/bench/index.mjs [--repeats 3] [--only workload,states,...]
+// Groups: workload, states, horizon, memory, store, startup.
+import { execFileSync } from 'node:child_process';
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import { availableParallelism, cpus, loadavg, totalmem, type as osType, release } from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { parseArgs } from 'node:util';
+
+const HERE = path.dirname(fileURLToPath(import.meta.url));
+const ROOT = path.resolve(HERE, '../..');
+
+const { values: args } = parseArgs({
+  options: { repeats: { type: 'string', default: '3' }, only: { type: 'string' }, out: { type: 'string', default: path.join(ROOT, 'bench-results') } },
+});
+const repeats = Number(args.repeats);
+if (!(Number.isInteger(repeats) && repeats >= 1)) throw new Error(`bench: --repeats must be a positive integer, got ${args.repeats}`);
+if (!existsSync(path.join(ROOT, 'dist', 'engine', 'pool.js'))) {
+  console.error('bench: dist/ is missing; run `npm run build` first');
+  process.exit(2);
+}
+
+// Imported after the check above: they load the compiled engine.
+const { prepareWorkloads } = await import('./workloads.mjs');
+const { buildTrials, STATE_COUNTS, HORIZONS } = await import('./trials.mjs');
+const { compiledMdp, randomMdpRows, uniformPolicyMatrix } = await import('./random-mdp.mjs');
+const { writeFiniteMdp } = await import('./export-mdp.mjs');
+const report = await import('./report.mjs');
+
+const began = performance.now();
+const outDir = path.resolve(args.out);
+const scratch = path.join(outDir, 'workloads');
+mkdirSync(scratch, { recursive: true });
+
+/** Compiles rollout.c with the machine's cc; null (and a note) when there is no compiler. */
+function compileC() {
+  const binary = path.join(outDir, 'rollout-c');
+  try {
+    execFileSync('cc', ['-O2', '-ffp-contract=off', '-o', binary, path.join(HERE, 'rollout.c')], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const version = execFileSync('cc', ['--version'], { encoding: 'utf8' }).split('\n')[0];
+    return { binary, note: `cc -O2 -ffp-contract=off (${version})` };
+  } catch (e) {
+    return { binary: null, note: `C loop skipped: could not compile with cc (${e.code === 'ENOENT' ? 'no cc on this machine' : String(e.stderr ?? e.message).trim().split('\n')[0]})` };
+  }
+}
+
+/** The random MDPs of the scaling trials, as exported tables (reused while their recipe is unchanged). */
+function scalingTables() {
+  const states = {};
+  for (const n of STATE_COUNTS) {
+    const file = path.join(scratch, `states-${n}-v1.mdp`);
+    if (!existsSync(file)) writeFiniteMdp(file, compiledMdp(randomMdpRows({ states: n, terminalChance: 0.008, seed: 2024 }), { discount: 0.99, horizon: 400 }), uniformPolicyMatrix(n, 4));
+    states[n] = file;
+  }
+  const horizons = {};
+  const endless = randomMdpRows({ states: 400, terminals: 0, terminalChance: 0, seed: 2024 });
+  for (const h of HORIZONS) {
+    const file = path.join(scratch, `endless-400-h${h}-v1.mdp`);
+    if (!existsSync(file)) writeFiniteMdp(file, compiledMdp(endless, { discount: 0.99, horizon: h }), uniformPolicyMatrix(400, 4));
+    horizons[h] = file;
+  }
+  return { states, horizons };
+}
+
+function runTrial(trial) {
+  try {
+    const out = execFileSync(process.execPath, [path.join(HERE, 'trial.mjs'), JSON.stringify(trial.run)], {
+      encoding: 'utf8',
+      stdio: ['ignore', 'pipe', 'pipe'],
+      timeout: 120_000,
+    });
+    return JSON.parse(out.trim().split('\n').pop());
+  } catch (e) {
+    // The error's own line (not Node's stack and version footer) is what says what went wrong.
+    const lines = String(e.stderr || e.message).split('\n').map((l) => l.trim()).filter(Boolean);
+    return { error: lines.find((l) => /Error|error:/.test(l)) ?? lines[0] ?? 'no output' };
+  }
+}
+
+const cores = availableParallelism();
+const c = compileC();
+const prepared = await prepareWorkloads(scratch);
+const scaling = scalingTables();
+const groups = args.only ? new Set(args.only.split(',')) : null;
+const trials = buildTrials({ prepared, scaling, cores, binary: c.binary, root: ROOT }).filter((t) => !groups || groups.has(t.group));
+const loadBefore = loadavg();
+console.error(`bench: ${trials.length} trials x ${repeats} repeats, each in a fresh process (set-up took ${((performance.now() - began) / 1000).toFixed(1)} s)`);
+
+// Repeats are interleaved (every trial once, then again), so a noisy spell hits all trials alike.
+for (const t of trials) t.runs = [];
+for (let r = 0; r < repeats; r++) {
+  for (const t of trials) {
+    t.runs.push(runTrial(t));
+    // Start-up is cheap and the noisiest: twice the repeats.
+    if (t.group === 'startup') t.runs.push(runTrial(t));
+  }
+  console.error(`bench: repeat ${r + 1}/${repeats} done at ${((performance.now() - began) / 1000).toFixed(0)} s`);
+}
+
+const machine = {
+  date: new Date().toISOString(),
+  cpu: cpus()[0]?.model ?? 'unknown',
+  cores,
+  memoryGb: Math.round(totalmem() / 2 ** 30),
+  os: `${osType()} ${release()}`,
+  node: process.version,
+  c: c.note,
+  loadAverageBefore: loadBefore.map((x) => Number(x.toFixed(2))),
+  loadAverageAfter: loadavg().map((x) => Number(x.toFixed(2))),
+  repeats,
+  seconds: Number(((performance.now() - began) / 1000).toFixed(1)),
+};
+const summary = report.summarise(trials, prepared, machine);
+const text = report.render(summary);
+process.stdout.write(text);
+const stamp = machine.date.replace(/[:.]/g, '-');
+const json = JSON.stringify({ machine, summary, trials: trials.map(({ run, ...rest }) => ({ ...rest, run })) }, null, 2);
+writeFileSync(path.join(outDir, `bench-${stamp}.json`), json);
+writeFileSync(path.join(outDir, 'bench-latest.json'), json);
+writeFileSync(path.join(outDir, 'bench-latest.md'), text);
+console.error(`bench: wrote ${path.relative(process.cwd(), path.join(outDir, 'bench-latest.json'))} and bench-latest.md (${machine.seconds} s in all)`);

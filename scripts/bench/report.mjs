@@ -1,0 +1,237 @@
+// Turns the benchmark's raw runs into medians, ratios and goal checks (summarise), and those
+// into Markdown tables (render) that can go into the README as they are.
+
+export function median(values) {
+  const sorted = values.filter((v) => Number.isFinite(v)).sort((a, b) => a - b);
+  if (sorted.length === 0) return NaN;
+  const mid = sorted.length >> 1;
+  return sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+}
+
+const ok = (runs) => runs.filter((r) => !r.error);
+const rate = (runs, f) => median(ok(runs).map(f));
+
+function find(trials, where) {
+  return trials.find((t) => Object.entries(where).every(([k, v]) => t[k] === v)) ?? null;
+}
+
+/** Median steps per second, episodes per second, peak memory and the checksums of a trial's runs. */
+function throughput(trial) {
+  if (!trial) return null;
+  const good = ok(trial.runs);
+  if (good.length === 0) return { error: trial.runs[0]?.error ?? 'no runs' };
+  const first = good[0];
+  return {
+    stepsPerSecond: rate(good, (r) => r.steps / r.seconds),
+    episodesPerSecond: rate(good, (r) => r.episodes / r.seconds),
+    stepsPerCpuSecond: rate(good, (r) => r.steps / r.cpuSeconds),
+    seconds: median(good.map((r) => r.seconds)),
+    peakMb: median(good.map((r) => r.maxRssMb)),
+    episodes: first.episodes,
+    steps: first.steps,
+    meanReturn: first.sum / first.episodes,
+    hashes: [...new Set(good.map((r) => r.hash))],
+    runs: trial.runs.length,
+    failed: trial.runs.length - good.length,
+  };
+}
+
+/**
+ * Per-episode and per-step cost from two workloads that differ only in episode length
+ * (b: H 400, c: H 10, same MDP and policy): time = episodes·perEpisode + steps·perStep.
+ */
+function splitCosts(long, short) {
+  if (!long || !short || long.error || short.error) return null;
+  const [e1, s1, t1] = [long.episodes, long.steps, long.seconds];
+  const [e2, s2, t2] = [short.episodes, short.steps, short.seconds];
+  const det = e1 * s2 - e2 * s1;
+  const perEpisode = (t1 * s2 - t2 * s1) / det;
+  const perStep = (e1 * t2 - e2 * t1) / det;
+  return { perEpisodeNs: perEpisode * 1e9, perStepNs: perStep * 1e9, overheadShare: (e2 * perEpisode) / t2 };
+}
+
+export function summarise(trials, prepared, machine) {
+  const workloads = prepared.map((w) => {
+    const pick = (runnerLabel) => throughput(find(trials, { group: 'workload', workload: w.id, runnerLabel }));
+    const engine1 = pick('engine-1');
+    const engineAll = pick('engine-all');
+    const c = pick('c');
+    const naive = pick('naive');
+    const hashes = [engine1, engineAll, c, naive].filter((x) => x && !x.error).flatMap((x) => x.hashes);
+    return {
+      id: w.id,
+      title: w.title,
+      episodes: w.episodes,
+      reference: w.reference,
+      engine1,
+      engineAll,
+      c,
+      naive,
+      allWorkersOverOne: engineAll && engine1 ? engineAll.stepsPerSecond / engine1.stepsPerSecond : NaN,
+      engineOverC: c && engine1 ? engine1.stepsPerSecond / c.stepsPerSecond : NaN,
+      engineOverCPerCpuSecond: c && engine1 ? engine1.stepsPerCpuSecond / c.stepsPerCpuSecond : NaN,
+      engineOverNaive: naive && engine1 ? engine1.stepsPerSecond / naive.stepsPerSecond : NaN,
+      identical: hashes.length > 0 ? new Set(hashes).size === 1 : null,
+    };
+  });
+  const byId = Object.fromEntries(workloads.map((w) => [w.id, w]));
+  for (const w of workloads) {
+    const ref = w.reference ? byId[w.reference] : null;
+    w.overReference = ref && w.engine1 && ref.engine1 ? w.engine1.stepsPerSecond / ref.engine1.stepsPerSecond : NaN;
+  }
+
+  const costs = {
+    engine: splitCosts(byId.b?.engine1, byId.c?.engine1),
+    c: splitCosts(byId.b?.c, byId.c?.c),
+  };
+
+  const scalingRows = (group, sizes) =>
+    sizes.map((size) => {
+      const engine = throughput(find(trials, { group, size, runnerLabel: 'engine-1' }));
+      const c = throughput(find(trials, { group, size, runnerLabel: 'c' }));
+      const nsPerStep = (x) => (x && !x.error ? 1e9 / x.stepsPerSecond : NaN);
+      const nsPerEpisode = (x) => (x && !x.error ? 1e9 / x.episodesPerSecond : NaN);
+      return {
+        size,
+        stepsPerEpisode: engine && !engine.error ? engine.steps / engine.episodes : NaN,
+        engineNsPerStep: nsPerStep(engine),
+        engineNsPerEpisode: nsPerEpisode(engine),
+        cNsPerStep: nsPerStep(c),
+        engineOverC: nsPerStep(c) / nsPerStep(engine),
+        identical: engine && c && !engine.error && !c.error ? engine.hashes[0] === c.hashes[0] : null,
+      };
+    });
+  const sizesOf = (group) => [...new Set(trials.filter((t) => t.group === group).map((t) => t.size))];
+  const states = scalingRows('states', sizesOf('states'));
+  const horizons = scalingRows('horizon', sizesOf('horizon'));
+
+  const memoryRows = sizesOf('memory').map((size) => {
+    const runs = ok(find(trials, { group: 'memory', size }).runs);
+    return { episodes: size, peakMb: median(runs.map((r) => r.maxRssMb)), seconds: median(runs.map((r) => r.seconds)) };
+  });
+  const memory = {
+    rows: memoryRows,
+    bytesPerEpisode:
+      memoryRows.length >= 2
+        ? ((memoryRows.at(-1).peakMb - memoryRows[0].peakMb) * 2 ** 20) / (memoryRows.at(-1).episodes - memoryRows[0].episodes)
+        : NaN,
+  };
+
+  const storeTrial = find(trials, { group: 'store' });
+  const storeRuns = storeTrial ? ok(storeTrial.runs) : [];
+  const store = storeTrial
+    ? storeRuns.length
+      ? {
+          episodes: storeRuns[0].episodes,
+          writeSeconds: median(storeRuns.map((r) => r.seconds)),
+          readSeconds: median(storeRuns.map((r) => r.readSeconds)),
+          bytes: median(storeRuns.map((r) => r.bytes)),
+          roundTrip: storeRuns.every((r) => r.roundTrip),
+        }
+      : { error: storeTrial.runs[0]?.error }
+    : null;
+
+  const startupMs = (label) => {
+    const t = find(trials, { group: 'startup', runnerLabel: label });
+    return t ? median(ok(t.runs).map((r) => r.seconds * 1000)) : NaN;
+  };
+  const startup = { helpMs: startupMs('reckon --help'), nodeMs: startupMs('node -e 0') };
+
+  const goals = [];
+  const goal = (name, target, measured, met) => goals.push({ name, target, measured, met: Number.isFinite(measured) ? met : null });
+  goal('one worker on (b) vs the C loop', '>= 0.6x', byId.b?.engineOverC, byId.b?.engineOverC >= 0.6);
+  for (const id of ['a', 'b']) {
+    const w = byId[id];
+    goal(`${machine.cores} workers vs one on (${id})`, '>= 1.8x', w?.allWorkersOverOne, w?.allWorkersOverOne >= 1.8);
+    goal(`(${id}) results identical across workers and loops`, 'same hash', w?.identical === null ? NaN : w?.identical ? 1 : 0, w?.identical === true);
+  }
+  goal('per-episode overhead on (c)', '< 20%', costs.engine?.overheadShare, costs.engine?.overheadShare < 0.2);
+  goal('module gridworld (d2) vs compiled (a)', '>= 0.3x', byId.d2?.overReference, byId.d2?.overReference >= 0.3);
+  goal('memory per kept episode', '<= 12 bytes', memory.bytesPerEpisode, memory.bytesPerEpisode <= 12);
+  goal('reckon --help', '< 150 ms', startup.helpMs, startup.helpMs < 150);
+
+  return { machine, workloads, costs, states, horizons, memory, store, startup, goals };
+}
+
+const fmt = (x, digits = 1) => (Number.isFinite(x) ? x.toFixed(digits) : '–');
+const millions = (x) => fmt(x / 1e6, x >= 1e7 ? 1 : 2);
+const ratio = (x) => (Number.isFinite(x) ? `${x.toFixed(2)}×` : '–');
+const yesNo = (x) => (x === null || x === undefined ? '–' : x ? 'yes' : '**no**');
+
+export function render(s) {
+  const m = s.machine;
+  const lines = [];
+  lines.push(`Machine: ${m.cpu}, ${m.cores} cores, ${m.memoryGb} GB; ${m.os}; Node ${m.node}; ${m.c}.`);
+  lines.push(`Run: ${m.date}, ${m.repeats} repeats of each trial in fresh processes, medians; load average ${m.loadAverageBefore.join(' ')} before, ${m.loadAverageAfter.join(' ')} after; ${m.seconds} s in all.`);
+  lines.push('');
+  lines.push('| workload | steps/ep | engine 1 worker: M steps/s | k ep/s | all workers: M steps/s | ×1 worker | C loop: M steps/s | engine/C | naive JS: M steps/s | engine/naive | peak MB (1 / all) | same returns |');
+  lines.push('|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|:---:|');
+  for (const w of s.workloads) {
+    const e1 = w.engine1 ?? {};
+    const ea = w.engineAll ?? {};
+    lines.push(
+      `| (${w.id}) ${w.title}, ${w.episodes.toLocaleString('en')} episodes | ${fmt(e1.steps / e1.episodes)} | ${millions(e1.stepsPerSecond)} | ${fmt(e1.episodesPerSecond / 1e3, 0)} | ` +
+        `${millions(ea.stepsPerSecond)} | ${ratio(w.allWorkersOverOne)} | ${w.c ? millions(w.c.stepsPerSecond) : '–'} | ${ratio(w.engineOverC)} | ` +
+        `${w.naive ? millions(w.naive.stepsPerSecond) : '–'} | ${ratio(w.engineOverNaive)} | ${fmt(e1.peakMb, 0)} / ${fmt(ea.peakMb, 0)} | ${yesNo(w.identical)} |`,
+    );
+  }
+  const errors = s.workloads.flatMap((w) => ['engine1', 'engineAll', 'c', 'naive'].filter((k) => w[k]?.error).map((k) => `(${w.id}) ${k}: ${w[k].error}`));
+  if (errors.length) lines.push('', ...errors.map((e) => `Failed: ${e}`));
+  const d2 = s.workloads.find((w) => w.id === 'd2');
+  if (d2?.reference) {
+    const ref = s.workloads.find((w) => w.id === d2.reference);
+    lines.push('');
+    lines.push(
+      `Plug-in interface: the gridworld as a module (d2) runs at ${ratio(d2.overReference)} the compiled gridworld (${d2.reference}); ` +
+        `mean return ${fmt(d2.engine1?.meanReturn, 4)} against ${fmt(ref?.engine1?.meanReturn, 4)} (same model, different draws).`,
+    );
+  }
+  lines.push('');
+  const costRow = (name, x) => `| ${name} | ${fmt(x?.perEpisodeNs, 0)} | ${fmt(x?.perStepNs, 1)} | ${fmt(100 * x?.overheadShare, 1)}% |`;
+  lines.push('Per-episode cost, from (b) and (c) (same MDP, horizons 400 and 10): time = episodes × per-episode + steps × per-step.');
+  lines.push('');
+  lines.push('| loop | ns per episode | ns per step | share of (c) spent per episode |');
+  lines.push('|---|---:|---:|---:|');
+  lines.push(costRow('engine, 1 worker', s.costs.engine));
+  lines.push(costRow('C', s.costs.c));
+  lines.push('');
+  const scaling = (title, key, rows) => {
+    lines.push(title);
+    lines.push('');
+    lines.push(`| ${key} | steps/ep | engine ns/step | engine µs/episode | C ns/step | engine/C | same returns |`);
+    lines.push('|---:|---:|---:|---:|---:|---:|:---:|');
+    for (const r of rows) {
+      lines.push(`| ${r.size.toLocaleString('en')} | ${fmt(r.stepsPerEpisode)} | ${fmt(r.engineNsPerStep)} | ${fmt(r.engineNsPerEpisode / 1000, 2)} | ${fmt(r.cNsPerStep)} | ${ratio(r.engineOverC)} | ${yesNo(r.identical)} |`);
+    }
+    lines.push('');
+  };
+  if (s.states.length) scaling('Time against the number of states (random MDPs, 4 actions, 3 successors, episodes of about 120 steps; the loop alone, one thread):', 'states', s.states);
+  if (s.horizons.length) scaling('Time against the horizon (400 states, no terminal states, so every episode runs to the horizon):', 'horizon', s.horizons);
+  if (s.memory.rows.length) {
+    lines.push(
+      `Memory: a whole estimate of (c) on all workers peaks at ${s.memory.rows.map((r) => `${fmt(r.peakMb, 0)} MB for ${r.episodes.toLocaleString('en')} episodes`).join(' and ')}: ` +
+        `${fmt(s.memory.bytesPerEpisode, 1)} bytes per extra episode.`,
+    );
+  }
+  if (s.store) {
+    lines.push(
+      s.store.error
+        ? `Storing episodes: failed (${s.store.error}).`
+        : `Storing ${s.store.episodes.toLocaleString('en')} episodes in the run store (chunks of 16,384): ${fmt(s.store.writeSeconds, 2)} s to write ` +
+            `(${fmt((s.store.writeSeconds / s.store.episodes) * 1e9, 0)} ns an episode), ${fmt(s.store.bytes / 2 ** 20, 1)} MB on disk ` +
+            `(${fmt(s.store.bytes / s.store.episodes, 1)} bytes an episode), ${fmt(s.store.readSeconds, 2)} s to read back${s.store.roundTrip ? ' (identical)' : ' (**not identical**)'}.`,
+    );
+  }
+  if (Number.isFinite(s.startup.helpMs)) {
+    lines.push(`Start-up: \`reckon --help\` ${fmt(s.startup.helpMs, 0)} ms (median); Node alone (\`node -e 0\`) ${fmt(s.startup.nodeMs, 0)} ms.`);
+  }
+  lines.push('');
+  lines.push('| goal | target | measured | met |');
+  lines.push('|---|---|---:|:---:|');
+  for (const g of s.goals) {
+    const measured = g.name.includes('identical') ? (g.met === null ? '–' : g.met ? 'same' : 'differ') : g.name.includes('overhead') ? `${fmt(100 * g.measured, 1)}%` : g.name.includes('help') ? `${fmt(g.measured, 0)} ms` : g.name.includes('memory') ? `${fmt(g.measured, 1)} B` : ratio(g.measured);
+    lines.push(`| ${g.name} | ${g.target} | ${measured} | ${yesNo(g.met)} |`);
+  }
+  lines.push('');
+  return lines.join('\n');
+}

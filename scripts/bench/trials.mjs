@@ -1,0 +1,54 @@
+// The benchmark's trials as data. Each trial is one child-process run of trial.mjs (the `run`
+// object is what it receives); index.mjs repeats every trial and reports medians. Episode
+// counts are fixed per workload, the same for the engine and both reference loops.
+import path from 'node:path';
+import { WORKLOADS, RUN_SEED } from './workloads.mjs';
+
+/** Sizes for "time per episode against the number of states", all with episodes of about 120 steps. */
+export const STATE_COUNTS = [100, 1_000, 10_000, 100_000];
+/** Horizons for "time per episode against the horizon", on a 400-state MDP without terminal states. */
+export const HORIZONS = [10, 100, 1_000, 10_000];
+/** Episode counts for the memory trials: peak memory should grow by the 8 bytes an episode keeps. */
+export const MEMORY_EPISODES = [250_000, 2_250_000];
+
+/**
+ * @param prepared  workloads from prepareWorkloads (with definition paths and exported tables)
+ * @param scaling   exported tables for the scaling trials: { states: {n: file}, horizons: {h: file} }
+ * @param cores     worker count for the "all workers" trials
+ * @param binary    the compiled C loop, or null when there is no compiler
+ * @param root      the repository root
+ */
+export function buildTrials({ prepared, scaling, cores, binary, root }) {
+  const trials = [];
+  const seed = RUN_SEED;
+  for (const w of prepared) {
+    const base = { env: w.env, policy: w.policy, seed, episodes: w.episodes };
+    trials.push({ group: 'workload', workload: w.id, runnerLabel: 'engine-1', run: { runner: 'engine', ...base, workers: 1 } });
+    trials.push({ group: 'workload', workload: w.id, runnerLabel: 'engine-all', run: { runner: 'engine', ...base, workers: cores } });
+    if (w.table && binary) trials.push({ group: 'workload', workload: w.id, runnerLabel: 'c', run: { runner: 'c', binary, table: w.table, seed, episodes: w.episodes } });
+    if (w.table) trials.push({ group: 'workload', workload: w.id, runnerLabel: 'naive', run: { runner: 'naive', ...base } });
+  }
+  for (const states of STATE_COUNTS) {
+    const table = scaling.states[states];
+    const episodes = 20_000;
+    trials.push({ group: 'states', size: states, runnerLabel: 'engine-1', run: { runner: 'loop', table, seed, episodes } });
+    if (binary) trials.push({ group: 'states', size: states, runnerLabel: 'c', run: { runner: 'c', binary, table, seed, episodes } });
+  }
+  for (const horizon of HORIZONS) {
+    const table = scaling.horizons[horizon];
+    const episodes = Math.round(2_000_000 / horizon);
+    trials.push({ group: 'horizon', size: horizon, runnerLabel: 'engine-1', run: { runner: 'loop', table, seed, episodes } });
+    if (binary) trials.push({ group: 'horizon', size: horizon, runnerLabel: 'c', run: { runner: 'c', binary, table, seed, episodes } });
+  }
+  const short = prepared.find((w) => w.id === 'c');
+  for (const episodes of MEMORY_EPISODES) {
+    trials.push({ group: 'memory', size: episodes, runnerLabel: 'estimate', run: { runner: 'estimate', env: short.env, policy: short.policy, seed, episodes, workers: cores } });
+  }
+  trials.push({ group: 'store', size: 1_000_000, runnerLabel: 'store', run: { runner: 'store', episodes: 1_000_000, chunk: 16_384, seed } });
+  const main = path.join(root, 'dist', 'cli', 'main.js');
+  trials.push({ group: 'startup', runnerLabel: 'reckon --help', run: { runner: 'command', argv: [process.execPath, main, '--help'] } });
+  trials.push({ group: 'startup', runnerLabel: 'node -e 0', run: { runner: 'command', argv: [process.execPath, '-e', '0'] } });
+  return trials;
+}
+
+export { WORKLOADS };
