@@ -54,6 +54,8 @@ export async function buildApp(options: ServerOptions): Promise<FastifyInstance>
   };
 
   app.addHook('onRequest', requestGate(options.token ?? null));
+  // JSON bodies only: a form on another site can post text/plain without asking, not JSON (415).
+  app.removeContentTypeParser('text/plain');
   app.setErrorHandler((error: FastifyError, request, reply) => {
     if (error instanceof InputError) return reply.code(error.httpStatus).send({ error: error.message });
     const status = error.statusCode ?? 500;

@@ -40,7 +40,8 @@ export function valueMapCells(mdp: FiniteMdp, values: ArrayLike<number>): ValueC
 /**
  * The layout as a grid of squares coloured by value (cividis, a sequential scale readable
  * with colour-vision deficiencies: Nuñez, Anderton & Renslow 2018, PLoS ONE 13:e0199239),
- * each labelled with its value; walls dark grey, terminals outlined.
+ * each labelled with its value; walls dark grey, terminals white with their layout character
+ * and an outline (their value is 0 and would only stretch the scale).
  */
 export function valueMapSpec(cells: readonly ValueCell[], labels: { title: string; subtitle: string; cellSize?: number }): PlotSpec {
   const rows = cells.reduce((m, c) => Math.max(m, c.row + 1), 0);
@@ -63,7 +64,11 @@ export function valueMapSpec(cells: readonly ValueCell[], labels: { title: strin
         mark: { type: 'rect', color: '#3b3b3b' },
       },
       {
-        transform: [{ filter: '!datum.wall' }],
+        transform: [{ filter: 'datum.terminal' }],
+        mark: { type: 'rect', color: 'white' },
+      },
+      {
+        transform: [{ filter: '!datum.wall && !datum.terminal' }],
         mark: { type: 'rect', stroke: 'white', strokeWidth: 1 },
         encoding: {
           color: { field: 'value', type: 'quantitative', scale: { scheme: 'cividis' }, title: 'value' },
@@ -79,12 +84,14 @@ export function valueMapSpec(cells: readonly ValueCell[], labels: { title: strin
         mark: { type: 'text', fontSize: Math.max(8, Math.round(size / 4.5)) },
         encoding: {
           text: { field: 'label' },
-          color: { condition: { test: 'datum.value > datum.mid', value: 'black' }, value: 'white' },
+          color: { condition: { test: 'datum.terminal || datum.value > datum.mid', value: 'black' }, value: 'white' },
         },
       },
     ],
     transform: [
-      { joinaggregate: [{ op: 'min', field: 'value', as: 'lo' }, { op: 'max', field: 'value', as: 'hi' }] },
+      // The colour scale and the label contrast cover the states one passes through, not terminals.
+      { calculate: 'datum.terminal ? null : datum.value', as: 'inner' },
+      { joinaggregate: [{ op: 'min', field: 'inner', as: 'lo' }, { op: 'max', field: 'inner', as: 'hi' }] },
       { calculate: '(datum.lo + datum.hi) / 2', as: 'mid' },
       { calculate: "datum.terminal ? datum.char : format(datum.value, '.2f')", as: 'label' },
     ],
