@@ -7,22 +7,12 @@ import { runEstimate } from '../../src/evaluate/estimate.js';
 import { exactEvaluation } from '../../src/exact/index.js';
 import { comparePair, summarize, tQuantile } from '../../src/stats/index.js';
 import { readDefinitionFile } from '../../src/definitions/index.js';
+import { inlineSource, smallGrid, towardsGoal } from './small-grid.js';
 
-/**
- * Comparisons and target-error runs against the exact oracle. Same small slippery grid as
- * coverage.test.ts (intended move 0.8, perpendiculars 0.1 each, as in Russell & Norvig's 4×3
- * world), discounted so that its exact return bounds are tight.
- */
-const env = {
-  kind: 'gridworld',
-  discount: 0.95,
-  horizon: 60,
-  step_reward: -0.04,
-  layout: ['...+', '.#.-', '....'],
-  cells: { '.': { slip: 0.2 }, '#': { wall: true }, '+': { terminal: true, reward: 1 }, '-': { terminal: true, reward: -1 } },
-};
-const base = { kind: 'table', default: 'up', states: { '0,0': 'right', '0,1': 'right', '0,2': 'right', '2,1': 'left', '2,2': 'left', '2,3': 'left' } };
-const source = { label: 'inline', baseDir: process.cwd() };
+/** Comparisons and target-error runs against the exact oracle, on the shared small grid. */
+const env = smallGrid;
+const base = towardsGoal;
+const source = inlineSource;
 const policyA = { kind: 'epsilon', epsilon: 0.1, base };
 const policyB = { kind: 'epsilon', epsilon: 0.4, base };
 

@@ -12,6 +12,7 @@ import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../options.js';
+import { runSize } from '../run-size.js';
 import { ProgressLine } from '../progress.js';
 import { version } from '../version.js';
 
@@ -85,11 +86,7 @@ export async function run(args: string[]): Promise<number> {
   if (policyPaths.length < 2) {
     throw new InputError('--policy', `give at least two policies to compare (got ${policyPaths.length}), e.g. --policy envs/picker-direct.json --policy envs/picker-careful.json`);
   }
-  const targetError = values['target-error'] === undefined ? null : parseOption('target-error', 'targetError', values['target-error']);
-  if (values.episodes !== undefined && values['max-episodes'] !== undefined) throw new InputError('--max-episodes', 'give either --episodes or --max-episodes, not both');
-  if (values['max-episodes'] !== undefined && targetError === null) throw new InputError('--max-episodes', 'caps a --target-error run; without --target-error use --episodes');
-  const episodesText = values['max-episodes'] ?? values.episodes;
-  const episodes = episodesText === undefined ? (targetError === null ? 10000 : 10_000_000) : parseOption('episodes', 'episodes', episodesText);
+  const { episodes, targetError } = runSize(values);
   const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
   const level = values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence);
   const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);

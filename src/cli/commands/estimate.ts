@@ -12,6 +12,7 @@ import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../options.js';
+import { runSize } from '../run-size.js';
 import { ProgressLine } from '../progress.js';
 import { version } from '../version.js';
 
@@ -81,15 +82,7 @@ export async function run(args: string[]): Promise<number> {
   }
   const envPath = required('estimate', 'env', values.env, '--env envs/warehouse.json');
   const policyPath = required('estimate', 'policy', values.policy, '--policy envs/picker-direct.json');
-  const targetError = values['target-error'] === undefined ? null : parseOption('target-error', 'targetError', values['target-error']);
-  if (values.episodes !== undefined && values['max-episodes'] !== undefined) {
-    throw new InputError('--max-episodes', 'give either --episodes or --max-episodes, not both');
-  }
-  if (values['max-episodes'] !== undefined && targetError === null) {
-    throw new InputError('--max-episodes', 'caps a --target-error run; without --target-error use --episodes');
-  }
-  const episodesText = values['max-episodes'] ?? values.episodes;
-  const episodes = episodesText === undefined ? (targetError === null ? 10000 : 10_000_000) : parseOption(values['max-episodes'] ? 'max-episodes' : 'episodes', 'episodes', episodesText);
+  const { episodes, targetError } = runSize(values);
   const sigma = values.sigma === undefined ? null : parseOption('sigma', 'sigma', values.sigma);
   const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
   const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);
