@@ -4,26 +4,12 @@ import { newBlock } from '../../src/engine/episode-block.js';
 import type { RolloutSpec } from '../../src/engine/spec.js';
 import { exactEvaluation, returnBounds } from '../../src/exact/index.js';
 import { confidenceInterval, summarize, type CiMethod } from '../../src/stats/index.js';
+import { inlineSource, smallGrid, towardsGoal } from './small-grid.js';
 
-/**
- * Monte Carlo against the exact oracle. A small slippery gridworld (intended move 0.8, each
- * perpendicular 0.1, as in Russell & Norvig's 4×3 world) with a −0.04 step cost, a +1 and a
- * −1 terminal, evaluated under an epsilon-greedy policy so returns are genuinely random.
- */
-const env = {
-  kind: 'gridworld',
-  discount: 0.95,
-  horizon: 60,
-  step_reward: -0.04,
-  layout: ['...+', '.#.-', '....'],
-  cells: { '.': { slip: 0.2 }, '#': { wall: true }, '+': { terminal: true, reward: 1 }, '-': { terminal: true, reward: -1 } },
-};
-const policy = {
-  kind: 'epsilon',
-  epsilon: 0.3,
-  base: { kind: 'table', default: 'up', states: { '0,0': 'right', '0,1': 'right', '0,2': 'right', '2,1': 'left', '2,2': 'left', '2,3': 'left' } },
-};
-const source = { label: 'inline', baseDir: process.cwd() };
+/** Monte Carlo against the exact oracle, on the shared small grid under an epsilon-greedy policy so returns are genuinely random. */
+const env = smallGrid;
+const policy = { kind: 'epsilon', epsilon: 0.3, base: towardsGoal };
+const source = inlineSource;
 
 function spec(seed: number): RolloutSpec {
   return { env: { json: env, source }, policy: { json: policy, source }, seed, start: '2,0' };
