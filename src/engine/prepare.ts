@@ -48,7 +48,11 @@ export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout
     if (typeof env.env.stateFromName !== 'function') {
       throw new InputError('--start', `${spec.env.source.label} does not define stateFromName(name), so it cannot start in "${startName}"`);
     }
-    env.env.stateFromName(startName); // fail early on a name the environment rejects
+    try {
+      env.env.stateFromName(startName); // fail early on a name the environment rejects
+    } catch (e) {
+      throw new InputError('--start', `${spec.env.source.label} does not accept the state "${startName}": ${e instanceof Error ? e.message : String(e)}`);
+    }
   }
   const acting = policy.acting;
   return { env, policy, startIndex: -1, runBlock: (block) => rolloutModule(env, acting, seed, startName, block) };
