@@ -217,14 +217,14 @@ async function renderRun(id) {
     el('h1', {}, `${run.policy} on ${run.env} `, badge(run.status)),
     live ? el('p', { id: 'live' }, progressLine(run.progress)) : null,
     run.error ? el('p', { class: 'error' }, run.error) : null,
-    run.mean !== undefined ? el('div', { class: 'summary' }, figureRows(run), projectionTable(run)) : el('p', {}, 'No figures yet: fewer than two episodes are stored.'),
-    run.episodes >= 2 ? plots : null,
+    run.mean !== undefined ? el('div', { class: 'summary' }, figureRows(run), projectionTable(run)) : el('p', {}, live ? 'The figures and plots appear when the run ends.' : 'No figures: fewer than two episodes are stored.'),
+    run.episodes >= 2 && !live ? plots : null,
     definitions ? el('details', { class: 'definitions' }, el('summary', {}, 'Definitions and seed'),
       el('p', {}, `seed ${run.seed}; environment hash ${run.env_hash.slice(0, 12)}, policy hash ${run.policy_hash.slice(0, 12)}`),
       el('h3', {}, run.env), el('pre', {}, JSON.stringify(definitions.env, null, 2)),
       el('h3', {}, run.policy), el('pre', {}, JSON.stringify(definitions.policy, null, 2))) : null,
   );
-  if (run.episodes >= 2) {
+  if (run.episodes >= 2 && !live) {
     await Promise.all([...plots.children].map((figure) => plotInto(figure, id, figure.dataset.kind)));
   }
   if (live) followRun(id);
@@ -239,19 +239,16 @@ function progressLine(p) {
 /** Live progress from the server's event stream; the page redraws when the run ends. */
 function followRun(id) {
   const source = new EventSource(eventsUrl(id));
-  let redraw = null;
   source.addEventListener('progress', (event) => {
     const p = JSON.parse(event.data);
     const line = document.getElementById('live');
     if (line) line.replaceChildren(...[progressLine(p)].flat().filter(Boolean));
-    // Redraw the plots now and then while it runs.
-    redraw ??= setTimeout(() => { redraw = null; if (location.hash === `#/runs/${id}`) route(); }, 4000);
   });
   source.addEventListener('end', () => {
     source.close();
     if (location.hash === `#/runs/${id}`) route();
   });
-  onLeave(() => { source.close(); clearTimeout(redraw); });
+  onLeave(() => source.close());
 }
 
 // ---- comparisons -------------------------------------------------------------------------

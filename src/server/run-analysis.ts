@@ -6,14 +6,17 @@ import type { Db } from '../store/open.js';
 import { loadEpisodes, type RunRecord } from '../store/runs.js';
 
 const LIMIT = 64;
+/** How long figures of a run that is still growing are reused: many viewers, one computation a second. */
+const LIVE_MS = 1000;
 
 /**
  * Figures, episodes and exact values of stored runs, kept for runs that can no longer change
  * (done, failed, interrupted and not being run here), so that many people looking at one run
- * recompute nothing: a bootstrap re-analysis or an exact evaluation is done once.
+ * recompute nothing: a bootstrap re-analysis or an exact evaluation is done once. A running
+ * run's are reused for a second, so a crowd of viewers costs one re-read a second, not one each.
  */
 export class RunAnalysisCache {
-  private readonly entries = new Map<string, unknown>();
+  private readonly entries = new Map<string, { value: unknown; until: number }>();
 
   constructor(private readonly db: Db) {}
 
@@ -41,17 +44,17 @@ export class RunAnalysisCache {
   }
 
   private get<T>(key: string, stable: boolean, compute: () => T): T {
-    if (this.entries.has(key)) {
-      const value = this.entries.get(key) as T;
+    const now = performance.now();
+    const entry = this.entries.get(key);
+    if (entry && entry.until > now) {
       this.entries.delete(key);
-      this.entries.set(key, value);
-      return value;
+      this.entries.set(key, entry);
+      return entry.value as T;
     }
     const value = compute();
-    if (stable) {
-      this.entries.set(key, value);
-      if (this.entries.size > LIMIT) this.entries.delete(this.entries.keys().next().value as string);
-    }
+    this.entries.delete(key);
+    this.entries.set(key, { value, until: stable ? Infinity : now + LIVE_MS });
+    if (this.entries.size > LIMIT) this.entries.delete(this.entries.keys().next().value as string);
     return value;
   }
 }

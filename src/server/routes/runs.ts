@@ -50,8 +50,11 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
     if (run.kind !== 'estimate') {
       throw new InputError(`run ${run.id}`, `is a ${run.kind} run; see it at /api/comparisons/${run.id}`);
     }
-    if (run.episodesDone < 2) return { ...runPendingJson(run), status: live.status, progress: live.progress };
-    const result = ctx.analysis.figures(run, { method, level }, isSettled(ctx, run));
+    // A run still growing is summarised by its progress (running mean and half-width from the
+    // engine): recomputing every figure from millions of stored returns on each request would
+    // hold up every other request. The full figures come once it has ended.
+    if (run.episodesDone < 2 || !isSettled(ctx, run)) return { ...runPendingJson(run), status: live.status, progress: live.progress };
+    const result = ctx.analysis.figures(run, { method, level }, true);
     return { ...runShowJson(run, result), status: live.status, progress: live.progress };
   });
 
