@@ -32,6 +32,8 @@ export async function runStoredComparison(
   db: Db,
   request: CompareRequest,
   toolVersion: string,
+  /** `onRunId`: told the comparison's id once it and its member runs exist, before any episode. */
+  hooks: { onRunId?: (id: string) => void } = {},
 ): Promise<{ runId: string; result: ComparisonResult }> {
   let parentId = '';
   const children: string[] = [];
@@ -100,6 +102,7 @@ export async function runStoredComparison(
             }),
           );
         });
+        hooks.onRunId?.(parentId);
       },
       onEpisodes: (p, block, steps, seconds) => {
         request.onEpisodes?.(p, block, steps, seconds);
