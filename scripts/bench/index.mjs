@@ -42,7 +42,7 @@ mkdirSync(scratch, { recursive: true });
 function compileC() {
   const binary = path.join(outDir, 'rollout-c');
   try {
-    execFileSync('cc', ['-O2', '-ffp-contract=off', '-o', binary, path.join(HERE, 'rollout.c')], { stdio: ['ignore', 'ignore', 'pipe'] });
+    execFileSync('cc', ['-O2', '-ffp-contract=off', '-o', binary, path.join(HERE, 'rollout.c'), '-lm'], { stdio: ['ignore', 'ignore', 'pipe'] });
     const version = execFileSync('cc', ['--version'], { encoding: 'utf8' }).split('\n')[0];
     return { binary, note: `cc -O2 -ffp-contract=off (${version})` };
   } catch (e) {

@@ -2,14 +2,15 @@
  * The reference point of `npm run bench`: a plain C loop over the same compiled finite MDP as
  * the engine (written by export-mdp.mjs), with the same generator (xoshiro128**), the same
  * seeding of each episode's ENV and POLICY streams (src/engine/streams.ts) and the same
- * sampling (one uniform per draw, scan of a cumulative table; bisection for the start state).
+ * sampling (one uniform per draw, scan of a cumulative table; a guide table for the start).
  * For a given seed it must produce the engine's returns bit for bit; the bench compares a hash
  * of all returns and lengths.
  *
- * Build: cc -O2 -ffp-contract=off -o rollout rollout.c (-ffp-contract=off: no fused
+ * Build: cc -O2 -ffp-contract=off -o rollout rollout.c -lm (-ffp-contract=off: no fused
  * multiply-add, so the discounted sums round exactly as JavaScript's do)
  * Usage: rollout FILE SEED FIRST COUNT   prints one JSON object on stdout.
  */
+#include <math.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -115,6 +116,13 @@ int main(int argc, char **argv) {
   const int32_t A = m.actions;
   const int32_t last_start = m.starts - 1;
   Rng env, pol;
+  /* guide[j]: the first k whose running sum exceeds (j - 1)/G (finite-rollout.ts, startSupport) */
+  int32_t *guide = malloc(sizeof(int32_t) * (m.starts > 0 ? m.starts : 1));
+  for (int32_t j = 0, k = 0; j < m.starts; j++) {
+    double below = (double)(j - 1) / m.starts;
+    while (k < m.starts - 1 && m.start_cumulative[k] <= below) k++;
+    guide[j] = k;
+  }
   long long steps = 0;
 
   double t0 = clock_seconds(CLOCK_MONOTONIC), c0 = clock_seconds(CLOCK_PROCESS_CPUTIME_ID);
@@ -125,13 +133,11 @@ int main(int argc, char **argv) {
     int32_t s = m.start;
     if (s < 0) {
       double u = uniform(&env);
-      /* bisection for the first running sum above u, as the engine does (same answer as a scan) */
-      int32_t low = 0, high = last_start;
-      while (low < high) {
-        int32_t middle = (low + high) >> 1;
-        if (u < m.start_cumulative[middle]) high = middle; else low = middle + 1;
-      }
-      s = m.start_states[low];
+      /* the engine's guide table: start the scan at the bucket's lower bound (same answer) */
+      int32_t j = (int32_t)floor(u * m.starts);
+      int32_t k = guide[j < m.starts - 1 ? j : m.starts - 1];
+      while (k < last_start && u >= m.start_cumulative[k]) k++;
+      s = m.start_states[k];
     }
     double g = 0, weight = 1;
     int32_t t = 0;

@@ -95,6 +95,21 @@ const RUNNERS = {
     return { seconds, cpuSeconds, coldSeconds: cold.seconds, coldSteps: cold.result, steps, episodes, sum: check.sum, hash: check.hash };
   },
 
+  /**
+   * The engine on all workers, its blocks either dropped (`keep` false: memory should not
+   * grow with the episodes at all) or their returns kept in one preallocated array, as an
+   * estimate keeps them for re-analysis (8 bytes an episode).
+   */
+  async episodes({ env, policy, seed, episodes, workers, keep }) {
+    const { runEpisodes } = await import('../../dist/engine/pool.js');
+    const spec = await specOf(env, policy, seed);
+    const kept = keep ? new Float64Array(episodes) : null;
+    const { result, seconds, cpuSeconds } = await timed(() =>
+      runEpisodes(spec, { first: 0, count: episodes, workers, onBlock: (b) => kept?.set(b.returns, b.first) }),
+    );
+    return { seconds, cpuSeconds, steps: result.steps, episodes: result.episodes };
+  },
+
   /** A whole estimate (runEstimate: returns kept, t interval): peak memory against the episode count. */
   async estimate({ env, policy, seed, episodes, workers }) {
     const { runEstimate } = await import('../../dist/evaluate/estimate.js');

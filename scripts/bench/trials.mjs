@@ -9,7 +9,7 @@ export const STATE_COUNTS = [100, 1_000, 10_000, 100_000];
 /** Horizons for "time per episode against the horizon", on a 400-state MDP without terminal states. */
 export const HORIZONS = [10, 100, 1_000, 10_000];
 /** Episode counts for the memory trials: peak memory should grow by the 8 bytes an episode keeps. */
-export const MEMORY_EPISODES = [250_000, 2_250_000];
+export const MEMORY_EPISODES = [200_000, 1_200_000];
 
 /**
  * @param prepared  workloads from prepareWorkloads (with definition paths and exported tables)
@@ -30,19 +30,22 @@ export function buildTrials({ prepared, scaling, cores, binary, root }) {
   }
   for (const states of STATE_COUNTS) {
     const table = scaling.states[states];
-    const episodes = 20_000;
+    const episodes = 10_000;
     trials.push({ group: 'states', size: states, runnerLabel: 'engine-1', run: { runner: 'loop', table, seed, episodes } });
     if (binary) trials.push({ group: 'states', size: states, runnerLabel: 'c', run: { runner: 'c', binary, table, seed, episodes } });
   }
   for (const horizon of HORIZONS) {
     const table = scaling.horizons[horizon];
-    const episodes = Math.round(2_000_000 / horizon);
+    const episodes = Math.round(1_000_000 / horizon);
     trials.push({ group: 'horizon', size: horizon, runnerLabel: 'engine-1', run: { runner: 'loop', table, seed, episodes } });
     if (binary) trials.push({ group: 'horizon', size: horizon, runnerLabel: 'c', run: { runner: 'c', binary, table, seed, episodes } });
   }
   const short = prepared.find((w) => w.id === 'c');
   for (const episodes of MEMORY_EPISODES) {
-    trials.push({ group: 'memory', size: episodes, runnerLabel: 'estimate', run: { runner: 'estimate', env: short.env, policy: short.policy, seed, episodes, workers: cores } });
+    const base = { env: short.env, policy: short.policy, seed, episodes, workers: cores };
+    trials.push({ group: 'memory', size: episodes, runnerLabel: 'engine, blocks dropped', run: { runner: 'episodes', ...base, keep: false } });
+    trials.push({ group: 'memory', size: episodes, runnerLabel: 'engine, returns kept', run: { runner: 'episodes', ...base, keep: true } });
+    trials.push({ group: 'memory', size: episodes, runnerLabel: 'estimate (runEstimate, t)', run: { runner: 'estimate', ...base } });
   }
   trials.push({ group: 'store', size: 1_000_000, runnerLabel: 'store', run: { runner: 'store', episodes: 1_000_000, chunk: 16_384, seed } });
   const main = path.join(root, 'dist', 'cli', 'main.js');

@@ -23,13 +23,13 @@ export const WORKLOADS = [
   {
     id: 'a',
     title: 'demo gridworld (warehouse, ε-direct policy)',
-    episodes: 300_000,
+    episodes: 600_000,
     files: () => ({ env: path.join(ENVS, 'warehouse.json'), policy: path.join(ENVS, 'picker-direct-eps.json') }),
   },
   {
     id: 'b',
     title: 'random MDP: 400 states, 4 actions, 3 successors, H 400',
-    episodes: 60_000,
+    episodes: 120_000,
     files: (dir) => randomTabular(dir, 'b', 400),
   },
   {
@@ -41,13 +41,13 @@ export const WORKLOADS = [
   {
     id: 'd1',
     title: 'module: demo shelf restocking (base stock 8)',
-    episodes: 60_000,
+    episodes: 30_000,
     files: () => ({ env: path.join(ENVS, 'restock-env.json'), policy: path.join(ENVS, 'restock-base-stock.json') }),
   },
   {
     id: 'd2',
     title: 'module: the gridworld of (a) as code',
-    episodes: 300_000,
+    episodes: 600_000,
     reference: 'a',
     files: (dir) => gridAsModule(dir),
   },

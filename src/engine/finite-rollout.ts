@@ -38,7 +38,7 @@ const TO_UNIT = 2.3283064365386963e-10;
  *
  * Speed: both generators live in local variables (the xoshiro128** step of Xoshiro128.uint32
  * is written out where a uniform is drawn), the POLICY stream is seeded only in episodes
- * that draw from it, and the start state is found by bisection. None of this changes a
+ * that draw from it, and the start state is found through a guide table. None of this changes a
  * draw: results are bit-identical to the plain loop over Xoshiro128 objects.
  */
 export function rolloutFinite(
@@ -52,6 +52,7 @@ export function rolloutFinite(
   const { cumulative, deterministicAction } = policy;
   const startStates = startSupport(mdp);
   const startCumulative = startStates.cumulative;
+  const startGuide = startStates.guide;
   const startIndex = startStates.states;
   const lastStart = startIndex.length - 1;
   const lastAction = actionCount - 1;
@@ -82,7 +83,7 @@ export function rolloutFinite(
       e0 ^= e3;
       e2 ^= shifted;
       e3 = (e3 << 11) | (e3 >>> 21);
-      s = startIndex[firstAbove(startCumulative, u, lastStart)];
+      s = startIndex[firstAbove(startCumulative, startGuide, u, lastStart)];
     }
     let g = 0;
     let weight = 1;
@@ -142,18 +143,15 @@ export function rolloutFinite(
 }
 
 /**
- * The first index k in [0, last] with u < cumulative[k], or last: the same answer as a
- * linear scan of the non-decreasing running sums, in log time (start supports can be large).
+ * The first index k in [0, last] with u < cumulative[k], or last: the same answer as a linear
+ * scan of the non-decreasing running sums, in constant expected time. The guide table gives,
+ * for u's bucket floor(u·G), an index below which every running sum is at most u (see
+ * {@link startSupport}), and the scan goes on from there.
  */
-function firstAbove(cumulative: Float64Array, u: number, last: number): number {
-  let low = 0;
-  let high = last;
-  while (low < high) {
-    const middle = (low + high) >>> 1;
-    if (u < cumulative[middle]) high = middle;
-    else low = middle + 1;
-  }
-  return low;
+function firstAbove(cumulative: Float64Array, guide: Int32Array, u: number, last: number): number {
+  let k = guide[Math.min(guide.length - 1, Math.floor(u * guide.length))];
+  while (k < last && u >= cumulative[k]) k++;
+  return k;
 }
 
 /**
@@ -180,7 +178,7 @@ export function rolloutFiniteActing(
     seedStream(policyRng, seed, STREAM.POLICY, episode);
     let s = start;
     if (s < 0) {
-      s = startStates.states[firstAbove(startStates.cumulative, envRng.uniform(), lastStart)];
+      s = startStates.states[firstAbove(startStates.cumulative, startStates.guide, envRng.uniform(), lastStart)];
     }
     let g = 0;
     let weight = 1;
@@ -218,6 +216,8 @@ export function rolloutFiniteActing(
 interface StartSupport {
   states: Int32Array;
   cumulative: Float64Array;
+  /** guide[j]: the first k whose running sum exceeds (j − 1)/G, G = guide.length (see firstAbove). */
+  guide: Int32Array;
 }
 
 const supportCache = new WeakMap<RolloutTables, StartSupport>();
@@ -235,7 +235,16 @@ export function startSupport(mdp: RolloutTables): StartSupport {
     cumulative[k] = sum;
   });
   cumulative[states.length - 1] = 1;
-  const support = { states: Int32Array.from(states), cumulative };
+  // A bucket's lower bound is taken one bucket down, (j − 1)/G, so that a u whose product
+  // u·G rounds up into bucket j still has every running sum below the guide at most u.
+  const buckets = states.length;
+  const guide = new Int32Array(buckets);
+  for (let j = 0, k = 0; j < buckets; j++) {
+    const below = (j - 1) / buckets;
+    while (k < buckets - 1 && cumulative[k] <= below) k++;
+    guide[j] = k;
+  }
+  const support = { states: Int32Array.from(states), cumulative, guide };
   supportCache.set(mdp, support);
   return support;
 }

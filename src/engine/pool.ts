@@ -143,8 +143,8 @@ function rebuildError(message: Extract<FromWorker, { type: 'error' }>): Error {
  * Several threads. Unless `callerRuns` is false, this thread runs blocks too, between turns
  * of its event loop: it starts at once, while the worker threads are still starting, and no
  * core idles on a thread that only collects results. Each worker thread keeps two blocks in
- * hand, so it never waits for this thread to answer. Near the end blocks shrink, so that all
- * threads finish together.
+ * hand, so it never waits for this thread to answer. Near the end blocks shrink and workers
+ * hold one block at a time, so that all threads finish together.
  */
 async function runThreaded(
   spec: RolloutSpec,
@@ -203,20 +203,26 @@ async function runThreaded(
     const worker = new Worker(entry.url, { workerData: entry.data });
     const sizer = new BlockSizer(blockSeconds);
     let lastArrival = 0;
+    let inHand = 0;
+    /** Gives the worker blocks up to two in hand; one near the end, where queued work could not move to an idle thread. */
     const issue = () => {
-      const range = take(sizer.size);
-      if (!range) return;
-      worker.postMessage({ type: 'run', first: range.first, count: range.count });
-      inFlight++;
+      const wanted = end - next > 4 * workerCount * sizer.size ? 2 : 1;
+      while (inHand < wanted) {
+        const range = take(sizer.size);
+        if (!range) return;
+        worker.postMessage({ type: 'run', first: range.first, count: range.count });
+        inFlight++;
+        inHand++;
+      }
     };
     worker.on('message', (message: FromWorker) => {
       if (message.type === 'ready') {
         lastArrival = performance.now();
         issue();
-        issue();
       } else if (message.type === 'block') {
         inFlight--;
-        // With a second block always queued, the time between arrivals is one block's work.
+        inHand--;
+        // With a second block usually queued, the time between arrivals is one block's work.
         const now = performance.now();
         sizer.observe(message.count, (now - lastArrival) / 1000);
         lastArrival = now;
