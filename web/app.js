@@ -41,7 +41,7 @@ function el(tag, attributes = {}, ...children) {
     if (key.startsWith('on')) node.addEventListener(key.slice(2), value);
     else node.setAttribute(key, value === true ? '' : String(value));
   }
-  for (const child of children.flat()) {
+  for (const child of children.flat(Infinity)) {
     if (child === null || child === undefined) continue;
     node.append(child instanceof Node ? child : document.createTextNode(String(child)));
   }
@@ -77,6 +77,11 @@ function progressBar(progress) {
   if (!progress || !progress.total) return null;
   const share = Math.min(1, progress.done / progress.total);
   return el('span', { class: 'progress', title: `${count(progress.done)} of ${count(progress.total)} episodes` }, el('span', { style: `width:${(share * 100).toFixed(1)}%` }));
+}
+
+/** Like replaceChildren, leaving out the parts a page does not have (null). */
+function show(...parts) {
+  main.replaceChildren(...parts.filter((p) => p !== null && p !== undefined));
 }
 
 function showError(error) {
@@ -144,7 +149,7 @@ async function renderRunList() {
   filterEnv.addEventListener('change', () => { listState.env = filterEnv.value; draw(rows); });
   filterPolicy.addEventListener('input', () => { listState.policy = filterPolicy.value; draw(rows); });
   draw(rows);
-  main.replaceChildren(
+  show(
     el('h1', {}, 'Stored runs'),
     el('div', { class: 'filters' }, el('label', {}, 'Environment ', filterEnv), el('label', {}, 'Policy ', filterPolicy), el('a', { class: 'button', href: '#/new' }, 'Start an evaluation')),
     rows.length ? table : el('p', {}, 'No runs yet. Run ', el('code', {}, 'npm start'), ' (the demo) or start an evaluation.'),
@@ -176,7 +181,7 @@ function figureRows(run) {
     ['discount, horizon', `${run.discount}, ${count(run.horizon)} steps${run.horizon_derived ? ' (derived)' : ''}`],
     ['truncation bound', run.truncation_bound === null ? 'none' : num(run.truncation_bound, 2)],
     ['mean episode length', `${num(run.mean_length)} steps (longest ${count(run.longest_episode)})`],
-    ['rate', run.steps_per_second ? `${count(run.steps_per_second)} steps/s on ${run.workers} workers` : '–'],
+    ['rate', run.steps_per_second ? `${count(run.steps_per_second)} steps/s on ${run.workers} worker${run.workers === 1 ? '' : 's'}` : '–'],
   ];
   return el('table', { class: 'figures' }, el('tbody', {}, rows.map(([k, v]) => el('tr', {}, el('th', { scope: 'row' }, k), el('td', {}, v)))));
 }
@@ -212,7 +217,7 @@ async function renderRun(id) {
     el('figure', { class: 'plot', id: 'plot-lengths', 'data-kind': 'lengths' }),
     el('figure', { class: 'plot', id: 'plot-value-map', 'data-kind': 'value-map' }));
   const definitions = await api(`/api/runs/${encodeURIComponent(id)}/definitions`).catch(() => null);
-  main.replaceChildren(
+  show(
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `${run.policy} on ${run.env} `, badge(run.status)),
     live ? el('p', { id: 'live' }, progressLine(run.progress)) : null,
@@ -255,12 +260,20 @@ function followRun(id) {
 
 async function renderComparison(id) {
   const c = await api(`/api/comparisons/${encodeURIComponent(id)}`);
-  const names = c.policies.map((p) => p.name);
   const plot = el('figure', { class: 'plot', id: 'plot-differences' });
-  main.replaceChildren(
+  if (c.status === 'running' || c.status === 'queued') {
+    show(el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id), el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
+      el('p', { id: 'live' }, progressLine(c.progress)));
+    const timer = setTimeout(route, 1000);
+    onLeave(() => clearTimeout(timer));
+    return;
+  }
+  const names = c.policies.map((p) => p.name);
+  show(
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
     el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers).`),
+    el('p', {}, 'Each policy\'s own run: ', c.members.map((m, p) => [el('a', { href: `#/runs/${m}` }, names[p] ?? m), ' '])),
     el('h2', {}, 'Ranking'),
     el('ol', { class: 'ranking' }, c.ranking.map((p) => el('li', {}, `${names[p]}: ${num(c.policies[p].mean)} (${num(c.policies[p].ci.low)} to ${num(c.policies[p].ci.high)})`))),
     plot,
@@ -349,7 +362,7 @@ async function renderForm() {
       submit.disabled = false;
     }
   });
-  main.replaceChildren(el('h1', {}, 'Start an evaluation'),
+  show(el('h1', {}, 'Start an evaluation'),
     el('p', {}, 'Definitions as in the files (README, "Definition files"); code modules and file paths are not accepted here.'), form);
 }
 

@@ -7,6 +7,7 @@ import { requestGate } from './auth.js';
 import type { ServerContext } from './context.js';
 import { RunAnalysisCache } from './run-analysis.js';
 import { RunQueue } from './run-queue.js';
+import { comparisonRoutes } from './routes/comparisons.js';
 import { evaluationRoutes } from './routes/evaluations.js';
 import { eventRoutes } from './routes/events.js';
 import { exampleRoutes } from './routes/examples.js';
@@ -69,6 +70,7 @@ export async function buildApp(options: ServerOptions): Promise<FastifyInstance>
   runDataRoutes(app, ctx);
   eventRoutes(app, ctx);
   evaluationRoutes(app, ctx);
+  comparisonRoutes(app, ctx);
   exampleRoutes(app);
   pageRoutes(app);
 

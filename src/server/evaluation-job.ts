@@ -4,8 +4,7 @@ import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.js';
 import type { Db } from '../store/open.js';
 import { findRun, finishRun } from '../store/runs.js';
-import { GATE_GO, GATE_STOP, type EvaluationWorkerData, type FromEvaluationWorker } from './evaluation-messages.js';
-import type { EvaluationPlan } from './evaluation-request.js';
+import { GATE_GO, GATE_STOP, type EvaluationTask, type EvaluationWorkerData, type FromEvaluationWorker } from './evaluation-messages.js';
 import type { JobProgress, QueueJob } from './run-queue.js';
 
 function workerUrl(): string {
@@ -22,10 +21,10 @@ type Outcome = { status: string; error: string | null };
  * answer with) with a queue job that lets it go; a bad request rejects with the InputError the
  * command line would print. Until the job runs, the thread waits without using the CPU.
  */
-export function prepareEvaluation(db: Db, storePath: string, plan: EvaluationPlan, toolVersion: string): Promise<QueueJob> {
+export function prepareEvaluation(db: Db, storePath: string, task: EvaluationTask, toolVersion: string): Promise<QueueJob> {
   const gate = new SharedArrayBuffer(4);
   const flag = new Int32Array(gate);
-  const data: EvaluationWorkerData = { storePath, spec: plan.spec, options: plan.options, toolVersion, gate };
+  const data: EvaluationWorkerData = { storePath, task, toolVersion, gate };
   const worker = new Worker(workerUrl(), { workerData: data });
   let report: ((p: JobProgress) => void) | null = null;
   let runId: string | null = null;
@@ -69,6 +68,7 @@ export function prepareEvaluation(db: Db, storePath: string, plan: EvaluationPla
       const final = outcome ?? { status: 'failed', error: 'the evaluation thread stopped unexpectedly' };
       if (runId === null) rejectJob(new Error(final.error ?? 'the evaluation thread stopped'));
       else if (final.status === 'failed' && findRun(db, runId)?.status === 'running') finishRun(db, runId, 'failed', null, final.error);
+      // (A comparison's member runs are marked by runStoredComparison itself when it fails.)
       settle!(final);
     });
   });

@@ -1,11 +1,16 @@
 import type { RolloutSpec } from '../engine/spec.js';
+import type { CompareRequest } from '../evaluate/compare.js';
 import type { StoredOptions } from '../evaluate/stored-estimate.js';
 import type { JobProgress } from './run-queue.js';
 
+/** What to run: one policy's estimate, or a comparison (plain data: no callbacks cross threads). */
+export type EvaluationTask =
+  | { readonly kind: 'estimate'; readonly spec: RolloutSpec; readonly options: StoredOptions }
+  | { readonly kind: 'comparison'; readonly request: CompareRequest };
+
 export interface EvaluationWorkerData {
   readonly storePath: string;
-  readonly spec: RolloutSpec;
-  readonly options: StoredOptions;
+  readonly task: EvaluationTask;
   readonly toolVersion: string;
   /** One Int32: 0 wait, 1 go, 2 stop. The worker waits on it once its run exists in the store. */
   readonly gate: SharedArrayBuffer;

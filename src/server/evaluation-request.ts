@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { parseOption } from '../cli/options.js';
+import { runSize } from '../cli/run-size.js';
 import { zodInputError } from '../definitions/index.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';
@@ -63,17 +64,25 @@ export function parseBody(body: unknown): EvaluationBody {
   return result.data;
 }
 
+/**
+ * Episodes and target error as the command line reads them (`runSize`), then held to the
+ * server's cap; a target-error run without `episodes` is capped by the server's limit.
+ */
+export function serverRunSize(body: { episodes?: number; target_error?: number }, limits: ServerLimits): { episodes: number; targetError: number | null } {
+  const size = runSize({ episodes: body.episodes?.toString(), 'target-error': body.target_error?.toString() });
+  const capped = body.episodes === undefined && size.targetError !== null ? Math.min(size.episodes, limits.maxEpisodes) : size.episodes;
+  if (capped > limits.maxEpisodes) {
+    throw new InputError('--episodes', `this server runs at most ${limits.maxEpisodes} episodes a run (reckon serve --max-episodes); got ${capped}`);
+  }
+  return { episodes: capped, targetError: size.targetError };
+}
+
 /** A checked request body to a run's spec and stored options; throws InputError (HTTP 400). */
 export function planEvaluation(body: EvaluationBody, seed: number, limits: ServerLimits): EvaluationPlan {
   refuseCodeAndPaths(body.env, 'env');
   refuseCodeAndPaths(body.policy, 'policy');
   const text = (v: number) => String(v);
-  const targetError = body.target_error === undefined ? null : parseOption('target-error', 'targetError', text(body.target_error));
-  const episodes =
-    body.episodes === undefined ? (targetError === null ? Math.min(10000, limits.maxEpisodes) : limits.maxEpisodes) : parseOption('episodes', 'episodes', text(body.episodes));
-  if (episodes > limits.maxEpisodes) {
-    throw new InputError('--episodes', `this server runs at most ${limits.maxEpisodes} episodes a run (reckon serve --max-episodes); got ${episodes}`);
-  }
+  const { episodes, targetError } = serverRunSize(body, limits);
   const options: StoredOptions = {
     episodes,
     method: body.ci === undefined ? null : parseOption('ci', 'interval', body.ci),

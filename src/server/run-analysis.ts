@@ -39,6 +39,11 @@ export class RunAnalysisCache {
     );
   }
 
+  /** Anything else computed from a settled run, under the caller's key (`what|id`). */
+  remember<T>(key: string, compute: () => T): T {
+    return this.get(key, true, compute);
+  }
+
   forget(id: string): void {
     for (const key of [...this.entries.keys()]) if (key.split('|')[1] === id) this.entries.delete(key);
   }

@@ -193,3 +193,55 @@ describe('review server queue and token', () => {
     expect(result.stderr).toMatch(/^reckon: --host: "0.0.0.0" lets other machines reach the server; give --token/);
   });
 });
+
+describe('comparisons over HTTP', () => {
+  it('runs a posted comparison into the store; GET shows what runs show --json prints', async () => {
+    const storePath = tempStore();
+    const app = await buildApp({ storePath, toolVersion: 'test', workers: 1 });
+    try {
+      const uniform = readJson('textbook/uniform.json');
+      const payload = { env: grid, env_name: 'grid-4x3.json', policies: [{ name: 'optimal', definition: optimal }, { name: 'uniform', definition: uniform }], episodes: 4000, seed: 2 };
+      const posted = await app.inject({ method: 'POST', url: '/api/comparisons', payload });
+      expect(posted.statusCode).toBe(202);
+      const { id } = posted.json();
+      const done = (await waitForRun(async () => (await app.inject({ url: `/api/comparisons/${id}` })).json())) as Record<string, any>;
+      expect(done.status).toBe('done');
+      const cli = JSON.parse(reckon(['runs', 'show', id, '--json', '--store', storePath]).stdout);
+      const { progress, members, ...rest } = done;
+      expect(progress).toBeNull();
+      expect(rest).toEqual(cli);
+      expect(members).toHaveLength(2);
+      // Russell & Norvig's optimal policy (0.705 from the start, AIMA Fig. 17.3) beats moving at random.
+      expect(done.ranking).toEqual([0, 1]);
+      expect(done.differences[0].low).toBeGreaterThan(0);
+      const plot = (await app.inject({ url: `/api/comparisons/${id}/plot` })).json();
+      expect(plot.data.values).toEqual([{ pair: 'optimal − uniform', mean: done.differences[0].mean, low: done.differences[0].low, high: done.differences[0].high }]);
+      // Each policy's member run is an ordinary run with its own page.
+      const member = (await app.inject({ url: `/api/runs/${members[0]}` })).json();
+      expect(member.mean).toBe(done.policies[0].mean);
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('refuses one policy, module kinds, and fixed-sample intervals with a target error, as compare does', async () => {
+    const storePath = tempStore();
+    const app = await buildApp({ storePath, toolVersion: 'test', workers: 1 });
+    try {
+      const one = await app.inject({ method: 'POST', url: '/api/comparisons', payload: { env: grid, policies: [{ definition: optimal }] } });
+      expect(one.statusCode).toBe(400);
+      expect(one.json().error).toMatch(/^request: policies .*at least/);
+      const code = await app.inject({ method: 'POST', url: '/api/comparisons', payload: { env: grid, policies: [{ definition: optimal }, { definition: { kind: 'module', path: 'p.js' } }] } });
+      expect(code.statusCode).toBe(400);
+      expect(code.json().error).toMatch(/refuses it/);
+      const ci = await app.inject({ method: 'POST', url: '/api/comparisons', payload: { env: grid, policies: [{ definition: optimal }, { definition: optimal }], target_error: 0.1, ci: 'bootstrap' } });
+      expect(ci.statusCode).toBe(400);
+      const cli = reckon(['compare', '--env', 'envs/textbook/grid-4x3.json', '--policy', 'envs/textbook/grid-4x3-optimal.json', '--policy', 'envs/textbook/grid-4x3-optimal.json', '--target-error', '0.1', '--ci', 'bootstrap', '--no-store']);
+      expect(`reckon: ${ci.json().error}\n`).toBe(cli.stderr);
+      const badPolicy = await app.inject({ method: 'POST', url: '/api/comparisons', payload: { env: grid, policies: [{ definition: optimal }, { name: 'mine', definition: { kind: 'table', states: { '9,9': 'up' } } }] } });
+      expect(badPolicy.json().field).toBe('policies[1]');
+    } finally {
+      await app.close();
+    }
+  });
+});

@@ -72,7 +72,7 @@ export function convergenceSpec(series: readonly ConvergencePoint[], labels: Con
     {
       mark: { type: 'area', color: COLOURS.skyBlue, opacity: 0.35 },
       encoding: {
-        x: { field: 'episodes', type: 'quantitative', scale: { type: 'log' }, title: 'episodes (log scale)' },
+        x: { field: 'episodes', type: 'quantitative', scale: { type: 'log', nice: false }, title: 'episodes (log scale)' },
         y: { field: 'low', type: 'quantitative', scale: { zero: false }, title: 'running mean return' },
         y2: { field: 'high' },
       },

@@ -2,8 +2,8 @@ import { randomInt } from 'node:crypto';
 import type { FastifyInstance } from 'fastify';
 import { InputError } from '../../errors.js';
 import type { ServerContext } from '../context.js';
-import { prepareEvaluation } from '../evaluation-job.js';
 import { fieldOf, parseBody, planEvaluation } from '../evaluation-request.js';
+import { submitRun } from './submit.js';
 
 /**
  * `POST /api/evaluations`: checks the body, creates the run (in its own thread) and answers
@@ -16,27 +16,7 @@ export function evaluationRoutes(app: FastifyInstance, ctx: ServerContext): void
     const labels = { env: body.env_name ?? 'env', policy: body.policy_name ?? 'policy' };
     try {
       const plan = planEvaluation(body, randomInt(0, 2 ** 31), ctx.limits);
-      const place = ctx.queue.reserve();
-      if (place === null) {
-        const { running, waiting } = ctx.queue.size;
-        return reply
-          .code(429)
-          .header('retry-after', '5')
-          .send({ error: `the server is busy (${running} running, ${waiting} waiting, the most it holds); try again shortly` });
-      }
-      let job;
-      try {
-        job = await prepareEvaluation(ctx.db, ctx.storePath, plan, ctx.toolVersion);
-      } catch (e) {
-        place.release();
-        throw e;
-      }
-      place.add(job);
-      const state = ctx.queue.state(job.id);
-      return reply
-        .code(202)
-        .header('location', `/api/runs/${job.id}`)
-        .send({ id: job.id, status: state?.state ?? 'running', seed: plan.spec.seed, episodes: plan.options.episodes });
+      return await submitRun(ctx, reply, { kind: 'estimate', spec: plan.spec, options: plan.options }, { seed: plan.spec.seed, episodes: plan.options.episodes });
     } catch (e) {
       if (e instanceof InputError) return reply.code(e.httpStatus).send({ error: e.message, field: fieldOf(e, labels) });
       throw e;

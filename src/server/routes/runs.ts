@@ -10,7 +10,9 @@ import type { JobState } from '../run-queue.js';
 /** The run's state as the server knows it: the store's status, or `queued` while it waits here. */
 export function liveState(ctx: ServerContext, run: RunRecord): { status: string; queue: JobState | null; progress: unknown } {
   const queued = ctx.queue.state(run.id);
-  const status = queued?.state === 'queued' ? 'queued' : run.status;
+  // While this server holds the run, its state wins: the store may already say done a moment
+  // before the run's thread has handed over.
+  const status = queued ? queued.state : run.status;
   const progress =
     queued?.state === 'running' && queued.progress
       ? { done: queued.progress.done, total: queued.progress.total, seconds: queued.progress.seconds, mean: queued.progress.mean, half_width: queued.progress.halfWidth }

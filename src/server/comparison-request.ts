@@ -1,0 +1,90 @@
+import { z } from 'zod';
+import { parseOption } from '../cli/options.js';
+import { zodInputError } from '../definitions/index.js';
+import { InputError } from '../errors.js';
+import type { CompareRequest } from '../evaluate/compare.js';
+import { isSequenceMethod, type SequenceChoice } from '../evaluate/sequence.js';
+import type { DifferenceMethod } from '../stats/index.js';
+import { serverRunSize, type ServerLimits } from './evaluation-request.js';
+import { refuseCodeAndPaths } from './inline-definitions.js';
+
+const nameSchema = z.string().regex(/^[\w. ()+-]{1,80}$/, { message: 'must be 1 to 80 letters, digits, spaces or . _ - + ( )' });
+
+/** `POST /api/comparisons`: one environment, two to eight policies inline, and the options of `reckon compare`. */
+export const comparisonBodySchema = z
+  .object({
+    env: z.record(z.string(), z.unknown()),
+    env_name: nameSchema.optional(),
+    policies: z
+      .array(z.object({ name: nameSchema.optional(), definition: z.record(z.string(), z.unknown()) }).strict())
+      .min(2, { message: 'give at least two policies to compare' })
+      .max(8, { message: 'compare at most eight policies at once' }),
+    episodes: z.number().optional(),
+    target_error: z.number().optional(),
+    seed: z.number().optional(),
+    start: z.string().optional(),
+    confidence: z.number().optional(),
+    ci: z.string().optional(),
+    bounds: z.tuple([z.number(), z.number()]).optional(),
+    sigma: z.number().optional(),
+    iqm: z.boolean().optional(),
+  })
+  .strict();
+
+export type ComparisonBody = z.infer<typeof comparisonBodySchema>;
+
+export function parseComparisonBody(body: unknown): ComparisonBody {
+  const result = comparisonBodySchema.safeParse(body ?? {});
+  if (!result.success) throw zodInputError(result.error, body, 'request');
+  return result.data;
+}
+
+/** The labels errors start with: the names given, or env and policy 1, policy 2, … */
+export function comparisonLabels(body: ComparisonBody): { env: string; policies: string[] } {
+  return { env: body.env_name ?? 'env', policies: body.policies.map((p, i) => p.name ?? `policy ${i + 1}`) };
+}
+
+/**
+ * The interval choice as `reckon compare --ci` reads it (same messages): fixed-sample methods
+ * for the differences, or a confidence sequence with a target error.
+ */
+function differenceMethod(ci: string | undefined, targetError: number | null): { method: DifferenceMethod; sequence: SequenceChoice | null } {
+  if (ci === undefined) return { method: 't', sequence: null };
+  const choice = parseOption('ci', 'interval', ci);
+  if (isSequenceMethod(choice)) {
+    if (targetError === null) throw new InputError('--ci', `${choice} is for runs that stop at a target error: add --target-error E`);
+    return { method: 't', sequence: choice };
+  }
+  if (choice === 't' || choice === 'bootstrap' || choice === 'bootstrap-percentile') {
+    if (targetError !== null) {
+      throw new InputError('--ci', `"${choice}" is a fixed-sample interval, which loses its coverage when the run stops on the data; with --target-error use empirical-bernstein, normal-mixture or chow-robbins`);
+    }
+    return { method: choice, sequence: null };
+  }
+  throw new InputError('--ci', `"${choice}" is not offered for differences; choose t, bootstrap or bootstrap-percentile`);
+}
+
+/** A checked comparison body to the request `runStoredComparison` takes; throws InputError (400). */
+export function planComparison(body: ComparisonBody, seed: number, limits: ServerLimits): CompareRequest {
+  refuseCodeAndPaths(body.env, 'env');
+  body.policies.forEach((p) => refuseCodeAndPaths(p.definition, 'policy'));
+  const labels = comparisonLabels(body);
+  const text = (v: number) => String(v);
+  const { episodes, targetError } = serverRunSize(body, limits);
+  const { method, sequence } = differenceMethod(body.ci, targetError);
+  return {
+    env: { json: body.env, source: { label: labels.env, baseDir: limits.baseDir } },
+    policies: body.policies.map((p, i) => ({ json: p.definition, source: { label: labels.policies[i], baseDir: limits.baseDir } })),
+    seed: body.seed === undefined ? seed : parseOption('seed', 'seed', text(body.seed)),
+    start: body.start === undefined ? null : parseOption('start', 'start', body.start),
+    episodes,
+    workers: limits.workers,
+    method,
+    sequence,
+    level: body.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', text(body.confidence)),
+    bounds: body.bounds === undefined ? null : parseOption('bounds', 'bounds', body.bounds.map(text).join(',')),
+    sigma: body.sigma === undefined ? null : parseOption('sigma', 'sigma', text(body.sigma)),
+    targetError,
+    interquartileMean: body.iqm ?? false,
+  };
+}

@@ -1,0 +1,83 @@
+import { randomInt } from 'node:crypto';
+import type { FastifyInstance } from 'fastify';
+import { InputError } from '../../errors.js';
+import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
+import { compareJson } from '../../report/compare-json.js';
+import { listRuns } from '../../store/runs.js';
+import { differencesSpec } from '../../report/plots/differences.js';
+import type { ServerContext } from '../context.js';
+import { comparisonLabels, parseComparisonBody, planComparison } from '../comparison-request.js';
+import { queryOptions } from '../query.js';
+import { findStoredRun, isSettled, liveState } from './runs.js';
+import { submitRun } from './submit.js';
+
+/**
+ * `POST /api/comparisons` (as `reckon compare`: policies on common random numbers, stored as
+ * a comparison run with one member run per policy), `GET /api/comparisons/:id` (what
+ * `runs show ID --json` prints for it, plus status and progress) and its differences plot.
+ */
+export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void {
+  app.post('/api/comparisons', async (request, reply) => {
+    const body = parseComparisonBody(request.body);
+    const labels = comparisonLabels(body);
+    try {
+      const plan = planComparison(body, randomInt(0, 2 ** 31), ctx.limits);
+      return await submitRun(ctx, reply, { kind: 'comparison', request: plan }, { seed: plan.seed, episodes: plan.episodes });
+    } catch (e) {
+      if (!(e instanceof InputError)) throw e;
+      const policy = labels.policies.indexOf(e.where);
+      const field = e.where === labels.env ? 'env' : policy >= 0 ? `policies[${policy}]` : e.where.startsWith('--') ? e.where.slice(2).replace(/-/g, '_') : null;
+      return reply.code(e.httpStatus).send({ error: e.message, field });
+    }
+  });
+
+  const comparisonRun = (id: string) => {
+    const run = findStoredRun(ctx, id);
+    if (run.kind !== 'comparison') throw new InputError(`run ${run.id}`, `is an ${run.kind} run; see it at /api/runs/${run.id}`);
+    return run;
+  };
+
+  app.get<{ Params: { id: string } }>('/api/comparisons/:id', async (request) => {
+    queryOptions(request.query, []);
+    const run = comparisonRun(request.params.id);
+    const live = liveState(ctx, run);
+    if (!isSettled(ctx, run)) {
+      return { run_id: run.id, kind: 'comparison', env: run.env.label, seed: run.seed, status: live.status, progress: live.progress, created_at: run.createdAt };
+    }
+    const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
+    return {
+      ...compareJson(result, labels, run.toolVersion, run.id),
+      kind: 'comparison',
+      status: live.status,
+      created_at: run.createdAt,
+      env_hash: run.env.hash,
+      progress: null,
+      members: ctx.analysis.remember(`members|${run.id}`, () => memberIds(ctx, run.id)),
+    };
+  });
+
+  app.get<{ Params: { id: string } }>('/api/comparisons/:id/plot', async (request) => {
+    queryOptions(request.query, []);
+    const run = comparisonRun(request.params.id);
+    if (!isSettled(ctx, run)) throw new InputError(`run ${run.id}`, 'is still running; its plot comes when it ends');
+    const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
+    const rows = result.comparison.pairs.map((pair, q) => ({
+      pair: `${labels.policies[pair.first]} − ${labels.policies[pair.second]}`,
+      mean: pair.meanDifference,
+      low: result.differenceIntervals[q].low,
+      high: result.differenceIntervals[q].high,
+    }));
+    const interval = result.differenceIntervals[0];
+    return differencesSpec(rows, {
+      title: `Paired differences on ${labels.env} (run ${run.id}, ${result.episodes.toLocaleString('en-US')} episodes each)`,
+      subtitle: `bars: ${Math.round(result.request.level * 100)}% ${interval?.method ?? ''} interval of each difference; dashed: no difference`,
+    });
+  });
+}
+
+/** The member runs (one per policy, in the comparison's order), each a run page of its own. */
+function memberIds(ctx: ServerContext, parentId: string): string[] {
+  return listRuns(ctx.db, { parentId, limit: 1000 })
+    .sort((x, y) => (x.options.policyIndex as number) - (y.options.policyIndex as number))
+    .map((r) => r.id);
+}

@@ -1,0 +1,119 @@
+import { existsSync, mkdirSync, mkdtempSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import type { FastifyInstance } from 'fastify';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { buildApp } from '../../src/server/app.js';
+import { readJson, ROOT, storeTextbookRun, tempStore } from './helpers.js';
+
+const CHROMIUM = '/usr/bin/chromium';
+const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--no-first-run'];
+// The README's screenshot is this test's: RECKON_UPDATE_SCREENSHOT=1 writes it to docs/;
+// otherwise it goes to a temporary folder, so a test run leaves the tree as it was.
+const SCREENSHOT =
+  process.env.RECKON_UPDATE_SCREENSHOT === '1'
+    ? path.join(ROOT, 'docs', 'review-server.png')
+    : path.join(mkdtempSync(path.join(tmpdir(), 'reckon-screenshot-')), 'review-server.png');
+const haveChromium = existsSync(CHROMIUM);
+
+// CI must run this test (.ci/run installs Chromium); elsewhere it may be skipped, saying why.
+if (!haveChromium && process.env.CI === 'true') {
+  throw new Error(`${CHROMIUM} is missing; CI must install Debian's chromium package (see .ci/run)`);
+}
+if (!haveChromium) console.warn(`test/server/browser.test.ts skipped: ${CHROMIUM} not found (apt-get install chromium)`);
+
+describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
+  let app: FastifyInstance;
+  let base: string;
+  let browser: import('playwright-core').Browser;
+
+  beforeAll(async () => {
+    const storePath = tempStore();
+    await storeTextbookRun(storePath, 31, 3000);
+    app = await buildApp({ storePath, toolVersion: 'test', workers: 1 });
+    base = await app.listen({ host: '127.0.0.1', port: 0 });
+    const { chromium } = await import('playwright-core');
+    browser = await chromium.launch({ executablePath: CHROMIUM, args: FLAGS });
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await app?.close();
+  });
+
+  it('submits an evaluation through the form, follows it, and draws its plots with data', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 1500 } });
+    const outside: string[] = [];
+    page.on('request', (request) => {
+      if (!request.url().startsWith(base)) outside.push(request.url());
+    });
+    const problems: string[] = [];
+    page.on('pageerror', (e) => problems.push(e.message));
+
+    // The form shows a bad field's message beside that field.
+    await page.goto(`${base}/#/new`);
+    await page.waitForSelector('#evaluation-form');
+    await page.fill('#episodes', '1');
+    await page.click('#submit');
+    await expect.poll(() => page.textContent('#error-episodes')).toMatch(/--episodes: must be between 2/);
+
+    // A good one: the warehouse demo with the careful route (the form's defaults), fixed seed.
+    await page.selectOption('#env-choice', 'warehouse.json');
+    await page.selectOption('#policy-choice', 'picker-careful.json');
+    await page.fill('#episodes', '20000');
+    await page.fill('#seed', '4');
+    await page.click('#submit');
+    await page.waitForURL(/#\/runs\/\w+$/);
+    const id = page.url().split('/').pop()!;
+
+    // The run page redraws when the run ends; then every plot has marks.
+    await page.waitForSelector('#plot-convergence[data-rendered="true"]', { timeout: 30_000 });
+    for (const kind of ['convergence', 'histogram', 'lengths', 'value-map']) {
+      await page.waitForSelector(`#plot-${kind}[data-rendered="true"]`);
+      const marks = Number(await page.getAttribute(`#plot-${kind}`, 'data-marks'));
+      expect(marks, kind).toBeGreaterThan(0);
+    }
+    // The convergence line has one point per checkpoint (a path with many segments), the
+    // histogram at least two bars, and the value map one square per open cell (warehouse: 7×10 minus 18 shelves).
+    const lineSegments = await page.$eval('#plot-convergence g.mark-line path', (p) => (p.getAttribute('d') ?? '').split('L').length);
+    expect(lineSegments).toBeGreaterThan(50);
+    expect(await page.$$eval('#plot-histogram g.mark-rect path', (bars) => bars.length)).toBeGreaterThan(1);
+    expect(await page.textContent('#projection')).toMatch(/episodes needed/);
+    expect(await page.textContent('h1')).toMatch(/picker-careful\.json on warehouse\.json\s*done/);
+
+    // The runs list shows it, filterable by environment.
+    await page.goto(`${base}/#/`);
+    await page.waitForSelector(`#runs-table tr[data-id="${id}"]`);
+    await page.selectOption('#filter-env', 'warehouse.json');
+    expect(await page.$$eval('#runs-table tbody tr', (rows) => rows.length)).toBe(1);
+
+    // A comparison (posted over the API) gets its page: the differences around zero, the ranking.
+    const posted = await fetch(`${base}/api/comparisons`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({
+        env: readJson('warehouse.json'),
+        env_name: 'warehouse.json',
+        policies: [{ name: 'picker-direct.json', definition: readJson('picker-direct.json') }, { name: 'picker-careful.json', definition: readJson('picker-careful.json') }],
+        episodes: 5000,
+        seed: 1,
+      }),
+    });
+    const comparison = ((await posted.json()) as { id: string }).id;
+    await page.goto(`${base}/#/comparisons/${comparison}`);
+    await page.waitForSelector('#plot-differences[data-rendered="true"]', { timeout: 30_000 }).catch(async (e) => {
+      throw new Error(`${e.message}; the page says: ${await page.textContent('#main')}; errors: ${problems.join('; ')}`);
+    });
+    expect(await page.$$eval('#plot-differences g.mark-symbol path', (points) => points.length)).toBe(1);
+    expect(await page.textContent('ol.ranking')).toMatch(/picker-careful\.json/);
+
+    // Back to the run for the README's screenshot.
+    await page.goto(`${base}/#/runs/${id}`);
+    await page.waitForSelector('#plot-value-map[data-rendered="true"]');
+    mkdirSync(path.dirname(SCREENSHOT), { recursive: true });
+    await page.screenshot({ path: SCREENSHOT, fullPage: true, type: 'png' });
+    expect(statSync(SCREENSHOT).size).toBeGreaterThan(10_000);
+
+    expect(outside, 'requests to other hosts').toEqual([]);
+    expect(problems, 'errors in the page').toEqual([]);
+  });
+});
