@@ -10,13 +10,16 @@ export interface HistogramBin {
 }
 
 const MAX_BINS = 120;
+/** Up to this many whole-number values in range, each gets its own bar. */
+const INTEGER_BARS = 60;
 
 /**
  * Counts in equal-width bins. Width by the Freedman–Diaconis rule h = 2·IQR·n^(−1/3)
  * (Freedman & Diaconis 1981, Z. Wahrscheinlichkeitstheorie verw. Gebiete 57:453–476), which
  * resists long tails; when the IQR is 0 (most returns equal), Sturges' ⌈log₂ n⌉ + 1 bins over
  * the range (Sturges 1926, JASA 21:65–66). `integer` values (episode lengths) get whole-number
- * widths and edges at k − 0.5, so each bar covers whole lengths. Binned here, not in the plot,
+ * widths and edges at k − 0.5, so each bar covers whole lengths: width 1 when at most 60
+ * values are in range, else the rule's width rounded up. Binned here, not in the plot,
  * so a spec carries at most 120 bars however many episodes a run has.
  */
 export function histogramBins(values: ArrayLike<number>, options: { integer?: boolean } = {}): HistogramBin[] {
@@ -34,7 +37,8 @@ export function histogramBins(values: ArrayLike<number>, options: { integer?: bo
   width = Math.max(width, (max - min) / MAX_BINS);
   let start = min;
   if (options.integer) {
-    width = Math.max(1, Math.ceil(width));
+    // Few distinct lengths: one bar each, so none is merged with its neighbour.
+    width = max - min + 1 <= INTEGER_BARS ? 1 : Math.max(1, Math.ceil(width));
     start = min - 0.5;
   }
   const bins = Math.max(1, Math.ceil((max - start) / width + (options.integer ? 0 : 1e-12)));
