@@ -1,5 +1,5 @@
 import { runEpisodes } from '../engine/pool.js';
-import { prepareRollout } from '../engine/prepare.js';
+import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';
@@ -64,9 +64,11 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
   if (request.policies.length < 2) throw new InputError('--policy', 'a comparison needs at least two policies: give --policy twice or more');
   const specs: RolloutSpec[] = request.policies.map((policy) => ({ env: request.env, policy, seed: request.seed, start: request.start }));
   const facts: EnvironmentFacts[] = [];
+  const prepared: PreparedRollout[] = [];
   for (const spec of specs) {
-    const prepared = await prepareRollout(spec);
-    facts.push(environmentFacts(prepared.env, prepared.policy, prepared.startIndex));
+    const ready = await prepareRollout(spec);
+    prepared.push(ready);
+    facts.push(environmentFacts(ready.env, ready.policy, ready.startIndex));
   }
   const k = specs.length;
   const pairs: [number, number][] = [];
@@ -101,6 +103,7 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
     for (let p = 0; p < k; p++) {
       const collected: EpisodeBlock[] = [];
       await runEpisodes(specs[p], {
+        prepared: prepared[p],
         first: done,
         count,
         workers: request.workers,

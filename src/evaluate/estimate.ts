@@ -145,6 +145,7 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   let outcomeSeconds = 0;
   if (!reached && buffer.count < request.episodes) {
     const outcome = await runEpisodes(spec, {
+      prepared,
       first: first + buffer.count,
       count: request.episodes - buffer.count,
       workers: request.workers,

@@ -33,6 +33,7 @@ export async function runPilot(spec: RolloutSpec, options: PilotOptions): Promis
   const started = performance.now();
   let warmAt: { seconds: number; episodes: number } | null = null;
   const outcome = await runEpisodes(spec, {
+    prepared,
     first: 0,
     count: options.episodes ?? options.maxEpisodes,
     workers: options.workers,
