@@ -112,7 +112,8 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   }
   request.onFacts?.(facts, method);
 
-  const buffer = new ReturnsBuffer(request.episodes, facts.horizon);
+  // A fixed-size run knows its size; a target-error run's cap may be far more than it will use.
+  const buffer = new ReturnsBuffer(request.targetError === null ? request.episodes : Math.min(request.episodes, 1 << 16), facts.horizon);
   const moments = new RunningMoments();
   const sequence = sequenceSettings ? makeRunningInterval(sequenceSettings) : null;
   const single = new Float64Array(1);
