@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { parseOption } from '../cli/options.js';
+import { parseOption } from '../options/parse-option.js';
 import { zodInputError } from '../definitions/index.js';
 import { InputError } from '../errors.js';
 import type { CompareRequest } from '../evaluate/compare.js';

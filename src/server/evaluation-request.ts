@@ -1,6 +1,6 @@
 import { z } from 'zod';
-import { parseOption } from '../cli/options.js';
-import { runSize } from '../cli/run-size.js';
+import { parseOption } from '../options/parse-option.js';
+import { runSize } from '../options/run-size.js';
 import { zodInputError } from '../definitions/index.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';

@@ -11,8 +11,8 @@ import type { DifferenceMethod } from '../../stats/index.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
 import { parseCommandArgs, required } from '../args.js';
-import { parseOption } from '../options.js';
-import { runSize } from '../run-size.js';
+import { parseOption } from '../../options/parse-option.js';
+import { runSize } from '../../options/run-size.js';
 import { ProgressLine } from '../progress.js';
 import { version } from '../version.js';
 

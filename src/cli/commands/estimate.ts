@@ -11,8 +11,8 @@ import { parseShard, shardInfo, shardRange } from '../shard.js';
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { parseCommandArgs, required } from '../args.js';
-import { parseOption } from '../options.js';
-import { runSize } from '../run-size.js';
+import { parseOption } from '../../options/parse-option.js';
+import { runSize } from '../../options/run-size.js';
 import { ProgressLine } from '../progress.js';
 import { version } from '../version.js';
 

@@ -4,7 +4,7 @@ import { exactEvaluation } from '../../exact/index.js';
 import { exactJson } from '../../report/exact-json.js';
 import { exactText } from '../../report/exact-text.js';
 import { parseCommandArgs, required } from '../args.js';
-import { parseOption } from '../options.js';
+import { parseOption } from '../../options/parse-option.js';
 
 export const HELP = `reckon exact: the exact expected return of a policy on a finite environment
 

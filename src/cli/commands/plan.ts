@@ -7,7 +7,7 @@ import { columns, count, duration, rate as formatRate, sig } from '../../report/
 import { differenceBounds, pairedSampleSize, planEpisodes, summarize } from '../../stats/index.js';
 import { pairingGain } from '../../stats/pairing-gain.js';
 import { parseCommandArgs, required } from '../args.js';
-import { parseOption } from '../options.js';
+import { parseOption } from '../../options/parse-option.js';
 
 export const HELP = `reckon plan: how many episodes, and how long, before running them
 

@@ -7,7 +7,7 @@ import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
 import { getRun, loadEpisodes } from '../../store/runs.js';
 import { parseCommandArgs } from '../args.js';
-import { parseOption } from '../options.js';
+import { parseOption } from '../../options/parse-option.js';
 
 /**
  * `reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]`: the

@@ -4,15 +4,16 @@ import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-es
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
+import { runListRow, runShowJson } from '../../report/run-json.js';
 import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
 import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
 import { defaultStorePath } from '../../store/location.js';
 import { mergeShards } from '../../store/merge.js';
 import { openStore, type Db } from '../../store/open.js';
-import { deleteRun, getRun, listRuns, loadEpisodes, type RunRecord } from '../../store/runs.js';
+import { deleteRun, getRun, listRuns, loadEpisodes } from '../../store/runs.js';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
-import { parseOption } from '../options.js';
+import { parseOption } from '../../options/parse-option.js';
 import { ProgressLine } from '../progress.js';
 import { version } from '../version.js';
 
@@ -63,21 +64,6 @@ function oneId(sub: string, positionals: string[]): string {
   return positionals[0];
 }
 
-function showJson(run: RunRecord, json: ReturnType<typeof estimateJson>) {
-  return {
-    ...json,
-    status: run.status,
-    created_at: run.createdAt,
-    finished_at: run.finishedAt,
-    env_hash: run.env.hash,
-    policy_hash: run.policy.hash,
-    shard: run.shard,
-    episodes_requested: run.episodesRequested,
-    tool_version: run.toolVersion,
-    machine: run.machine,
-  };
-}
-
 export async function run(args: string[]): Promise<number> {
   const [sub, ...rest] = args;
   if (sub === undefined || sub === '--help' || sub === '-h') {
@@ -117,21 +103,7 @@ function list(args: string[]): number {
   try {
     const runs = listRuns(db, { envHash: values['env-hash'], policy: values.policy, limit, parentId: null });
     if (values.json) {
-      const rows = runs.map((r) => ({
-        id: r.id,
-        kind: r.kind,
-        status: r.status,
-        created_at: r.createdAt,
-        env: r.env.label,
-        env_hash: r.env.hash,
-        policy: r.policy.label,
-        policy_hash: r.policy.hash,
-        seed: r.seed,
-        episodes: r.episodesDone,
-        episodes_requested: r.episodesRequested,
-        shard: r.shard,
-        summary: r.summary,
-      }));
+      const rows = runs.map(runListRow);
       process.stdout.write(`${JSON.stringify(rows, null, 2)}\n`);
     } else {
       process.stdout.write(runsListText(runs));
@@ -163,7 +135,7 @@ function show(args: string[]): number {
     const result = analyzeStoredRun(db, run, { method, level });
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) {
-      process.stdout.write(`${JSON.stringify(showJson(run, estimateJson(result, labels, run.toolVersion, run.id)), null, 2)}\n`);
+      process.stdout.write(`${JSON.stringify(runShowJson(run, result), null, 2)}\n`);
     } else {
       const shard = run.shard ? `, shard ${run.shard.index}/${run.shard.count}` : '';
       process.stdout.write(`Run ${run.id} (${run.status}${shard}), started ${run.createdAt}, reckon ${run.toolVersion}\n`);

@@ -3,7 +3,7 @@ import { InputError } from '../../errors.js';
 import { isLoopbackHost } from '../../server/auth.js';
 import { defaultStorePath } from '../../store/location.js';
 import { parseCommandArgs } from '../args.js';
-import { parseOption } from '../options.js';
+import { parseOption } from '../../options/parse-option.js';
 import { version } from '../version.js';
 
 export const HELP = `reckon serve: review stored runs in a web page, and start evaluations over HTTP

@@ -1,10 +1,10 @@
 import type { FastifyInstance } from 'fastify';
-import { parseOption } from '../../cli/options.js';
+import { parseOption } from '../../options/parse-option.js';
 import { InputError } from '../../errors.js';
 import { getRun, listRuns, type RunRecord } from '../../store/runs.js';
 import type { ServerContext } from '../context.js';
 import { queryOptions } from '../query.js';
-import { runListRow, runPendingJson, runShowJson } from '../run-json.js';
+import { runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
 import type { JobState } from '../run-queue.js';
 
 /** The run's state as the server knows it: the store's status, or `queued` while it waits here. */

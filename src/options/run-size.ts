@@ -1,5 +1,5 @@
 import { InputError } from '../errors.js';
-import { parseOption } from './options.js';
+import { parseOption } from './parse-option.js';
 
 /** Default episodes of a fixed-size run, and the default cap of a run until a target error. */
 export const DEFAULT_EPISODES = 10_000;
