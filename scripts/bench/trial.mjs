@@ -32,7 +32,7 @@ const RUNNERS = {
    * as the reference loops; the C loop is compiled before it is timed, too). Worker threads
    * are new in each run, so their own warm-up is in both.
    */
-  async engine({ env, policy, seed, episodes, workers }) {
+  async engine({ env, policy, seed, episodes, workers, cold: withCold = true }) {
     const { runEpisodes } = await import('../../dist/engine/pool.js');
     const { prepareRollout } = await import('../../dist/engine/prepare.js');
     const spec = await specOf(env, policy, seed);
@@ -40,7 +40,7 @@ const RUNNERS = {
     const load = await timed(() => prepareRollout(spec));
     const run = (first, check) =>
       timed(() => runEpisodes(spec, { first, count: episodes, workers, prepared: load.result, onBlock: (b) => check.add(b.returns, b.lengths) }));
-    const cold = await run(episodes, new ReturnsChecksum());
+    const cold = withCold ? await run(episodes, new ReturnsChecksum()) : { seconds: null, result: { steps: null } };
     const check = new ReturnsChecksum();
     const { result, seconds, cpuSeconds } = await run(0, check);
     return {

@@ -8,6 +8,8 @@ import { WORKLOADS, RUN_SEED } from './workloads.mjs';
 export const STATE_COUNTS = [100, 1_000, 10_000, 100_000];
 /** Horizons for "time per episode against the horizon", on a 400-state MDP without terminal states. */
 export const HORIZONS = [10, 100, 1_000, 10_000];
+/** Workloads rerun longer (episodes × factor) to measure how throughput scales with workers. */
+export const THROUGHPUT_FACTORS = [['a', 5], ['b', 3]];
 /** Episode counts for the memory trials: peak memory should grow by the 8 bytes an episode keeps. */
 export const MEMORY_EPISODES = [200_000, 1_200_000];
 
@@ -27,6 +29,15 @@ export function buildTrials({ prepared, scaling, cores, binary, root }) {
     trials.push({ group: 'workload', workload: w.id, runnerLabel: 'engine-all', run: { runner: 'engine', ...base, workers: cores } });
     if (w.table && binary) trials.push({ group: 'workload', workload: w.id, runnerLabel: 'c', run: { runner: 'c', binary, table: w.table, seed, episodes: w.episodes } });
     if (w.table) trials.push({ group: 'workload', workload: w.id, runnerLabel: 'naive', run: { runner: 'naive', ...base } });
+  }
+  // Worker scaling needs runs long enough that starting threads and warming their JIT is a
+  // small part: the same workloads with more episodes, engine only, no separate cold run.
+  for (const [id, factor] of THROUGHPUT_FACTORS) {
+    const w = prepared.find((x) => x.id === id);
+    if (!w) continue;
+    const base = { env: w.env, policy: w.policy, seed, episodes: w.episodes * factor, cold: false };
+    trials.push({ group: 'throughput', workload: id, runnerLabel: 'engine-1', run: { runner: 'engine', ...base, workers: 1 } });
+    trials.push({ group: 'throughput', workload: id, runnerLabel: 'engine-all', run: { runner: 'engine', ...base, workers: cores } });
   }
   for (const states of STATE_COUNTS) {
     const table = scaling.states[states];
