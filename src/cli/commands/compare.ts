@@ -1,6 +1,4 @@
-import { randomInt } from 'node:crypto';
 import { readDefinitionFile } from '../../definitions/index.js';
-import { defaultWorkers } from '../../engine/pool.js';
 import { InputError } from '../../errors.js';
 import { runComparison, type CompareRequest, type ComparisonResult } from '../../evaluate/compare.js';
 import { isSequenceMethod, type SequenceChoice } from '../../evaluate/sequence.js';
@@ -13,6 +11,7 @@ import { openStore } from '../../store/open.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { runSize } from '../../options/run-size.js';
+import { parseRunOptions } from '../../options/run-options.js';
 import { ProgressLine } from '../progress.js';
 import { version } from '../version.js';
 
@@ -87,12 +86,7 @@ export async function run(args: string[]): Promise<number> {
     throw new InputError('--policy', `give at least two policies to compare (got ${policyPaths.length}), e.g. --policy envs/picker-direct.json --policy envs/picker-careful.json`);
   }
   const { episodes, targetError } = runSize(values);
-  const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
-  const level = values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence);
-  const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);
-  const bounds = values.bounds === undefined ? null : parseOption('bounds', 'bounds', values.bounds);
-  const sigma = values.sigma === undefined ? null : parseOption('sigma', 'sigma', values.sigma);
-  const start = values.start === undefined ? null : parseOption('start', 'start', values.start);
+  const { seed, workers, level, bounds, sigma, start } = parseRunOptions(values);
   let method: DifferenceMethod = 't';
   let sequence: SequenceChoice | null = null;
   if (values.ci !== undefined) {

@@ -1,6 +1,4 @@
-import { randomInt } from 'node:crypto';
 import { readDefinitionFile } from '../../definitions/index.js';
-import { defaultWorkers } from '../../engine/pool.js';
 import type { RolloutSpec } from '../../engine/spec.js';
 import { runEstimate, type EstimateResult } from '../../evaluate/estimate.js';
 import { runStoredEstimate } from '../../evaluate/stored-estimate.js';
@@ -13,6 +11,7 @@ import { estimateText } from '../../report/estimate-text.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { runSize } from '../../options/run-size.js';
+import { parseRunOptions } from '../../options/run-options.js';
 import { ProgressLine } from '../progress.js';
 import { version } from '../version.js';
 
@@ -83,13 +82,8 @@ export async function run(args: string[]): Promise<number> {
   const envPath = required('estimate', 'env', values.env, '--env envs/warehouse.json');
   const policyPath = required('estimate', 'policy', values.policy, '--policy envs/picker-direct.json');
   const { episodes, targetError } = runSize(values);
-  const sigma = values.sigma === undefined ? null : parseOption('sigma', 'sigma', values.sigma);
-  const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
-  const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);
-  const level = values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence);
+  const { seed, workers, level, bounds, sigma, start } = parseRunOptions(values);
   const method = values.ci === undefined ? null : parseOption('ci', 'interval', values.ci);
-  const bounds = values.bounds === undefined ? null : parseOption('bounds', 'bounds', values.bounds);
-  const start = values.start === undefined ? null : parseOption('start', 'start', values.start);
 
   const shard = values.shard === undefined ? null : parseShard(values.shard);
   const range = shard ? shardRange(shard, episodes) : { first: 0, count: episodes };

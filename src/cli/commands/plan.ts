@@ -1,6 +1,4 @@
-import { randomInt } from 'node:crypto';
 import { readDefinitionFile } from '../../definitions/index.js';
-import { defaultWorkers } from '../../engine/pool.js';
 import { InputError } from '../../errors.js';
 import { runPilot, type PilotResult } from '../../evaluate/pilot.js';
 import { columns, count, duration, rate as formatRate, sig } from '../../report/format.js';
@@ -8,6 +6,7 @@ import { differenceBounds, pairedSampleSize, planEpisodes, summarize } from '../
 import { pairingGain } from '../../stats/pairing-gain.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
+import { parseRunOptions } from '../../options/run-options.js';
 
 export const HELP = `reckon plan: how many episodes, and how long, before running them
 
@@ -70,13 +69,9 @@ export async function run(args: string[]): Promise<number> {
   const policyPaths = (values.policy as string[] | undefined) ?? [];
   if (policyPaths.length === 0) throw new InputError('--policy', "is required; e.g. --policy envs/picker-direct.json (see 'reckon plan --help')");
   if (policyPaths.length > 2) throw new InputError('--policy', 'plan takes one policy (an estimate) or two (a comparison)');
-  const level = values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence);
-  const workers = values.workers === undefined ? defaultWorkers() : parseOption('workers', 'workers', values.workers);
-  const seed = values.seed === undefined ? randomInt(0, 2 ** 31) : parseOption('seed', 'seed', values.seed);
-  const userBounds = values.bounds === undefined ? null : parseOption('bounds', 'bounds', values.bounds);
-  const sigma = values.sigma === undefined ? undefined : parseOption('sigma', 'sigma', values.sigma);
+  const { seed, workers, level, bounds: userBounds, sigma: givenSigma, start } = parseRunOptions(values);
+  const sigma = givenSigma ?? undefined;
   const pilotEpisodes = values.pilot === undefined ? null : parseOption('pilot', 'episodes', values.pilot);
-  const start = values.start === undefined ? null : parseOption('start', 'start', values.start);
   const env = readDefinitionFile(envPath);
   const pilotOptions = { episodes: pilotEpisodes, seconds: 2, minEpisodes: 100, maxEpisodes: 200_000, workers };
   const pilot = (policyPath: string) => runPilot({ env, policy: readDefinitionFile(policyPath), seed, start }, pilotOptions);
