@@ -86,6 +86,9 @@ export async function run(args: string[]): Promise<number> {
   const method = values.ci === undefined ? null : parseOption('ci', 'interval', values.ci);
 
   const shard = values.shard === undefined ? null : parseShard(values.shard);
+  if (shard && targetError !== null) {
+    throw new InputError('--shard', 'cannot split a --target-error run: where it stops depends on all its episodes in order; shard a run of fixed --episodes instead');
+  }
   const range = shard ? shardRange(shard, episodes) : { first: 0, count: episodes };
   if (range.count < 2) throw new InputError('--shard', `leaves ${range.count} episode(s) for shard ${shard?.index}; give more --episodes or fewer shards`);
 
