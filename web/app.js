@@ -133,14 +133,15 @@ async function renderRunList() {
     const body = shown.map((r) => {
       const link = r.kind === 'comparison' ? `#/comparisons/${r.id}` : `#/runs/${r.id}`;
       const summary = r.summary;
-      const mean = r.kind === 'comparison' ? 'comparison' : summary?.mean !== undefined ? `${num(summary.mean)} ± ${num(summary.ci?.halfWidth ?? summary.ci?.half_width, 2)}` : r.progress?.mean != null ? `${num(r.progress.mean)} ± ${num(r.progress.half_width, 2)} (so far)` : '–';
+      const first = r.kind === 'comparison' ? summary?.differences?.[0] : null;
+      const mean = r.kind === 'comparison' ? (first ? `Δ[${first.a}−${first.b}] ${num(first.mean)} ± ${num(first.half_width, 2)}` : 'comparison') : summary?.mean !== undefined ? `${num(summary.mean)} ± ${num(summary.ci?.halfWidth ?? summary.ci?.half_width, 2)}` : r.progress?.mean != null ? `${num(r.progress.mean)} ± ${num(r.progress.half_width, 2)} (so far)` : '–';
       const done = r.progress ? r.progress.done : r.episodes;
       return el('tr', { 'data-id': r.id, 'data-status': r.status },
         el('td', {}, el('a', { href: link }, r.id)),
         el('td', {}, new Date(r.created_at).toLocaleString()),
         el('td', {}, r.env),
         el('td', {}, r.policy),
-        el('td', { class: 'number' }, `${count(done)} / ${count(r.episodes_requested)}`, r.status === 'running' ? progressBar(r.progress ?? { done, total: r.episodes_requested }) : null),
+        el('td', { class: 'number' }, r.status === 'done' ? count(done) : `${count(done)} / ${count(r.episodes_requested)}`, r.status === 'running' ? progressBar(r.progress ?? { done, total: r.episodes_requested }) : null),
         el('td', { class: 'number' }, mean),
         el('td', {}, badge(r.status)));
     });
@@ -283,7 +284,7 @@ async function renderComparison(id) {
         el('td', {}, `${names[d.a]} − ${names[d.b]}`),
         el('td', { class: 'number' }, num(d.mean)),
         el('td', { class: 'number' }, `${num(d.low)} to ${num(d.high)}`),
-        el('td', { class: 'number' }, num(d.adjusted_p_value, 2)),
+        el('td', { class: 'number' }, d.adjusted_p_value < 1e-16 ? '< 1e-16' : num(d.adjusted_p_value, 2)),
         el('td', { class: 'number' }, d.variance_reduction === null ? '–' : `${num(d.variance_reduction, 3)}×`))))),
   );
   await drawPlot(plot, await api(`/api/comparisons/${encodeURIComponent(id)}/plot`));

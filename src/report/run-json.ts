@@ -14,7 +14,8 @@ export function runListRow(r: RunRecord) {
     policy: r.policy.label,
     policy_hash: r.policy.hash,
     seed: r.seed,
-    episodes: r.episodesDone,
+    // A comparison keeps its episodes in its member runs; its summary counts them.
+    episodes: r.kind === 'comparison' ? Number((r.summary as { episodes?: number } | null)?.episodes ?? 0) : r.episodesDone,
     episodes_requested: r.episodesRequested,
     shard: r.shard,
     summary: r.summary,
