@@ -26,9 +26,9 @@ export function runListRow(r: RunRecord) {
  * `GET /api/runs/:id`: the object `reckon runs show --json` prints (the estimate's keys plus
  * the run's provenance). test/server/api.test.ts checks the two agree key for key.
  */
-export function runShowJson(run: RunRecord, result: EstimateResult) {
+/** Where a run came from and where it stands: the keys every run object adds to its figures. */
+function provenance(run: RunRecord) {
   return {
-    ...estimateJson(result, { env: run.env.label, policy: run.policy.label }, run.toolVersion, run.id),
     status: run.status,
     created_at: run.createdAt,
     finished_at: run.finishedAt,
@@ -41,6 +41,13 @@ export function runShowJson(run: RunRecord, result: EstimateResult) {
   };
 }
 
+export function runShowJson(run: RunRecord, result: EstimateResult) {
+  return {
+    ...estimateJson(result, { env: run.env.label, policy: run.policy.label }, run.toolVersion, run.id),
+    ...provenance(run),
+  };
+}
+
 /** What can be said of a run with fewer than two episodes stored (queued, or just started). */
 export function runPendingJson(run: RunRecord) {
   return {
@@ -50,15 +57,7 @@ export function runPendingJson(run: RunRecord) {
     episodes: run.episodesDone,
     seed: run.seed,
     start: run.start,
-    status: run.status,
-    created_at: run.createdAt,
-    finished_at: run.finishedAt,
-    env_hash: run.env.hash,
-    policy_hash: run.policy.hash,
-    shard: run.shard,
-    episodes_requested: run.episodesRequested,
-    tool_version: run.toolVersion,
-    machine: run.machine,
+    ...provenance(run),
     error: run.error,
   };
 }

@@ -1,14 +1,10 @@
 import { z } from 'zod';
 import { parseOption } from '../options/parse-option.js';
 import { zodInputError } from '../definitions/index.js';
-import { InputError } from '../errors.js';
 import type { CompareRequest } from '../evaluate/compare.js';
-import { isSequenceMethod, type SequenceChoice } from '../evaluate/sequence.js';
-import type { DifferenceMethod } from '../stats/index.js';
-import { serverRunSize, type ServerLimits } from './evaluation-request.js';
+import { differenceMethod } from '../options/difference-method.js';
+import { nameSchema, runOptionFields, serverRunSize, type ServerLimits } from './evaluation-request.js';
 import { refuseCodeAndPaths } from './inline-definitions.js';
-
-const nameSchema = z.string().regex(/^[\w. ()+-]{1,80}$/, { message: 'must be 1 to 80 letters, digits, spaces or . _ - + ( )' });
 
 /** `POST /api/comparisons`: one environment, two to eight policies inline, and the options of `reckon compare`. */
 export const comparisonBodySchema = z
@@ -19,14 +15,7 @@ export const comparisonBodySchema = z
       .array(z.object({ name: nameSchema.optional(), definition: z.record(z.string(), z.unknown()) }).strict())
       .min(2, { message: 'give at least two policies to compare' })
       .max(8, { message: 'compare at most eight policies at once' }),
-    episodes: z.number().optional(),
-    target_error: z.number().optional(),
-    seed: z.number().optional(),
-    start: z.string().optional(),
-    confidence: z.number().optional(),
-    ci: z.string().optional(),
-    bounds: z.tuple([z.number(), z.number()]).optional(),
-    sigma: z.number().optional(),
+    ...runOptionFields,
     iqm: z.boolean().optional(),
   })
   .strict();
@@ -42,26 +31,6 @@ export function parseComparisonBody(body: unknown): ComparisonBody {
 /** The labels errors start with: the names given, or env and policy 1, policy 2, … */
 export function comparisonLabels(body: ComparisonBody): { env: string; policies: string[] } {
   return { env: body.env_name ?? 'env', policies: body.policies.map((p, i) => p.name ?? `policy ${i + 1}`) };
-}
-
-/**
- * The interval choice as `reckon compare --ci` reads it (same messages): fixed-sample methods
- * for the differences, or a confidence sequence with a target error.
- */
-function differenceMethod(ci: string | undefined, targetError: number | null): { method: DifferenceMethod; sequence: SequenceChoice | null } {
-  if (ci === undefined) return { method: 't', sequence: null };
-  const choice = parseOption('ci', 'interval', ci);
-  if (isSequenceMethod(choice)) {
-    if (targetError === null) throw new InputError('--ci', `${choice} is for runs that stop at a target error: add --target-error E`);
-    return { method: 't', sequence: choice };
-  }
-  if (choice === 't' || choice === 'bootstrap' || choice === 'bootstrap-percentile') {
-    if (targetError !== null) {
-      throw new InputError('--ci', `"${choice}" is a fixed-sample interval, which loses its coverage when the run stops on the data; with --target-error use empirical-bernstein, normal-mixture or chow-robbins`);
-    }
-    return { method: choice, sequence: null };
-  }
-  throw new InputError('--ci', `"${choice}" is not offered for differences; choose t, bootstrap or bootstrap-percentile`);
 }
 
 /** A checked comparison body to the request `runStoredComparison` takes; throws InputError (400). */

@@ -8,9 +8,21 @@ import type { StoredOptions } from '../evaluate/stored-estimate.js';
 import { refuseCodeAndPaths } from './inline-definitions.js';
 
 /** A definition's display name: what `runs list` shows and what error messages start with. */
-const nameSchema = z
+export const nameSchema = z
   .string()
   .regex(/^[\w. ()+-]{1,80}$/, { message: 'must be 1 to 80 letters, digits, spaces or . _ - + ( )' });
+
+/** The run options both request bodies share, under the JSON names of the command-line options. */
+export const runOptionFields = {
+  episodes: z.number().optional(),
+  target_error: z.number().optional(),
+  seed: z.number().optional(),
+  start: z.string().optional(),
+  confidence: z.number().optional(),
+  ci: z.string().optional(),
+  bounds: z.tuple([z.number(), z.number()]).optional(),
+  sigma: z.number().optional(),
+};
 
 /**
  * `POST /api/evaluations`: the definitions inline (the same zod schemas as files check them,
@@ -23,14 +35,7 @@ export const evaluationBodySchema = z
     policy: z.record(z.string(), z.unknown()),
     env_name: nameSchema.optional(),
     policy_name: nameSchema.optional(),
-    episodes: z.number().optional(),
-    target_error: z.number().optional(),
-    seed: z.number().optional(),
-    start: z.string().optional(),
-    confidence: z.number().optional(),
-    ci: z.string().optional(),
-    bounds: z.tuple([z.number(), z.number()]).optional(),
-    sigma: z.number().optional(),
+    ...runOptionFields,
   })
   .strict();
 

@@ -1,15 +1,13 @@
 import { readDefinitionFile } from '../../definitions/index.js';
 import { InputError } from '../../errors.js';
 import { runComparison, type CompareRequest, type ComparisonResult } from '../../evaluate/compare.js';
-import { isSequenceMethod, type SequenceChoice } from '../../evaluate/sequence.js';
+import { differenceMethod } from '../../options/difference-method.js';
 import { runStoredComparison } from '../../evaluate/stored-compare.js';
 import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
-import type { DifferenceMethod } from '../../stats/index.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
 import { parseCommandArgs, required } from '../args.js';
-import { parseOption } from '../../options/parse-option.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
 import { ProgressLine } from '../progress.js';
@@ -87,20 +85,7 @@ export async function run(args: string[]): Promise<number> {
   }
   const { episodes, targetError } = runSize(values);
   const { seed, workers, level, bounds, sigma, start } = parseRunOptions(values);
-  let method: DifferenceMethod = 't';
-  let sequence: SequenceChoice | null = null;
-  if (values.ci !== undefined) {
-    const ci = parseOption('ci', 'interval', values.ci);
-    if (isSequenceMethod(ci)) {
-      if (targetError === null) throw new InputError('--ci', `${ci} is for runs that stop at a target error: add --target-error E`);
-      sequence = ci;
-    } else if (ci === 't' || ci === 'bootstrap' || ci === 'bootstrap-percentile') {
-      if (targetError !== null) throw new InputError('--ci', `"${ci}" is a fixed-sample interval, which loses its coverage when the run stops on the data; with --target-error use empirical-bernstein, normal-mixture or chow-robbins`);
-      method = ci;
-    } else {
-      throw new InputError('--ci', `"${ci}" is not offered for differences; choose t, bootstrap or bootstrap-percentile`);
-    }
-  }
+  const { method, sequence } = differenceMethod(values.ci, targetError);
 
   const request: CompareRequest = {
     env: readDefinitionFile(envPath),
