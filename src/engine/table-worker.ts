@@ -6,9 +6,8 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import type { PolicyMatrix } from '../definitions/finite-mdp.js';
-import { newBlock } from './episode-block.js';
 import { rolloutFinite, type RolloutTables } from './finite-rollout.js';
-import type { FromWorker, ToWorker } from './worker-messages.js';
+import { serveBlocks } from './worker-loop.js';
 
 /** What the pool sends a table worker (structured-cloned: typed arrays and numbers only). */
 export interface TableWorkerData {
@@ -23,25 +22,4 @@ const port = parentPort;
 if (!port) throw new Error('table-worker.js must run as a worker thread');
 const { mdp, policy, seed, start } = workerData as TableWorkerData;
 
-function send(message: FromWorker, transfer: ArrayBuffer[] = []): void {
-  port!.postMessage(message, transfer);
-}
-
-port.on('message', (message: ToWorker) => {
-  if (message.type === 'stop') {
-    port.close();
-    return;
-  }
-  try {
-    const block = newBlock(message.first, message.count);
-    const steps = rolloutFinite(mdp, policy, seed, start, block);
-    send(
-      { type: 'block', first: block.first, count: block.count, returns: block.returns, lengths: block.lengths, steps },
-      [block.returns.buffer as ArrayBuffer, block.lengths.buffer as ArrayBuffer],
-    );
-  } catch (e) {
-    const err = e as Error;
-    send({ type: 'error', name: err?.name ?? 'Error', message: err?.message ?? String(e) });
-  }
-});
-send({ type: 'ready' });
+serveBlocks(port, (block) => rolloutFinite(mdp, policy, seed, start, block));
