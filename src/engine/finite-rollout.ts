@@ -1,6 +1,6 @@
 import type { FiniteMdp, PolicyMatrix } from '../definitions/finite-mdp.js';
 import type { ActingPolicy } from '../definitions/built.js';
-import { PluginError } from '../errors.js';
+import { checkedAction } from './checked-action.js';
 import { Xoshiro128 } from './xoshiro128.js';
 import { STREAM, seedStream, streamWords } from './streams.js';
 import type { EpisodeBlock } from './episode-block.js';
@@ -185,15 +185,7 @@ export function rolloutFiniteActing(
     let t = 0;
     if (terminal[s] === 0) {
       while (t < horizon) {
-        let a: number;
-        try {
-          a = acting.act(stateNames[s], policyRng);
-        } catch (e) {
-          throw new PluginError('the policy', episode, t, e);
-        }
-        if (!(a >= 0 && a < actionCount && Number.isInteger(a))) {
-          throw new PluginError('the policy', episode, t, new Error(`chose action ${String(a)}, not one of 0..${actionCount - 1}`));
-        }
+        const a = checkedAction(acting, stateNames[s], policyRng, actionCount, episode, t);
         const sa = s * actionCount + a;
         let k = outcomeStart[sa];
         const last = outcomeStart[sa + 1] - 1;

@@ -1,6 +1,7 @@
 import type { ActingPolicy, ModuleEnvironment } from '../definitions/built.js';
 import type { StepResult } from '../plugin.js';
 import { PluginError } from '../errors.js';
+import { checkedAction } from './checked-action.js';
 import { Xoshiro128 } from './xoshiro128.js';
 import { STREAM, seedStream } from './streams.js';
 import type { EpisodeBlock } from './episode-block.js';
@@ -38,15 +39,7 @@ export function rolloutModule(
     let weight = 1;
     let t = 0;
     while (t < horizon) {
-      let a: number;
-      try {
-        a = acting.act(state, policyRng);
-      } catch (e) {
-        throw new PluginError('the policy', episode, t, e);
-      }
-      if (!(a >= 0 && a < actionCount && Number.isInteger(a))) {
-        throw new PluginError('the policy', episode, t, new Error(`chose action ${String(a)}, not one of 0..${actionCount - 1}`));
-      }
+      const a = checkedAction(acting, state, policyRng, actionCount, episode, t);
       let result: StepResult;
       try {
         result = env.step(state, a, envRng, out);
