@@ -40,7 +40,7 @@ export default function createRestock(options = {}) {
 
   const actions = Array.from({ length: o.maxOrder + 1 }, (_, n) => `order-${n}`);
   const mostDelivered = Math.min(o.maxOrder, o.capacity);
-  const rewardRange = [
+  const rewardBounds = [
     -(o.unitCost * mostDelivered + (mostDelivered > 0 ? o.orderCost : 0)) - o.holdingCost * o.capacity - o.lostSalePenalty * o.demandCap,
     o.price * Math.min(o.capacity, o.demandCap),
   ];
@@ -66,7 +66,7 @@ export default function createRestock(options = {}) {
     actions,
     discount: o.discount,
     horizon: o.days,
-    rewardRange,
+    rewardBounds,
     reset: () => o.initialStock,
     step(stock, action, rng, out) {
       const delivered = Math.min(action, o.capacity - stock);

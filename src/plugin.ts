@@ -13,7 +13,7 @@
  *     actions: ['stay', 'push'],
  *     discount: 0.95,
  *     horizon: 200,
- *     rewardRange: [0, 1],
+ *     rewardBounds: [0, 1],
  *     reset: () => 2,
  *     step(state, action, rng, out) {
  *       const right = rng.uniform() < (action === 1 ? pRight + 0.1 : pRight);
@@ -54,7 +54,12 @@ export interface Environment<S = unknown> {
   readonly discount: number;
   /** Maximum steps an episode; required when discount is 1. */
   readonly horizon?: number;
-  /** Smallest and largest reward a step can pay; enables Hoeffding and Bernstein intervals. */
+  /**
+   * Smallest and largest reward a step can pay. Gives the return bounds that Hoeffding,
+   * empirical-Bernstein and the bounded confidence sequences need, and a horizon when none is given.
+   */
+  readonly rewardBounds?: readonly [number, number];
+  /** @deprecated The old name of {@link Environment.rewardBounds}; still read, with a warning. */
   readonly rewardRange?: readonly [number, number];
   /** A start state. Use only `rng` for randomness so that runs are reproducible. */
   reset(rng: Rng): S;

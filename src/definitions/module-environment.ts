@@ -1,7 +1,8 @@
 /**
  * Builds a `"kind": "module"` environment: calls the user's factory, checks what it
  * returns against the plug-in interface (src/plugin.ts) and resolves the horizon, derived
- * from `rewardRange` when the module gives none (definitions/horizon.ts).
+ * from `rewardBounds` when the module gives none (definitions/horizon.ts). The old name
+ * `rewardRange` is still read, with a warning.
  */
 import { InputError } from '../errors.js';
 import type { Environment, EnvironmentFactory } from '../plugin.js';
@@ -11,6 +12,7 @@ import { describeIssues } from './issues.js';
 import { importFactory } from './module-loader.js';
 import { pluginEnvironmentSchema, type ModuleEnvironmentDefinition } from './module-schema.js';
 import { formatNumber } from './describe-value.js';
+import { warnDeprecated } from './deprecation.js';
 
 export async function buildModuleEnvironment(
   def: ModuleEnvironmentDefinition,
@@ -31,11 +33,12 @@ export async function buildModuleEnvironment(
   if (env.discount >= 1 && env.horizon === undefined) {
     throw new InputError(source.label, `${label} has discount 1 but no "horizon"; a horizon is required when discount is 1`);
   }
-  const rewardRange = env.rewardRange ? ([env.rewardRange[0], env.rewardRange[1]] as const) : null;
+  const declared = declaredRewardBounds(env, label, source.label);
+  const rewardRange = declared ? ([declared[0], declared[1]] as const) : null;
   if (env.horizon === undefined && env.discount < 1 && rewardRange === null) {
     throw new InputError(
       source.label,
-      `${label} has discount ${formatNumber(env.discount)} but neither "horizon" nor "rewardRange"; give one so episodes can be cut`,
+      `${label} has discount ${formatNumber(env.discount)} but neither "horizon" nor "rewardBounds"; give one so episodes can be cut`,
     );
   }
   const maxAbsReward = rewardRange ? Math.max(Math.abs(rewardRange[0]), Math.abs(rewardRange[1])) : 0;
@@ -55,4 +58,17 @@ export async function buildModuleEnvironment(
     horizonDerived,
     rewardRange,
   };
+}
+
+/**
+ * The per-step reward bounds a module declares: `rewardBounds`, or the deprecated
+ * `rewardRange` that modules written before the rename still use.
+ */
+function declaredRewardBounds(env: Environment, label: string, where: string): readonly [number, number] | undefined {
+  if (env.rewardRange === undefined) return env.rewardBounds;
+  if (env.rewardBounds !== undefined) {
+    throw new InputError(where, `${label} gives both "rewardBounds" and its old name "rewardRange"; keep "rewardBounds" only`);
+  }
+  warnDeprecated(where, `${label}: "rewardRange" is deprecated; rename it "rewardBounds" (same meaning)`);
+  return env.rewardRange;
 }

@@ -40,7 +40,7 @@ const actionListSchema = z
   .min(1)
   .refine((names) => new Set(names).size === names.length, { error: 'must not repeat a name' });
 
-const rewardRangeSchema = z
+const rewardBoundsSchema = z
   .tuple([z.number(), z.number()])
   .refine(([lo, hi]) => lo <= hi, { error: 'must be [smallest, largest] with smallest <= largest' });
 
@@ -49,7 +49,9 @@ export const pluginEnvironmentSchema = z.object({
   actions: actionListSchema,
   discount: discountSchema,
   horizon: horizonSchema.optional(),
-  rewardRange: rewardRangeSchema.optional(),
+  rewardBounds: rewardBoundsSchema.optional(),
+  /** Deprecated name of `rewardBounds`, still accepted (with a warning). */
+  rewardRange: rewardBoundsSchema.optional(),
   reset: functionSchema,
   step: functionSchema,
   stateName: functionSchema.optional(),

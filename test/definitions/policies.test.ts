@@ -1,4 +1,4 @@
-import { describe, expect, test } from 'vitest';
+import { describe, expect, test, vi } from 'vitest';
 import { InputError } from '../../src/errors.js';
 import type { BuiltEnvironment, BuiltPolicy, DefinitionSource, FiniteEnvironment } from '../../src/definitions/built.js';
 import { buildEnvironment } from '../../src/definitions/build-environment.js';
@@ -164,13 +164,14 @@ describe('epsilon policies', () => {
 });
 
 describe('module environment and module policy', () => {
-  test('the lighthouse module loads; the horizon is derived from rewardRange', async () => {
+  test('the lighthouse module loads; the horizon is derived from rewardBounds', async () => {
     const env = await loadEnvironmentFile(`${FIXTURES}lighthouse-env.json`);
     if (env.built.kind !== 'module') throw new Error('expected a module environment');
     expect(env.built.actionNames).toEqual(['rest', 'climb']);
     expect(env.built.rewardRange).toEqual([0, 1]);
-    // γ = 0.9, R = 1, default ε = 1e-4: smallest H with 0.9^H/0.1 ≤ 1e-4 (METHODS §1 formula)
-    expect(env.built.horizon).toBe(Math.ceil(Math.log(1 / (1e-4 * 0.1)) / Math.log(1 / 0.9)));
+    // γ = 0.9, R = 1, default ε = 1e-4: smallest H with 0.9^H/0.1 ≤ 1e-4, which is 110
+    // (docs/methods.md §2, eq. 2.2; recomputed by scripts/methods/truncation.py)
+    expect(env.built.horizon).toBe(110);
     expect(env.built.horizonDerived).toBe(true);
     const out = { state: 0, reward: 0, done: false };
     env.built.env.step(2, 1, scriptedRng([0.1]), out);
@@ -234,12 +235,32 @@ describe('module environment and module policy', () => {
       'environment from "./no-actions.js": actions must have at least 1 entry',
     );
     files.write('no-horizon.js', 'export default () => ({ actions: ["a"], discount: 0.9, reset() {}, step() {} });');
-    expect(await envError({ kind: 'module', path: './no-horizon.js' })).toContain('neither "horizon" nor "rewardRange"');
-    files.write('undiscounted.js', 'export default () => ({ actions: ["a"], discount: 1, rewardRange: [0, 1], reset() {}, step() {} });');
+    expect(await envError({ kind: 'module', path: './no-horizon.js' })).toContain('neither "horizon" nor "rewardBounds"');
+    files.write('undiscounted.js', 'export default () => ({ actions: ["a"], discount: 1, rewardBounds: [0, 1], reset() {}, step() {} });');
     expect(await envError({ kind: 'module', path: './undiscounted.js' })).toContain('a horizon is required when discount is 1');
     files.write('no-step.js', 'export default async () => ({ actions: ["a"], discount: 0.9, horizon: 3, reset() {} });');
     expect(await envError({ kind: 'module', path: './no-step.js' })).toContain('step is missing');
     files.write('throws.js', 'export default () => { throw new Error("no lamp oil"); };');
     expect(await envError({ kind: 'module', path: './throws.js' })).toContain('threw while being created: no lamp oil');
+    files.write('both-names.js', 'export default () => ({ actions: ["a"], discount: 0.9, rewardBounds: [0, 1], rewardRange: [0, 1], reset() {}, step() {} });');
+    expect(await envError({ kind: 'module', path: './both-names.js' })).toContain('gives both "rewardBounds" and its old name "rewardRange"');
+  });
+
+  test('the old name rewardRange still works, with one warning on stderr', async () => {
+    const source = { label: files.path('old.json'), baseDir: files.path('') };
+    files.write('old-name.js', 'export default () => ({ actions: ["a"], discount: 0.9, rewardRange: [-1, 2], reset() {}, step() {} });');
+    const written: string[] = [];
+    const spy = vi.spyOn(process.stderr, 'write').mockImplementation((chunk) => (written.push(String(chunk)), true));
+    try {
+      for (let i = 0; i < 2; i++) {
+        const env = await buildEnvironment(parseEnvironment({ kind: 'module', path: './old-name.js' }, source), source);
+        if (env.kind !== 'module') throw new Error('expected a module environment');
+        expect(env.rewardRange).toEqual([-1, 2]);
+      }
+    } finally {
+      spy.mockRestore();
+    }
+    expect(written).toHaveLength(1);
+    expect(written[0]).toMatch(/^reckon: warning: .*old\.json: environment from "\.\/old-name\.js": "rewardRange" is deprecated; rename it "rewardBounds"/);
   });
 });

@@ -22,7 +22,7 @@ const slowDir = tempFiles({
   'slow.json': { kind: 'module', path: './slow.js', options: {} },
   'uniform.json': { kind: 'uniform' },
   'slow.js': `export default () => ({
-    actions: ['a', 'b'], discount: 0.95, horizon: 40, rewardRange: [-1, 1],
+    actions: ['a', 'b'], discount: 0.95, horizon: 40, rewardBounds: [-1, 1],
     reset: (rng) => 0,
     step(state, action, rng, out) {
       let spin = 0; for (let i = 0; i < 3000; i++) spin += Math.sqrt(i);

@@ -1,0 +1,15 @@
+import { isMainThread } from 'node:worker_threads';
+
+const reported = new Set<string>();
+
+/**
+ * Tells the user on stderr that a name is deprecated while it keeps working. Once per
+ * process and only from the main thread: worker threads rebuild the same definitions, and
+ * one warning per run is enough.
+ */
+export function warnDeprecated(where: string, message: string): void {
+  const line = `reckon: warning: ${where}: ${message}`;
+  if (!isMainThread || reported.has(line)) return;
+  reported.add(line);
+  process.stderr.write(`${line}\n`);
+}
