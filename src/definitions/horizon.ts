@@ -1,6 +1,6 @@
 /**
  * Where to cut episodes. Cutting after H rewards changes the expected discounted return
- * by at most γ^H·R/(1−γ), R = max |reward| (geometric tail; METHODS §1). When a file gives
+ * by at most γ^H·R/(1−γ), R = max |reward| (geometric tail; docs/methods.md §2). When a file gives
  * no horizon we choose the smallest H that keeps this bound within the truncation
  * tolerance ε: H ≥ ln(R/(ε(1−γ)))/ln(1/γ), the ε-horizon time of Kearns, Mansour & Ng
  * (2002), also Kearns & Singh (2002) (from memory).

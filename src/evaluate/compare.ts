@@ -56,7 +56,7 @@ export interface ComparisonResult {
  * Runs every policy on the same episode indices with the same seed. Environment and policy
  * draw from separate streams (engine/streams.ts), so episode i's environment noise is common
  * to all policies (common random numbers) and the paired differences have the variance
- * Var A + Var B − 2 Cov(A, B) (METHODS.md §5). A target-error comparison runs in growing
+ * Var A + Var B − 2 Cov(A, B) (docs/methods.md §8.1). A target-error comparison runs in growing
  * batches and stops at the first episode where every pair's confidence sequence is narrow
  * enough; that episode depends on the returns alone.
  */

@@ -25,7 +25,7 @@ export interface ExactOptions {
 }
 
 /**
- * Exact evaluation of a policy on a finite MDP (METHODS §8): the horizon-H value and return
+ * Exact evaluation of a policy on a finite MDP (docs/methods.md §9): the horizon-H value and return
  * variance by backward recursion, and the untruncated value by a linear solve. Averaging over
  * the start distribution μ uses the law of total variance in the form
  * Var G = Σ_s μ(s) E[G² | s] − (Σ_s μ(s) V(s))².

@@ -17,7 +17,7 @@ const TAIL_TOLERANCE = 1e-13;
  * which is exactly what Monte Carlo rollouts truncated at H sample:
  *   V_0 = 0,  V_h(s) = Σ_a π Σ_k p (r + γ V_{h−1}(s')),
  *   M_0 = 0,  M_h(s) = Σ_a π Σ_k p [r² + 2γ r V_{h−1}(s') + γ² M_{h−1}(s')],
- * with V and M zero on terminal states (METHODS §8; the synchronous sweep of Sutton & Barto
+ * with V and M zero on terminal states (docs/methods.md §9; the synchronous sweep of Sutton & Barto
  * 2018, eq. 4.5, started from 0; the second-moment recursion expands E[(r + γG')²] using the
  * Markov property).
  *

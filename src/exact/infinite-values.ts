@@ -21,8 +21,8 @@ export interface InfiniteValuesOptions {
  * it does not exist.
  *
  * γ < 1: the linear system (I − γP_π)V = r_π over non-terminal states, nonsingular
- * (Puterman 1994, Thm 6.1.1; METHODS §8). γ = 1: only states from which the episode ends
- * with probability 1 under π have a value; the others get NaN, and on the rest
+ * (Puterman 1994, Thm 6.1.1, from memory; docs/methods.md §9). γ = 1: only states from which
+ * the episode ends with probability 1 under π have a value; the others get NaN, and on the rest
  * (I − Q)V = r is the absorbing-chain fundamental-matrix solve (Kemeny & Snell 1960).
  *
  * Up to `denseLimit` unknowns the system is solved directly; above, by the sweep
@@ -74,7 +74,7 @@ function solveDirect(chain: PolicyChain, unknowns: Int32Array, position: Int32Ar
  * The sweep V_{k+1} = r + γQV_k over the unknowns, run in blocks of m sweeps. If ρ bounds the
  * row sums of (γQ)^m, the m-sweep map is a ρ-contraction in the max norm, so
  * ‖V_{k+m} − V‖ ≤ ρ‖V_{k+m} − V_k‖/(1 − ρ). For γ < 1, m = 1 and ρ = γ: the stopping rule of
- * Sutton & Barto 2018 (§4.1) in the form of METHODS §8. For γ = 1, Q is substochastic with
+ * Sutton & Barto 2018 (§4.1), in the form of docs/methods.md §9. For γ = 1, Q is substochastic with
  * every state proper, so Q^m 1 → 0 and m is the first power with max row sum ≤ 1/2
  * (the standard contraction argument for proper policies; common practice).
  *

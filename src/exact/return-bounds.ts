@@ -178,7 +178,7 @@ function largestAbs(x: Float64Array): number {
  * Return range for a code environment that declares only a per-step reward range
  * [rmin, rmax]: an episode may end after any step from 1 to H, so
  *   low  = rmin ≥ 0 ? rmin : rmin Σ_{t<H} γ^t,   high = rmax ≤ 0 ? rmax : rmax Σ_{t<H} γ^t
- * (geometric series; METHODS §1). A horizon of 0 allows no reward at all.
+ * (geometric series; docs/methods.md §3, eq. 3.1). A horizon of 0 allows no reward at all.
  */
 export function moduleReturnBounds(
   rewardRange: readonly [number, number],

@@ -5,7 +5,7 @@ import { makeSequentialInterval, type RunningInterval, type SequentialInterval }
 
 /**
  * Fixed-width sequential rule of Chow & Robbins (1965, "On the asymptotic theory of fixed-width
- * sequential confidence intervals for the mean", Ann. Math. Statist. 36:457–462; METHODS.md §4):
+ * sequential confidence intervals for the mean", Ann. Math. Statist. 36:457–462; docs/methods.md §6.4):
  * stop at N = inf{n ≥ n0 : n ≥ (a_n/d)²(V_n + 1/n)} and report X̄_N ± d, with a_n = z_{1−α/2}
  * (any a_n → z will do) and V_n the sample variance. The 1/n term keeps it from stopping when
  * the first returns happen to be equal (it is in squared return units, so the rule is not scale

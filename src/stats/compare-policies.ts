@@ -51,7 +51,7 @@ export interface PolicyComparison {
  * Compares k ≥ 2 policies whose returns were drawn on the same episode indices (common random
  * numbers): every pair by {@link comparePair}, p-values adjusted by Holm (1979) across all
  * pairs, a ranking by mean, and the probability of improvement of Agarwal et al. (2021) per
- * pair; optionally the interquartile mean of each policy (METHODS.md §5). Deterministic for a
+ * pair; optionally the interquartile mean of each policy (docs/methods.md §8). Deterministic for a
  * given seed: every bootstrap draws from the seed's BOOTSTRAP stream.
  */
 export function comparePolicies(returns: readonly (Float64Array | number[])[], options: CompareOptions): PolicyComparison {

@@ -12,7 +12,7 @@ import {
 /**
  * Predictable plug-in empirical-Bernstein confidence sequence (Waudby-Smith & Ramdas 2024,
  * "Estimating means of bounded random variables by betting", JRSS-B 86(1):1–27; arXiv
- * 2010.09686; METHODS.md §4(b)), for returns in known bounds [a, b], rescaled to x ∈ [0, 1]:
+ * 2010.09686; docs/methods.md §6.2), for returns in known bounds [a, b], rescaled to x ∈ [0, 1]:
  *   μ̂_t = (1/2 + Σ_{i≤t} x_i)/(t + 1),  σ̂²_t = (1/4 + Σ_{i≤t} (x_i − μ̂_i)²)/(t + 1),
  *   λ_t = min(√(2 ln(2/α)/(σ̂²_{t−1} t ln(1 + t))), c),  v_t = 4(x_t − μ̂_{t−1})²,
  *   ψ_E(λ) = (−ln(1 − λ) − λ)/4,
@@ -26,7 +26,7 @@ export interface EmpiricalBernsteinOptions {
   level: number;
   /** Limits [a, b] of every value (for paired differences see `differenceBounds`). */
   bounds: ReturnBounds;
-  /** Cap c on λ_t, in (0, 1): METHODS.md names 1/2 (default) or 3/4. */
+  /** Cap c on λ_t, in (0, 1): the paper suggests 1/2 (default) or 3/4 (from memory). */
   truncation?: number;
   /** Keep the running intersection (default true); false gives the raw C_t, for checks. */
   intersect?: boolean;

@@ -29,7 +29,7 @@ export interface EpisodePlan {
 }
 
 /**
- * Episodes each way of running needs to reach half-width ε, from a pilot (METHODS.md §3–4):
+ * Episodes each way of running needs to reach half-width ε, from a pilot (docs/methods.md §7.1):
  * a fixed-n t run, the two confidence sequences of a run that stops on the data, and Hoeffding.
  * The normal mixture's σ is the one the run will use (the user's, or (b − a)/2 from bounds),
  * so its answer does not depend on the pilot unless neither is known.

@@ -1,6 +1,6 @@
 /**
  * Holm's step-down adjusted p-values (Holm 1979, "A simple sequentially rejective multiple test
- * procedure", Scand. J. Statist. 6:65–70; METHODS.md §5): with p_(1) ≤ … ≤ p_(m),
+ * procedure", Scand. J. Statist. 6:65–70; docs/methods.md §8.3): with p_(1) ≤ … ≤ p_(m),
  * p̃_(i) = max_{j ≤ i} min(1, (m − j + 1) p_(j)). Rejecting where p̃ ≤ α controls the
  * family-wise error rate at α under any dependence between the tests, which pairwise
  * comparisons on common random numbers certainly have. Returned in the input order; equal

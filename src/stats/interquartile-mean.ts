@@ -3,7 +3,7 @@ import { InputError } from '../errors.js';
 /**
  * Interquartile mean: the mean of the middle half of the sorted scores, a 25% trimmed mean
  * (Agarwal et al. 2021, NeurIPS, "Deep Reinforcement Learning at the Edge of the Statistical
- * Precipice"; METHODS.md §5). Less swayed by a few extreme episodes than the mean, more
+ * Precipice"; docs/methods.md §8.5). Less swayed by a few extreme episodes than the mean, more
  * efficient than the median. As SciPy's trim_mean(x, 0.25) does, ⌊n/4⌋ scores are cut from each
  * end, so for n not a multiple of 4 slightly more than half is kept.
  */

@@ -13,7 +13,7 @@ import {
  * Normal-mixture confidence sequence (Robbins 1970, "Statistical methods related to the law of
  * the iterated logarithm", Ann. Math. Statist. 41:1397–1409; Howard, Ramdas, McAuliffe &
  * Sekhon 2021, "Time-uniform, nonparametric, nonasymptotic confidence sequences", Ann. Statist.
- * 49:1055–1080; METHODS.md §4(a)). If X_i − μ is σ-sub-Gaussian, then with probability ≥ 1 − α,
+ * 49:1055–1080; docs/methods.md §6.3). If X_i − μ is σ-sub-Gaussian, then with probability ≥ 1 − α,
  * for every t at once, |X̄_t − μ| ≤ (σ/t)√((t + ρ) ln((t + ρ)/(ρα²))). Returns in [a, b] are
  * (b − a)/2-sub-Gaussian (Hoeffding's lemma). ρ > 0 sets the time where the boundary is
  * tightest.
@@ -26,7 +26,8 @@ export function normalMixtureHalfWidth(t: number, sigma: number, level: number, 
 /**
  * ρ/t* that makes the half-width smallest at t = t*: setting the derivative of
  * (1 + r) ln((1 + r)/(r α²)) to zero gives ln((1 + r)/(r α²)) = 1/r, whose left minus right
- * side increases in r, so bisection finds the root (≈ 0.1218 for α = 0.05, METHODS.md §4(a)).
+ * side increases in r, so bisection finds the root (≈ 0.12177 for α = 0.05; derivation in
+ * docs/methods.md §6.3, recomputed by scripts/methods/normal_mixture.py).
  */
 export function tunedRhoRatio(level: number): number {
   requireLevel(level);
@@ -70,8 +71,8 @@ export interface NormalMixtureOptions {
  * sample standard deviation is plugged in for σ: the result is then only asymptotically valid
  * (Waudby-Smith et al. 2024, Ann. Statist.; from memory) and is labelled
  * `normal-mixture-asymptotic`; it collapses when the first returns happen to be equal.
- * No running intersection is kept (METHODS.md §4(a) prescribes none); the interval is clipped
- * to the bounds when they are known.
+ * No running intersection is kept; the interval is clipped to the bounds when they are known
+ * (docs/methods.md §6.3).
  */
 export class NormalMixtureSequence implements RunningInterval {
   readonly level: number;
@@ -157,7 +158,7 @@ export interface NormalMixturePlan {
  * the answer itself (ρ = r*·t), and then the half-width is (σ/√t)·√((1 + r*) ln((1 + r*)/(r* α²))),
  * so t = (σ/ε)²(1 + r*) ln((1 + r*)/(r* α²)) in closed form. With ρ given, the half-width is
  * decreasing in t (for α < 0.6), and doubling then bisection finds t. σ is the pilot's: as
- * with any projection, the run may stop earlier or later (METHODS.md §3).
+ * with any projection, the run may stop earlier or later (docs/methods.md §5).
  */
 export function episodesNeededNormalMixture(request: { epsilon: number; sigma: number; level: number; rho?: number }): NormalMixturePlan {
   const { epsilon, sigma, level } = request;

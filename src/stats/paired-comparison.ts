@@ -43,7 +43,7 @@ export interface PairedComparison {
  * Compares two policies run on the same episode indices with common random numbers: the mean of
  * the paired differences with a paired t interval (Student 1908) or a bootstrap of the
  * differences (BCa: Efron 1987; percentile: Efron & Tibshirani 1993), the paired t p-value, and
- * what pairing bought (METHODS.md §5). The bootstrap resamples whole pairs, since the pairs
+ * what pairing bought (docs/methods.md §8.1–8.2). The bootstrap resamples whole pairs, since the pairs
  * are the independent units.
  */
 export function comparePair(

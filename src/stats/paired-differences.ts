@@ -2,7 +2,7 @@ import { InputError } from '../errors.js';
 
 /**
  * D_i = first_i − second_i for returns of two policies run on the same episode indices (common
- * random numbers: the pairs are independent across episodes, METHODS.md §5). Refuses samples of
+ * random numbers: the pairs are independent across episodes; docs/methods.md §8.1). Refuses samples of
  * different lengths, which cannot be paired.
  */
 export function pairedDifferences(first: Float64Array | number[], second: Float64Array | number[]): Float64Array {

@@ -7,7 +7,7 @@ import { normalQuantile, tQuantile } from './quantiles.js';
  * Exact power of the two-sided paired t test at level α with n pairs when the true mean
  * difference is δ and the differences have standard deviation σ_D: the statistic follows a
  * noncentral t with n − 1 degrees of freedom and noncentrality δ√n/σ_D, so
- * power = 1 − F_{t'}(t_c) + F_{t'}(−t_c), t_c = t_{1−α/2, n−1} (METHODS.md §3; Owen 1968,
+ * power = 1 − F_{t'}(t_c) + F_{t'}(−t_c), t_c = t_{1−α/2, n−1} (docs/methods.md §7.2; Owen 1968,
  * Technometrics 10:445–478, from memory).
  */
 export function pairedTestPower(pairs: number, effect: number, sigmaDifference: number, level: number): number {
@@ -35,9 +35,9 @@ export interface PairedSampleSize {
 /**
  * Pairs (episodes per policy under common random numbers) needed to detect a true mean
  * difference δ with the given power by a two-sided paired t test at level α, from the pilot's
- * σ_D (METHODS.md §3: z start, t refinement, exact power by the noncentral t; the t refinement
+ * σ_D (docs/methods.md §7.2: z start, t refinement, exact power by the noncentral t; the t refinement
  * is common practice for sample-size planning). Check: δ = 0.1, σ_D = 0.5, power 0.8 at 95%
- * gives 197 (z) and 199 (t), power 0.8017 at 199.
+ * gives 197 (z) and 199 (t), power 0.8017 at 199 (scripts/methods/projections.py).
  */
 export function pairedSampleSize(request: { effect: number; sigmaDifference: number; level?: number; power?: number }): PairedSampleSize {
   const level = request.level ?? 0.95;

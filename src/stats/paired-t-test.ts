@@ -17,8 +17,8 @@ export interface PairedTTest {
 }
 
 /**
- * Paired t test (Student 1908, Biometrika 6:1–25; as in NIST/SEMATECH e-Handbook 1.3.5.3 and
- * METHODS.md §5): the one-sample t test applied to the differences of paired returns. Under
+ * Paired t test (Student 1908, Biometrika 6:1–25; as in NIST/SEMATECH e-Handbook 1.3.5.3;
+ * docs/methods.md §8.2): the one-sample t test applied to the differences of paired returns. Under
  * common random numbers the pairs, not the two samples, are independent, so this is the test to
  * use; a two-sample (Welch) test would misstate the variance. `differences` are first − second.
  */

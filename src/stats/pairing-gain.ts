@@ -20,8 +20,8 @@ export interface PairingGain {
 /**
  * Var(D̄) = (σ_A² + σ_B² − 2 Cov(A, B))/n under common random numbers, against (σ_A² + σ_B²)/n
  * for independent runs (Law & Kelton, Simulation Modeling and Analysis, on common random
- * numbers; Glasserman & Yao 1992, Mgmt Sci 38; METHODS.md §5, from memory), so the ratio of the
- * two is the cost saved. Two-pass sums around the means keep the digits of returns with a large
+ * numbers; Glasserman & Yao 1992, Mgmt Sci 38:884–908; both from memory; docs/methods.md
+ * §8.1), so the ratio of the two is the cost saved. Two-pass sums around the means keep the digits of returns with a large
  * offset (Chan, Golub & LeVeque 1983).
  */
 export function pairingGain(first: Float64Array | number[], second: Float64Array | number[]): PairingGain {

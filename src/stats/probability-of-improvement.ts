@@ -8,7 +8,7 @@ import { sortedQuantile } from './sample-quantile.js';
 /**
  * Probability of improvement P(X > Y), ties counted as ½ (Agarwal, Schwarzer, Castro,
  * Courville & Bellemare 2021, "Deep Reinforcement Learning at the Edge of the Statistical
- * Precipice", NeurIPS; METHODS.md §5, formulas from memory): the Mann–Whitney statistic
+ * Precipice", NeurIPS; formulas from memory; docs/methods.md §8.4): the Mann–Whitney statistic
  * U/(NK) = (1/(NK)) Σ_i Σ_j S(x_i, y_j), S = 1 if x > y, ½ if equal, 0 otherwise (Mann &
  * Whitney 1947, Ann. Math. Statist. 18:50–60). ½ means neither policy tends to return more.
  * Sorting makes it O((N + K) log K) instead of N·K comparisons.

@@ -10,7 +10,7 @@ import type { ReturnSummary } from './summary.js';
  *
  * The spread s is the pilot's point estimate (the sample standard deviation of the episodes
  * run so far), not an upper confidence limit for σ; so the projected n reaches ε only about
- * half the time (METHODS.md §3). No method projects fewer than 2 episodes, the least any
+ * half the time (docs/methods.md §5). No method projects fewer than 2 episodes, the least any
  * interval accepts. When all returns so far are equal (s = 0) the spread-based rules have
  * nothing to scale and answer the current n (at least 2) instead of dividing by zero.
  */
@@ -49,7 +49,8 @@ const MAX_T_ITERATIONS = 60;
  *   found by doubling then bisection (the half-width decreases in n);
  * - bootstrap methods: the 1/√n law applied to the current half-width, ⌈n (hw/ε)²⌉; requires
  *   `currentHalfWidth`.
- * Sources: METHODS.md §2–3 (z and t iteration: common practice for sample-size planning).
+ * Formulas and check values: docs/methods.md §5 (the z and t iteration is common practice for
+ * sample-size planning).
  */
 export function episodesNeeded(
   method: CiMethod,
