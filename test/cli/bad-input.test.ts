@@ -3,7 +3,8 @@ import { reckon, tempFiles } from './run-cli.js';
 
 /**
  * Every malformed definition or option: exit code 2 and one line on stderr that names the
- * file (or option) and the place. The expected texts are the core issue's examples.
+ * file (or option) and the place. The expected texts are the
+ * refusals the README shows.
  */
 const goodGrid = {
   kind: 'gridworld',

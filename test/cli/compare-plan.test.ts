@@ -3,7 +3,7 @@ import path from 'node:path';
 import { FIXTURES, ENVS, reckon, tempFiles } from './run-cli.js';
 
 /** `reckon compare` and `reckon plan` through the command line. */
-const C = path.join(FIXTURES, 'contract');
+const C = path.join(FIXTURES, 'textbook-samples');
 
 function json(result: { code: number | null; stdout: string; stderr: string }) {
   if (result.code !== 0) throw new Error(`exit ${result.code}: ${result.stderr}`);
@@ -57,7 +57,7 @@ describe('compare', () => {
 });
 
 describe('plan', () => {
-  it("the t projection is within 15% of (z·σ/E)² with σ the exact return std (METHODS §3)", () => {
+  it("the t projection is within 15% of (z·σ/E)² with σ the exact return std (docs/methods.md §5)", () => {
     const env = path.join(C, 'grid-4x3-slip.json');
     const policy = path.join(C, 'grid-4x3-policy.json');
     const exact = json(reckon(['exact', '--env', env, '--policy', policy, '--start', '2,0', '--json']));

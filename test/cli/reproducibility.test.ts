@@ -14,8 +14,8 @@ function figures(stdout: string) {
 }
 
 describe('reproducibility (the result is a pure function of env, policy, seed and episodes)', () => {
-  const env = path.join(FIXTURES, 'contract', 'grid-4x3-slip.json');
-  const policy = path.join(FIXTURES, 'contract', 'grid-4x3-policy.json');
+  const env = path.join(FIXTURES, 'textbook-samples', 'grid-4x3-slip.json');
+  const policy = path.join(FIXTURES, 'textbook-samples', 'grid-4x3-policy.json');
   const args = ['estimate', '--env', env, '--policy', policy, '--episodes', '30000', '--json', '--no-store'];
 
   it('same seed: identical figures with 1 and 2 workers', () => {

@@ -6,7 +6,7 @@ import { loadEnvironmentFile, loadPolicyFile } from '../../src/definitions/load.
 import { parseEnvironment } from '../../src/definitions/parse.js';
 import type { GridworldDefinition } from '../../src/definitions/schemas.js';
 import { evaluatePolicy, outcomesByName } from './policy-evaluation.js';
-import { CONTRACT } from './temp-files.js';
+import { TEXTBOOK_SAMPLES } from './temp-files.js';
 
 const source: DefinitionSource = { label: 'grid.json', baseDir: '/nowhere' };
 
@@ -126,7 +126,7 @@ describe('portals and starts', () => {
     expect([...mdp.startProbability]).toEqual([0.25, 0.5, 0.25, 0]);
   });
 
-  test('a derived horizon follows the truncation tolerance (METHODS §1 check: γ=0.9, R=1, ε=0.01 → 66)', () => {
+  test('a derived horizon follows the truncation tolerance (docs/methods.md §2: γ=0.9, R=1, ε=0.01 → 66, scripts/methods/truncation.py)', () => {
     const mdp = compile({
       kind: 'gridworld',
       discount: 0.9,
@@ -139,10 +139,12 @@ describe('portals and starts', () => {
   });
 });
 
-describe('contract samples (copies in test/fixtures/contract)', () => {
-  test('Sutton & Barto (2018) Example 3.5 grid, uniform policy: Figure 3.2 values (METHODS §9, numpy-verified)', async () => {
-    const env = await loadEnvironmentFile(`${CONTRACT}grid-5x5-portals.json`);
-    const policy = await loadPolicyFile(`${CONTRACT}uniform.json`, env.built);
+describe('textbook samples (test/fixtures/textbook-samples)', () => {
+  // Figure 3.2 prints one decimal (8.8, 4.4, …); the four-decimal values are the exact solve of
+  // scripts/methods/textbook_grids.py, a numpy linear solve written from the book's description.
+  test('Sutton & Barto (2018) Example 3.5 grid, uniform policy: Figure 3.2 values to four decimals', async () => {
+    const env = await loadEnvironmentFile(`${TEXTBOOK_SAMPLES}grid-5x5-portals.json`);
+    const policy = await loadPolicyFile(`${TEXTBOOK_SAMPLES}uniform.json`, env.built);
     if (env.built.kind !== 'finite' || policy.built.kind !== 'matrix') throw new Error('expected finite env and matrix policy');
     const v = evaluatePolicy(env.built.mdp, policy.built.matrix);
     const figure32 = [
@@ -155,9 +157,11 @@ describe('contract samples (copies in test/fixtures/contract)', () => {
     figure32.forEach((row, r) => row.forEach((value, c) => expect(v[r * 5 + c]).toBeCloseTo(value, 4)));
   });
 
-  test('AIMA 4×3 world with the optimal policy of Fig. 17.2: Fig. 17.3 utilities (METHODS §9)', async () => {
-    const env = await loadEnvironmentFile(`${CONTRACT}grid-4x3-slip.json`);
-    const policy = await loadPolicyFile(`${CONTRACT}grid-4x3-policy.json`, env.built);
+  // The three-decimal utilities printed in Russell & Norvig (2010), AIMA 3rd ed., Fig. 17.3 (from
+  // memory); scripts/methods/textbook_grids.py gives the same to within 0.0005 (0.8116, 0.8678, …).
+  test('AIMA 4×3 world with the optimal policy of Fig. 17.2: Fig. 17.3 utilities', async () => {
+    const env = await loadEnvironmentFile(`${TEXTBOOK_SAMPLES}grid-4x3-slip.json`);
+    const policy = await loadPolicyFile(`${TEXTBOOK_SAMPLES}grid-4x3-policy.json`, env.built);
     if (env.built.kind !== 'finite' || policy.built.kind !== 'matrix') throw new Error('expected finite env and matrix policy');
     const mdp = env.built.mdp;
     const v = evaluatePolicy(mdp, policy.built.matrix);

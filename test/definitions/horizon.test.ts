@@ -2,7 +2,7 @@ import { describe, expect, test } from 'vitest';
 import { InputError } from '../../src/errors.js';
 import { horizonForTolerance, resolveHorizon, truncationBound } from '../../src/definitions/horizon.js';
 
-describe('ε-horizon (Kearns, Mansour & Ng 2002, from memory; METHODS §1 check values)', () => {
+describe('ε-horizon (Kearns, Mansour & Ng 2002, from memory; check values of docs/methods.md §2, scripts/methods/truncation.py)', () => {
   test('γ = 0.99, R = 1, ε = 0.01 → 917', () => {
     expect(horizonForTolerance(0.99, 1, 0.01)).toBe(917);
   });

@@ -6,7 +6,7 @@ import { buildPolicy } from '../../src/definitions/build-policy.js';
 import { loadEnvironmentFile, loadPolicyFile } from '../../src/definitions/load.js';
 import { parseEnvironment, parsePolicy } from '../../src/definitions/parse.js';
 import type { PolicyMatrix } from '../../src/definitions/finite-mdp.js';
-import { CONTRACT, FIXTURES, tempFolder } from './temp-files.js';
+import { TEXTBOOK_SAMPLES, FIXTURES, tempFolder } from './temp-files.js';
 
 const files = tempFolder();
 const here: DefinitionSource = { label: 'policy.json', baseDir: '/nowhere' };
@@ -89,9 +89,9 @@ describe('table policies on a finite environment', () => {
     expect(row(d, env, '1,0')).toEqual([0, 0.8, 0.2, 0]);
   });
 
-  test('the contract policy (no default) loads on the contract grid', async () => {
-    const env = await loadEnvironmentFile(`${CONTRACT}grid-4x3-slip.json`);
-    const policy = await loadPolicyFile(`${CONTRACT}grid-4x3-policy.json`, env.built);
+  test('the AIMA optimal policy (no default) loads on the 4×3 textbook sample', async () => {
+    const env = await loadEnvironmentFile(`${TEXTBOOK_SAMPLES}grid-4x3-slip.json`);
+    const policy = await loadPolicyFile(`${TEXTBOOK_SAMPLES}grid-4x3-policy.json`, env.built);
     expect(policy.definition.kind).toBe('table');
     expect(policy.built.kind).toBe('matrix');
   });

@@ -11,7 +11,8 @@ const source: DefinitionSource = { label: 'mdp.json', baseDir: '/nowhere' };
 
 describe('compileTabular', () => {
   // Sutton & Barto (2018) Example 6.2 random walk: states A–E, start C, +1 on leaving right,
-  // 0 elsewhere; true values under the random policy are 1/6 … 5/6 (METHODS §9).
+  // 0 elsewhere; true values under the random policy are 1/6 … 5/6 (the book's
+  // values; also scripts/methods/textbook_grids.py).
   const names = ['A', 'B', 'C', 'D', 'E'];
   const transitions = names.flatMap((s, i) => [
     { from: s, action: 'left', to: i === 0 ? 'L' : names[i - 1], p: 1 },

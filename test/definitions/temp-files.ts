@@ -19,5 +19,5 @@ export function tempFolder(): { write(name: string, content: unknown): string; p
 
 export const FIXTURES = new URL('../fixtures/definitions/', import.meta.url).pathname;
 
-/** Byte-for-byte copies of the shared contract samples (see test/fixtures/definitions/README.md). */
-export const CONTRACT = new URL('../fixtures/contract/', import.meta.url).pathname;
+/** Textbook grids and policies in reckon's format (see test/fixtures/textbook-samples/README.md). */
+export const TEXTBOOK_SAMPLES = new URL('../fixtures/textbook-samples/', import.meta.url).pathname;

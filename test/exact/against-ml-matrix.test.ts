@@ -5,7 +5,7 @@ import { randomCase, referenceValues } from './random-mdps.js';
 
 // Reference: ml-matrix (npm, general-purpose linear algebra) solving (I − γP_π)V = r_π, with
 // P_π and r_π assembled in the test from the raw transition list (Puterman 1994, Thm 6.1.1,
-// from memory; METHODS §8).
+// from memory; docs/methods.md §9).
 
 const discounts = [0.5, 0.9, 0.99];
 const cases = Array.from({ length: 21 }, (_, i) => ({ seed: 1000 + i, discount: discounts[i % 3] }));
@@ -37,7 +37,7 @@ describe('infiniteValues against ml-matrix', () => {
 
 describe('horizonValues with γ^H negligible', () => {
   it.each(cases)('seed $seed, γ = $discount: V_H matches the infinite-horizon solve', ({ seed, discount }) => {
-    // |V − V_H| ≤ γ^H max|r|/(1 − γ) (METHODS §1): H = 5000 puts it below 1e-19 for γ = 0.99.
+    // |V − V_H| ≤ γ^H max|r|/(1 − γ) (docs/methods.md §2, eq. 2.1): H = 5000 puts it below 1e-19 for γ = 0.99.
     const c = randomCase(seed, discount);
     const mdp = buildMdp({ ...c.spec, horizon: 5000 });
     const { value } = horizonValues(mdp, c.policy);

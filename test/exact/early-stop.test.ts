@@ -4,7 +4,7 @@ import { buildMdp } from './build-mdp.js';
 import { type RandomCase, randomCase } from './random-mdps.js';
 
 // The recursions may stop before H when the remaining steps provably cannot matter. Reference:
-// all H steps of the textbook recursions (Sutton & Barto 2018, eq. 4.5 from 0; METHODS §8 for
+// all H steps of the textbook recursions (Sutton & Barto 2018, eq. 4.5 from 0; docs/methods.md §9 for
 // the second moment; min/max dynamic programming for the bounds), written out here straight
 // from the transition list (common practice).
 

@@ -4,7 +4,7 @@ import { type MdpSpec, buildMdp, policyFromTable } from './build-mdp.js';
 
 // Reference: brute-force enumeration of every trajectory of at most H steps with its
 // probability (common practice), straight from the transition list. The recursion under test
-// is M_h = Σ π Σ p [r² + 2γ r V_{h−1} + γ² M_{h−1}] (METHODS §8).
+// is M_h = Σ π Σ p [r² + 2γ r V_{h−1} + γ² M_{h−1}] (docs/methods.md §9).
 
 // Three live states and one terminal; s1 reaches s2 with two different rewards, so the
 // reward–continuation cross term matters.

@@ -4,8 +4,8 @@ import { type TransitionSpec, buildMdp, uniformPolicy } from './build-mdp.js';
 
 // Sutton & Barto 2018, Example 4.1 / Figure 4.1: 4×4 grid, the two shaded corners terminal,
 // reward −1 on every transition, moves off the grid leave the state unchanged, γ = 1,
-// equiprobable random policy. v_π from the book (from memory; recomputed as exact integers,
-// METHODS §9).
+// equiprobable random policy. v_π from the book (from memory; recomputed as exact integers by
+// scripts/methods/textbook_grids.py, which also gives the sweeps below to four decimals).
 const expectedInfinite = [
   [0, -14, -20, -22],
   [-14, -18, -20, -20],

@@ -10,7 +10,7 @@ import { tInterval } from '../../src/stats/t-interval.js';
 import { exponentialSample, normalSample } from './samples.js';
 
 describe('bcaAcceleration', () => {
-  it('is 0.084853 for {1,2,3,4,10} (METHODS.md §2, g1/(6√n) with biased skewness)', () => {
+  it('is 0.084853 for {1,2,3,4,10} (g1/(6√n) with biased skewness, docs/methods.md §4.6; jackknife sums in scripts/methods/fixed_n_intervals.py)', () => {
     expect(bcaAcceleration([1, 2, 3, 4, 10])).toBeCloseTo(0.084853, 6);
   });
 

@@ -44,7 +44,7 @@ describe('paired t', () => {
     expect(result.interval.high).toBeCloseTo(high, 10);
   });
 
-  it('is the one-sample t on the differences (definition of the paired t, METHODS.md §5)', () => {
+  it('is the one-sample t on the differences (definition of the paired t: Student 1908; NIST/SEMATECH e-Handbook 1.3.5.3)', () => {
     const a = normalSample(50, 1, 3, 2);
     const b = normalSample(50, 2, 2.5, 2);
     const d = pairedDifferences(a, b);
@@ -80,7 +80,7 @@ describe('pairing gain', () => {
     expect(pairingGain(first, second).correlation).toBeCloseTo(pearson, 12);
   });
 
-  it('variance reduction is (Var A + Var B)/Var(A − B), with Var(A − B) = Var A + Var B − 2 Cov (METHODS.md §5)', () => {
+  it('variance reduction is (Var A + Var B)/Var(A − B), with Var(A − B) = Var A + Var B − 2 Cov (variance of a difference; common practice)', () => {
     const base = normalSample(1000, 11);
     const noise = normalSample(1000, 12);
     const a = base;

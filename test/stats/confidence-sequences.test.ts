@@ -9,11 +9,11 @@ import { summarize } from '../../src/stats/summary.js';
 import { tInterval } from '../../src/stats/t-interval.js';
 
 describe('normal-mixture confidence sequence', () => {
-  it('half-width for σ = 1, t = 1000, α = 0.05, ρ = 121.77 is 0.095979 (Robbins 1970; Howard et al. 2021; METHODS.md §4(a) check value)', () => {
+  it('half-width for σ = 1, t = 1000, α = 0.05, ρ = 121.77 is 0.095979 (Robbins 1970; Howard et al. 2021; eq. 6.1 of docs/methods.md, scripts/methods/normal_mixture.py)', () => {
     expect(normalMixtureHalfWidth(1000, 1, 0.95, 121.77)).toBeCloseTo(0.095979, 6);
   });
 
-  it('ρ tuned for t* = 1000 at α = 0.05 is about 0.1218·t* (METHODS.md §4(a), numpy)', () => {
+  it('ρ tuned for t* = 1000 at α = 0.05 is about 0.1218·t* (our derivation, docs/methods.md §6.3: r* = 0.12177 by scripts/methods/normal_mixture.py)', () => {
     expect(tunedRhoRatio(0.95)).toBeCloseTo(0.1218, 4);
     expect(tunedRho(1000, 0.95)).toBeCloseTo(121.77, 1);
     // and it does minimise the half-width at t*: nearby ρ are no better
@@ -34,7 +34,7 @@ describe('normal-mixture confidence sequence', () => {
     expect(sequence.sigmaSource).toBe('bounds');
   });
 
-  it('a plugged-in running σ̂ is labelled asymptotic (METHODS.md §4(a))', () => {
+  it('a plugged-in running σ̂ is labelled asymptotic (docs/methods.md §6.3)', () => {
     const sequence = new NormalMixtureSequence({ level: 0.95, targetEpisodes: 100 });
     sequence.add([1, 2, 3, 4]);
     expect(sequence.interval()).toMatchObject({ method: 'normal-mixture-asymptotic', anytimeValid: false });
@@ -50,7 +50,7 @@ describe('normal-mixture confidence sequence', () => {
 });
 
 describe('empirical-Bernstein confidence sequence', () => {
-  it('alternating 0, 1, … gives C_100 = [0.32445, 0.67259] with c = 1/2 and no intersections (Waudby-Smith & Ramdas 2024; METHODS.md §4(b) check value, not independent)', () => {
+  it('alternating 0, 1, … gives C_100 = [0.32445, 0.67259] with c = 1/2 and no intersections (Waudby-Smith & Ramdas 2024 formulas; scripts/methods/empirical_bernstein.py, a re-implementation, not a published value)', () => {
     const sequence = new EmpiricalBernsteinSequence({ level: 0.95, bounds: [0, 1], intersect: false });
     sequence.add(Float64Array.from({ length: 100 }, (_, i) => i % 2));
     const ci = sequence.interval();
@@ -69,7 +69,7 @@ describe('empirical-Bernstein confidence sequence', () => {
     expect(ci.high).toBeCloseTo(7.4743326, 6);
   });
 
-  it('with intersections the interval stays in [a, b] and never widens (METHODS.md §4(b))', () => {
+  it('with intersections the interval stays in [a, b] and never widens (Waudby-Smith & Ramdas 2024: the coverage holds for all t at once, so intersecting is allowed)', () => {
     const sequence = new EmpiricalBernsteinSequence({ level: 0.95, bounds: [-2, 3] });
     const rng = streamFor(5, STREAM.ENV);
     let previous = sequence.interval();
@@ -102,7 +102,7 @@ describe('empirical-Bernstein confidence sequence', () => {
 });
 
 describe('Chow–Robbins fixed-width rule', () => {
-  it('is labelled asymptotic, and its 1/n term keeps it from stopping on ten zeros (Chow & Robbins 1965; METHODS.md §4)', () => {
+  it('is labelled asymptotic, and its 1/n term keeps it from stopping on ten zeros (Chow & Robbins 1965)', () => {
     const rule = new ChowRobbinsRule({ level: 0.95, minEpisodes: 10 });
     rule.add(new Float64Array(10));
     expect(rule.interval()).toMatchObject({ method: 'chow-robbins-asymptotic', anytimeValid: false });
@@ -130,12 +130,12 @@ function coveredAtStop(sequence: RunningInterval, draw: (count: number) => Float
   }
 }
 
-describe('coverage under optional stopping: Bernoulli(0.02) returns, stop at half-width ≤ 0.01, 200 seeded replications (METHODS.md §4)', () => {
+describe('coverage under optional stopping: Bernoulli(0.02) returns, stop at half-width ≤ 0.01, 200 seeded replications (docs/methods.md §6.1; scripts/methods/optional_stopping.py runs 2000)', () => {
   const mu = 0.02;
   const epsilon = 0.01;
   const replications = 200;
 
-  it('the empirical-Bernstein sequence covers μ in at least 95% of runs (METHODS.md simulated 99.4%)', () => {
+  it('the empirical-Bernstein sequence covers μ in at least 95% of runs (scripts/methods/optional_stopping.py: 99.1%)', () => {
     let covered = 0;
     const stops: number[] = [];
     for (let seed = 0; seed < replications; seed++) {
@@ -146,7 +146,7 @@ describe('coverage under optional stopping: Bernoulli(0.02) returns, stop at hal
     expect(covered / replications).toBeGreaterThanOrEqual(0.95);
     stops.sort((a, b) => a - b);
     const median = stops[replications / 2];
-    expect(median).toBeGreaterThan(1500); // METHODS.md: median N = 2468
+    expect(median).toBeGreaterThan(1500); // scripts/methods/optional_stopping.py: median stop 2450
     expect(median).toBeLessThan(3500);
   });
 
@@ -163,7 +163,7 @@ describe('coverage under optional stopping: Bernoulli(0.02) returns, stop at hal
     expect(covered / replications).toBeGreaterThanOrEqual(0.95);
   });
 
-  it('a naive t rule from n₀ = 10 does not: it stops at n = 10 on all-zero returns (METHODS.md simulated 17.7%)', () => {
+  it('a naive t rule from n₀ = 10 does not: it stops at n = 10 on all-zero returns (scripts/methods/optional_stopping.py: 15.8% coverage)', () => {
     let covered = 0;
     for (let seed = 0; seed < replications; seed++) {
       const draw = bernoulliStream(seed, mu);

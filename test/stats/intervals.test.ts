@@ -46,11 +46,11 @@ describe('t and normal intervals', () => {
 });
 
 describe('Hoeffding and empirical Bernstein', () => {
-  it('Hoeffding half-width, n = 1000, b − a = 1, δ = 0.05, is 0.042947 (Hoeffding 1963 Thm 2; METHODS.md §2, numpy)', () => {
+  it('Hoeffding half-width, n = 1000, b − a = 1, δ = 0.05, is 0.042947 (Hoeffding 1963 Thm 2; scripts/methods/fixed_n_intervals.py)', () => {
     expect(hoeffdingHalfWidth(1000, 1, 0.05)).toBeCloseTo(0.042947, 6);
   });
 
-  it('Bernstein half-width, n = 1000, s² = 0.1, δ = 0.05 on [0,1], is 0.039839 (Maurer & Pontil 2009 Thm 4, two-sided; METHODS.md §2)', () => {
+  it('Bernstein half-width, n = 1000, s² = 0.1, δ = 0.05 on [0,1], is 0.039839 (Maurer & Pontil 2009 Thm 4, two-sided; scripts/methods/fixed_n_intervals.py)', () => {
     expect(bernsteinHalfWidth(1000, 0.1, 1, 0.05)).toBeCloseTo(0.039839, 6);
   });
 

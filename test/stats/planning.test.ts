@@ -32,12 +32,12 @@ describe('noncentral t CDF', () => {
 });
 
 describe('paired-comparison sample size', () => {
-  it('δ = 0.1, σ_D = 0.5, power 0.8 at 95%: 197 (z), 199 (t), power 0.8017 at 199 (METHODS.md §3 check values)', () => {
+  it('δ = 0.1, σ_D = 0.5, power 0.8 at 95%: 197 (z), 199 (t), power 0.8017 at 199 (scripts/methods/projections.py)', () => {
     const plan = pairedSampleSize({ effect: 0.1, sigmaDifference: 0.5 });
     expect(plan.zPairs).toBe(197);
     expect(plan.tPairs).toBe(199);
     expect(plan.powerAtTPairs).toBeCloseTo(0.8017, 4);
-    expect(plan.exactPairs).toBe(199); // SciPy nct: power 0.79970 at 198, 0.80169 at 199
+    expect(plan.exactPairs).toBe(199); // power 0.7997 at 198, 0.8017 at 199 (scripts/methods/projections.py; from memory, SciPy's nct agrees)
   });
 
   it('power is α at δ → 0 and grows with n (definition of power)', () => {
@@ -51,7 +51,7 @@ describe('paired-comparison sample size', () => {
 });
 
 describe('episodes for a confidence-sequence run', () => {
-  it('normal mixture: with ρ tuned to the answer, σ = 1 and ε = 0.095979 need t = 1000 (closed form; METHODS.md §4(a) check value)', () => {
+  it('normal mixture: with ρ tuned to the answer, σ = 1 and ε = 0.095979 need t = 1000 (closed form, eq. 6.3 of docs/methods.md; scripts/methods/normal_mixture.py)', () => {
     const plan = episodesNeededNormalMixture({ epsilon: 0.095979, sigma: 1, level: 0.95 });
     expect(plan.episodes).toBe(1000);
     expect(plan.rho).toBeCloseTo(121.77, 1);
@@ -63,10 +63,10 @@ describe('episodes for a confidence-sequence run', () => {
     expect(normalMixtureHalfWidth(episodes - 1, 1, 0.95, 121.77)).toBeGreaterThan(0.05);
   });
 
-  it('empirical Bernstein: Bernoulli(0.02) at ε = 0.01 plans about the median stop of a simulation (METHODS.md §4(b): median N = 2468)', () => {
+  it('empirical Bernstein: Bernoulli(0.02) at ε = 0.01 plans about the median stop of a simulation (scripts/methods/optional_stopping.py: 2450)', () => {
     const planned = episodesNeededEmpiricalBernstein({ epsilon: 0.01, variance: 0.02 * 0.98, bounds: [0, 1], level: 0.95 });
-    expect(planned).toBeGreaterThan(2468 * 0.9);
-    expect(planned).toBeLessThan(2468 * 1.1);
+    expect(planned).toBeGreaterThan(2450 * 0.9);
+    expect(planned).toBeLessThan(2450 * 1.1);
   });
 
   it('empirical Bernstein: the planned path reaches ε on data whose variance is the plugged-in one (alternating 0, 1 has σ² = 1/4)', () => {
@@ -76,13 +76,14 @@ describe('episodes for a confidence-sequence run', () => {
     expect(Math.abs(sequence.interval().halfWidth - 0.1)).toBeLessThan(0.005);
   });
 
-  it('plan from a pilot: fixed-n t, both sequences, and Hoeffding n = 18,445 for b − a = 1, δ = 0.05, ε = 0.01 (Hoeffding 1963; METHODS.md §9)', () => {
+  it('plan from a pilot: fixed-n t, both sequences, and Hoeffding n = 18,445 for b − a = 1, δ = 0.05, ε = 0.01 (Hoeffding 1963; scripts/methods/projections.py)', () => {
     const pilot: ReturnSummary = { n: 100, mean: 0.3, std: 0.3, variance: 0.09, stderr: 0.03, min: 0, max: 1 };
     const plan = planEpisodes({ pilot, epsilon: 0.01, level: 0.95, bounds: [0, 1] });
     expect(plan.hoeffding).toBe(18445);
     expect(plan.normalMixture.sigmaSource).toBe('bounds');
     expect(plan.normalMixture.sigma).toBe(0.5);
-    // the t projection: start at ⌈(1.96·0.3/0.01)²⌉ = 3458 and refine with t quantiles (METHODS.md §3)
+    // the t projection: start at ⌈(1.96·0.3/0.01)²⌉ = 3458 and refine with t quantiles to 3460
+    // (docs/methods.md §5; scripts/methods/projections.py)
     expect(plan.fixedT).toBeGreaterThanOrEqual(3458);
     expect(plan.fixedT).toBeLessThanOrEqual(3462);
     // anytime validity costs episodes: both sequences need more than the fixed-n t run

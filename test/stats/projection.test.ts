@@ -16,11 +16,11 @@ function summaryWith(n: number, std: number, min = -1e9, max = 1e9): ReturnSumma
 describe('episodesNeeded', () => {
   const pilot = summaryWith(20, 1);
 
-  it('z rule: s = 1, ε = 0.1, 95% → 385 (METHODS.md §3, ⌈(1.959964·10)²⌉)', () => {
+  it('z rule: s = 1, ε = 0.1, 95% → 385 (⌈(1.959964·10)²⌉, z from NIST/SEMATECH 1.3.6.7.2; scripts/methods/projections.py)', () => {
     expect(episodesNeeded('normal', pilot, 0.1, 0.95)).toBe(385);
   });
 
-  it('t rule: s = 1, ε = 0.1, 95% → 387 (METHODS.md §3)', () => {
+  it('t rule: s = 1, ε = 0.1, 95% → 387 (smallest n with t(0.975; n−1)/√n ≤ 0.1, scripts/methods/projections.py)', () => {
     expect(episodesNeeded('t', pilot, 0.1, 0.95)).toBe(387);
   });
 
@@ -32,11 +32,11 @@ describe('episodesNeeded', () => {
     expect(episodesNeeded('t', pilot, 2, 0.95)).toBe(4);
   });
 
-  it('Hoeffding: b − a = 1, δ = 0.05, ε = 0.01 → 18,445 (Hoeffding 1963; METHODS.md §9, numpy)', () => {
+  it('Hoeffding: b − a = 1, δ = 0.05, ε = 0.01 → 18,445 (Hoeffding 1963 Thm 2; scripts/methods/projections.py)', () => {
     expect(episodesNeeded('hoeffding', summaryWith(20, 0.3, 0, 1), 0.01, 0.95, [0, 1])).toBe(18445);
   });
 
-  it('Bernstein: with s² = 0.1 on [0,1], the METHODS.md half-width 0.039839 at n = 1000 is first reached at n = 1000 (Maurer & Pontil 2009 Thm 4)', () => {
+  it('Bernstein: with s² = 0.1 on [0,1], the half-width 0.039839 at n = 1000 (scripts/methods/fixed_n_intervals.py) is first reached at n = 1000 (Maurer & Pontil 2009 Thm 4)', () => {
     const target = 0.03984; // half-width(999) ≈ 0.039864 > target ≥ half-width(1000) ≈ 0.039839
     expect(bernsteinHalfWidth(999, 0.1, 1, 0.05)).toBeGreaterThan(target);
     const s = summaryWith(20, Math.sqrt(0.1), 0, 1);

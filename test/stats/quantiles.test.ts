@@ -41,7 +41,8 @@ describe('tQuantile', () => {
 });
 
 describe('normalQuantile', () => {
-  // NIST/SEMATECH e-Handbook 1.3.6.7.2, ∞ row, via METHODS.md §9 (read + scipy): 1.959964, 2.575829.
+  // NIST/SEMATECH e-Handbook 1.3.6.7.2, ∞ row, prints 1.960 and 2.576; the six-decimal values
+  // 1.959964 and 2.575829 are Python's statistics.NormalDist (scripts/methods/fixed_n_intervals.py).
   it('matches z(0.975) = 1.959964 and z(0.995) = 2.575829 to half a unit of the 6th decimal', () => {
     expect(Math.abs(normalQuantile(0.975) - 1.959964)).toBeLessThanOrEqual(5e-7);
     expect(Math.abs(normalQuantile(0.995) - 2.575829)).toBeLessThanOrEqual(5e-7);

@@ -14,7 +14,7 @@ import { MIGRATIONS } from '../../src/store/migrations.js';
  * Equality here is the store's own contract (same episodes → same figures), so the reference
  * is always a run of the same spec that never touched the store.
  */
-const C = path.join(FIXTURES, 'contract');
+const C = path.join(FIXTURES, 'textbook-samples');
 const grid = ['--env', path.join(C, 'grid-4x3-slip.json'), '--policy', path.join(C, 'grid-4x3-policy.json')];
 
 /** A deliberately slow code environment (a busy loop per step), so a run lasts long enough to kill. */

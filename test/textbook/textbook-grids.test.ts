@@ -8,7 +8,7 @@ import { exactEvaluation } from '../../src/exact/index.js';
  * and linear solve) against values printed in textbooks.
  */
 const ENVS = path.resolve(__dirname, '../../envs/textbook');
-const CONTRACT = path.resolve(__dirname, '../fixtures/contract');
+const TEXTBOOK_SAMPLES = path.resolve(__dirname, '../fixtures/textbook-samples');
 
 async function evaluate(envFile: string, policyFile: string) {
   const env = await loadEnvironmentFile(envFile);
@@ -38,7 +38,8 @@ describe('Sutton & Barto (2018), Example 3.5 / Figure 3.2: 5×5 grid with portal
     [-1.0, -0.4, -0.4, -0.6, -1.2],
     [-1.9, -1.3, -1.2, -1.4, -2.0],
   ];
-  // Four-decimal values from METHODS.md §9 (numpy).
+  // The book prints one decimal (8.8, …); the four-decimal values are our exact solve,
+  // scripts/methods/textbook_grids.py (a numpy linear solve written from the book's description).
   const exact = [
     [3.309, 8.7893, 4.4276, 5.3224, 1.4922],
     [1.5216, 2.9923, 2.2501, 1.9076, 0.5474],
@@ -48,7 +49,7 @@ describe('Sutton & Barto (2018), Example 3.5 / Figure 3.2: 5×5 grid with portal
   ];
 
   it('matches every printed value and the four-decimal values', async () => {
-    const { mdp, result } = await evaluate(path.join(CONTRACT, 'grid-5x5-portals.json'), path.join(CONTRACT, 'uniform.json'));
+    const { mdp, result } = await evaluate(path.join(TEXTBOOK_SAMPLES, 'grid-5x5-portals.json'), path.join(TEXTBOOK_SAMPLES, 'uniform.json'));
     const values = grid(mdp, result.states, 5, 5);
     const infinite = grid(mdp, result.states_infinite, 5, 5);
     for (let r = 0; r < 5; r++) {
@@ -90,7 +91,7 @@ describe("Russell & Norvig, AIMA 3rd ed., Figures 17.2–17.3: the 4×3 world un
     [0.705, 0.655, 0.611, 0.388],
   ];
   it('matches every printed utility to the printed precision', async () => {
-    const { mdp, result } = await evaluate(path.join(CONTRACT, 'grid-4x3-slip.json'), path.join(CONTRACT, 'grid-4x3-policy.json'));
+    const { mdp, result } = await evaluate(path.join(TEXTBOOK_SAMPLES, 'grid-4x3-slip.json'), path.join(TEXTBOOK_SAMPLES, 'grid-4x3-policy.json'));
     const values = grid(mdp, result.states, 3, 4);
     for (let r = 0; r < 3; r++) {
       for (let c = 0; c < 4; c++) {
@@ -102,7 +103,7 @@ describe("Russell & Norvig, AIMA 3rd ed., Figures 17.2–17.3: the 4×3 world un
   });
 
   it('the bundled arrows picture of the same policy gives the same values', async () => {
-    const table = await evaluate(path.join(ENVS, 'grid-4x3.json'), path.join(CONTRACT, 'grid-4x3-policy.json'));
+    const table = await evaluate(path.join(ENVS, 'grid-4x3.json'), path.join(TEXTBOOK_SAMPLES, 'grid-4x3-policy.json'));
     const arrows = await evaluate(path.join(ENVS, 'grid-4x3.json'), path.join(ENVS, 'grid-4x3-optimal.json'));
     expect(Array.from(arrows.result.states)).toStrictEqual(Array.from(table.result.states));
   });

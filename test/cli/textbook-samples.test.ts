@@ -2,11 +2,13 @@ import { describe, expect, it } from 'vitest';
 import path from 'node:path';
 import { FIXTURES, reckon } from './run-cli.js';
 
-/** The command-line contract of the core issue, on the textbook samples. */
-const C = path.join(FIXTURES, 'contract');
+/** The command line's JSON keys and figures on the textbook samples (test/fixtures/textbook-samples). */
+const C = path.join(FIXTURES, 'textbook-samples');
 
-describe('command-line contract', () => {
-  it('exact --json prints value 8.7893 for state "0,1" of the 5×5 portal grid (Sutton & Barto 2018, Fig. 3.2)', () => {
+describe('command line on the textbook samples', () => {
+  // Sutton & Barto 2018, Example 3.5, Figure 3.2 prints 8.8 for this state; 8.7893 is the exact solve
+  // of scripts/methods/textbook_grids.py (a numpy linear solve written from the book's description).
+  it('exact --json prints value 8.7893 for state "0,1" of the 5×5 portal grid (the book prints 8.8)', () => {
     const out = reckon(['exact', '--env', path.join(C, 'grid-5x5-portals.json'), '--policy', path.join(C, 'uniform.json'), '--start', '0,1', '--json']);
     expect(out.code).toBe(0);
     const json = JSON.parse(out.stdout);
@@ -30,12 +32,13 @@ describe('command-line contract', () => {
     expect(json.episodes).toBe(2000);
     expect(json.ci.low).toBeLessThan(json.mean);
     expect(json.mean).toBeLessThan(json.ci.high);
-    // Russell & Norvig, AIMA 3rd ed., Fig. 17.3 (from memory): U(1,1) = 0.705.
+    // Russell & Norvig, AIMA 3rd ed., Fig. 17.3 (from memory): U(1,1) = 0.705 (exact solve 0.7053,
+    // scripts/methods/textbook_grids.py).
     expect(json.ci.low - 0.001).toBeLessThan(0.705);
     expect(json.ci.high + 0.001).toBeGreaterThan(0.705);
   });
 
-  it('the projection table covers the current half-width /2, /5 and /10 by the t rule (METHODS §3)', () => {
+  it('the projection table covers the current half-width /2, /5 and /10 by the t rule (docs/methods.md §5)', () => {
     const out = reckon([
       'estimate', '--env', path.join(C, 'grid-4x3-slip.json'), '--policy', path.join(C, 'grid-4x3-policy.json'),
       '--episodes', '1000', '--seed', '2', '--json',
