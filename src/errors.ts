@@ -1,5 +1,5 @@
 /**
- * The one registry of failures. A user's bad input (a file, an option, later an HTTP body)
+ * The one registry of failures. A user's bad input (a file, an option, an HTTP body)
  * is an {@link InputError}: one line that names the place, exit code 2, HTTP 400.
  * Anything else that escapes is our bug: exit code 1.
  */

@@ -248,7 +248,9 @@ export function render(s) {
     lines.push(`Start-up: \`reckon --help\` ${fmt(s.startup.helpMs, 0)} ms (median); Node alone (\`node -e 0\`) ${fmt(s.startup.nodeMs, 0)} ms.`);
   }
   lines.push('');
-  lines.push('| goal | target | measured | met |');
+  lines.push("reckon's design targets for speed and memory, and this run against them:");
+  lines.push('');
+  lines.push('| design target | threshold | measured | met |');
   lines.push('|---|---|---:|:---:|');
   for (const g of s.goals) {
     const measured = g.name.includes('identical') ? (g.met === null ? '–' : g.met ? 'same' : 'differ') : g.name.includes('overhead') ? `${fmt(100 * g.measured, 1)}%` : g.name.includes('help') ? `${fmt(g.measured, 0)} ms` : g.name.includes('memory') ? `${fmt(g.measured, 1)} B` : ratio(g.measured);

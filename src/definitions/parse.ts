@@ -1,4 +1,4 @@
-/** JSON to typed definitions (no file access): used for files and, later, HTTP bodies. */
+/** JSON to typed definitions (no file access): used for files and for HTTP bodies. */
 import type { DefinitionSource } from './built.js';
 import { zodInputError } from './issues.js';
 import { environmentSchema, policySchema, type EnvironmentDefinition, type PolicyDefinition } from './schemas.js';

@@ -15,9 +15,20 @@ export const HELP = `reckon demo: the bundled warehouse picking robot (what 'npm
 
 Estimates two policies for the robot in envs/warehouse.json with a fixed seed, checks each
 estimate against the exact value, and stores both runs (see 'reckon runs list'). See envs/README.md for the scenario.
+The figures are statistical estimates about the modelled warehouse, not a safety case for a real one.
 
 Usage: reckon demo
 `;
+
+/**
+ * The demo is a robot beside a forklift lane, so its figures could be read as safety evidence;
+ * the README's caution is repeated where they are printed.
+ */
+export const DEMO_CAUTION = [
+  'Caution: these figures are statistical estimates about the modelled warehouse (the definition',
+  'files), not evidence about a real robot or forklift lane, and not a safety case. For a physical',
+  'system, follow the safety practice and standards that apply to it.',
+].join('\n');
 
 /** What `npm start` runs: the bundled warehouse scenario, two policies, checked against the oracle. */
 export async function run(args: string[]): Promise<number> {
@@ -29,6 +40,7 @@ export async function run(args: string[]): Promise<number> {
   const rel = (f: string) => path.relative(process.cwd(), path.join(envs, f)) || f;
   const envPath = rel('warehouse.json');
   process.stdout.write('reckon demo: a warehouse picking robot, two routes to the packing station (envs/README.md)\n\n');
+  process.stdout.write(`${DEMO_CAUTION}\n\n`);
   const env = await loadEnvironmentFile(envPath);
   const storePath = defaultStorePath();
   const db = openStore(storePath);
@@ -64,6 +76,8 @@ export async function run(args: string[]): Promise<number> {
   }
   process.stdout.write(
     [
+      DEMO_CAUTION,
+      '',
       'Next:',
       `  reckon estimate --env ${envPath} --policy ${rel('picker-careful.json')} --start 2,0 --seed 7`,
       `  reckon exact --env ${envPath} --policy ${rel('picker-direct.json')}`,
