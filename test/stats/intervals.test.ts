@@ -26,7 +26,7 @@ describe('t and normal intervals', () => {
     expect(Math.abs(ci.halfWidth - 2.75)).toBeLessThanOrEqual(0.0005);
   });
 
-  it('normal half-width with stderr 1 is z(0.975) = 1.959964 (NIST e-Handbook 1.3.6.7.2, ∞ row)', () => {
+  it('normal half-width with stderr 1 is z(0.975) = 1.959964 (NIST e-Handbook 1.3.6.7.2, ∞ row, prints 1.960; six decimals from scripts/methods/fixed_n_intervals.py)', () => {
     const ci = confidenceInterval([], summaryWith(50, -2, 1), { method: 'normal', level: 0.95 });
     expect(Math.abs(ci.halfWidth - 1.959964)).toBeLessThanOrEqual(5e-7);
     expect(ci.method).toBe('normal');

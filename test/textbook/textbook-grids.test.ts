@@ -29,7 +29,7 @@ function grid(mdp: { stateIndex: ReadonlyMap<string, number> }, values: Float64A
 }
 
 describe('Sutton & Barto (2018), Example 3.5 / Figure 3.2: 5×5 grid with portals, random policy, γ = 0.9', () => {
-  // Printed to one decimal (from memory; recomputed with an independent solver). 2.2501 prints
+  // Printed to one decimal (from memory; recomputed by scripts/methods/textbook_grids.py). 2.2501 prints
   // as 2.3 in the book, so a one-decimal comparison needs a tolerance of 0.051.
   const printed = [
     [3.3, 8.8, 4.4, 5.3, 1.5],
@@ -84,7 +84,8 @@ describe('Sutton & Barto (2018), Example 4.1 / Figure 4.1: 4×4 grid, terminal c
 });
 
 describe("Russell & Norvig, AIMA 3rd ed., Figures 17.2–17.3: the 4×3 world under the optimal policy", () => {
-  // Utilities printed to three decimals (from memory; recomputed): row 0 is the top row.
+  // Utilities printed to three decimals (from memory; the exact solve of
+  // scripts/methods/textbook_grids.py agrees within 0.0005): row 0 is the top row.
   const printed = [
     [0.812, 0.868, 0.918, null],
     [0.762, null, 0.66, null],
