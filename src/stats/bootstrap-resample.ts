@@ -1,5 +1,6 @@
 import { STREAM, streamFor } from '../engine/streams.js';
 import { InputError } from '../errors.js';
+import { distinctValues, drawFrequentCounts, groupForResampling } from './resample-groups.js';
 
 /** Resamples used when the caller names none (Efron & Tibshirani 1993 §13.3 suggest ≥ 1000 for percentiles). */
 export const DEFAULT_RESAMPLES = 2000;
@@ -26,13 +27,14 @@ export function requireResamples(resamples: number): void {
  *
  * Returns the resampled means minus the sample mean, θ*_b − θ̂, sorted ascending. Working with
  * deviations keeps the sums small (no cancellation against a large mean) and makes "θ*_b
- * below θ̂" an exact sign test, which BCa's bias correction counts. One buffer for the centred
- * data and one for the results; nothing is allocated per resample.
+ * below θ̂" an exact sign test, which BCa's bias correction counts.
  *
- * The indices are exactly the draws `streamFor(seed, STREAM.BOOTSTRAP).integer(n)` would give,
- * but the xoshiro128** step (engine/xoshiro128.ts) runs on local copies of the generator's
- * state: calling through the object costs about three times as much, and n·B draws
- * (2·10⁸ for n = 10⁵) dominate the run time. A test checks the draws match the generator's.
+ * Returns that repeat often (a gridworld's few paths) are resampled as counts, one binomial
+ * draw per frequent value (resample-groups.ts); the other returns by index draws. When no
+ * value is frequent, the indices are exactly the draws `streamFor(seed, STREAM.BOOTSTRAP)
+ * .integer(n)` would give, with the xoshiro128** step (engine/xoshiro128.ts) run on local
+ * copies of the generator's state: calling through the object costs about three times as
+ * much, and n·B draws dominate the run time. A test checks the draws match the generator's.
  */
 export function resampledMeanDeviations(
   returns: Float64Array | number[],
@@ -41,17 +43,24 @@ export function resampledMeanDeviations(
   resamples: number,
   seed: number,
 ): Float64Array {
-  const centred = new Float64Array(n);
-  for (let i = 0; i < n; i++) centred[i] = returns[i] - mean;
+  const sample = returns.length === n ? returns : returns.slice(0, n);
+  const categories = distinctValues([sample]);
+  const groups = groupForResampling(sample, categories);
+  const frequentValues = Float64Array.from(groups.frequent, (d) => categories[d] - mean);
+  const frequentDraws = new Float64Array(groups.frequent.length);
+  const rare = Float64Array.from(groups.rare, (d) => categories[d] - mean);
+  const rareCount = rare.length;
   const rng = streamFor(seed, STREAM.BOOTSTRAP);
-  let s0 = rng.s0;
-  let s1 = rng.s1;
-  let s2 = rng.s2;
-  let s3 = rng.s3;
   const deviations = new Float64Array(resamples);
   for (let b = 0; b < resamples; b++) {
+    const left = drawFrequentCounts(groups, rng, frequentDraws);
     let sum = 0;
-    for (let i = 0; i < n; i++) {
+    for (let g = 0; g < frequentDraws.length; g++) sum += frequentDraws[g] * frequentValues[g];
+    let s0 = rng.s0;
+    let s1 = rng.s1;
+    let s2 = rng.s2;
+    let s3 = rng.s3;
+    for (let i = 0; i < left; i++) {
       const scaled = Math.imul(s1, 5);
       const bits = Math.imul((scaled << 7) | (scaled >>> 25), 9) >>> 0;
       const shifted = s1 << 9;
@@ -61,8 +70,12 @@ export function resampledMeanDeviations(
       s0 ^= s3;
       s2 ^= shifted;
       s3 = (s3 << 11) | (s3 >>> 21);
-      sum += centred[(bits * UINT32_TO_UNIT * n) | 0]; // = Math.floor for values in [0, 2³¹)
+      sum += rare[(bits * UINT32_TO_UNIT * rareCount) | 0]; // = Math.floor for values in [0, 2³¹)
     }
+    rng.s0 = s0;
+    rng.s1 = s1;
+    rng.s2 = s2;
+    rng.s3 = s3;
     deviations[b] = sum / n;
   }
   return deviations.sort();

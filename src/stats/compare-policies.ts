@@ -37,7 +37,7 @@ export interface PairResult extends PairedComparison {
   second: number;
   /** Holm-adjusted p-value over all m = k(k−1)/2 pairs (equals `pValue` when k = 2). */
   adjustedPValue: number;
-  /** P(G_first > G_second), ties ½, with a paired percentile bootstrap interval. */
+  /** P(G_first > G_second), ties ½, with a normal interval from the paired U-statistic variance. */
   probabilityOfImprovement: ImprovementEstimate;
 }
 
@@ -68,7 +68,7 @@ export function comparePolicies(returns: readonly (Float64Array | number[])[], o
         second: j,
         ...comparison,
         adjustedPValue: comparison.pValue,
-        probabilityOfImprovement: probabilityOfImprovementInterval(returns[i], returns[j], options.level, { ...bootstrap, resampling: 'paired' }),
+        probabilityOfImprovement: probabilityOfImprovementInterval(returns[i], returns[j], options.level, { resampling: 'paired' }),
       });
     }
   }

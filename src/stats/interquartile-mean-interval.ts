@@ -1,7 +1,8 @@
 import { STREAM, streamFor } from '../engine/streams.js';
 import { InputError } from '../errors.js';
 import { DEFAULT_RESAMPLES, requireResamples } from './bootstrap-resample.js';
-import { trimmedMeanOfSorted } from './interquartile-mean.js';
+import { trimmedMeanOfCounts, trimmedMeanOfSorted } from './interquartile-mean.js';
+import { distinctValues, drawFrequentCounts, groupForResampling } from './resample-groups.js';
 import { makeInterval, requireLevel, type Interval } from './interval.js';
 import { sortedQuantile } from './sample-quantile.js';
 
@@ -18,7 +19,9 @@ export interface StratifiedBootstrapOptions {
  * Precipice", who resample runs within each task; Efron & Tibshirani 1993, ch. 13, for the
  * percentile interval). Each stratum (a task, an environment, a start state: a group whose size
  * was fixed by design) is resampled within itself with replacement, so every resample keeps
- * the design's group sizes. One stratum gives the ordinary bootstrap.
+ * the design's group sizes. One stratum gives the ordinary bootstrap. A resample is kept as
+ * counts over the distinct values (resample-groups.ts), so its trimmed mean is one pass over
+ * them, with no sort: O(B·(D + n)) for D distinct values, and far less when values repeat.
  */
 export function interquartileMeanInterval(
   strata: readonly (Float64Array | number[])[],
@@ -32,24 +35,29 @@ export function interquartileMeanInterval(
   if (strata.length === 0 || strata.some((stratum) => stratum.length === 0)) {
     throw new InputError('returns', 'every stratum of the bootstrap needs at least one return');
   }
+  const categories = distinctValues(strata);
+  const groups = strata.map((stratum) => groupForResampling(stratum, categories));
+  const counts = new Float64Array(categories.length);
   const pooled = new Float64Array(total);
   let offset = 0;
   for (const stratum of strata) {
-    pooled.set(Array.from(stratum), offset);
+    pooled.set(stratum, offset);
     offset += stratum.length;
   }
-  const estimate = trimmedMeanOfSorted(pooled.slice().sort());
+  const estimate = trimmedMeanOfSorted(pooled.sort());
 
   const rng = streamFor(options.seed ?? 0, STREAM.BOOTSTRAP);
-  const resample = new Float64Array(total);
+  const draws = new Float64Array(Math.max(0, ...groups.map((g) => g.frequent.length)));
   const estimates = new Float64Array(resamples);
   for (let b = 0; b < resamples; b++) {
-    let at = 0;
-    for (const stratum of strata) {
-      const size = stratum.length;
-      for (let i = 0; i < size; i++) resample[at++] = stratum[rng.integer(size)];
+    counts.fill(0);
+    for (const group of groups) {
+      const left = drawFrequentCounts(group, rng, draws);
+      for (let g = 0; g < group.frequent.length; g++) counts[group.frequent[g]] += draws[g];
+      const rare = group.rare;
+      for (let i = 0; i < left; i++) counts[rare[rng.integer(rare.length)]]++;
     }
-    estimates[b] = trimmedMeanOfSorted(resample.sort());
+    estimates[b] = trimmedMeanOfCounts(categories, counts, total);
   }
   estimates.sort();
   const alpha = 1 - level;

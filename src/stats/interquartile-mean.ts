@@ -22,3 +22,25 @@ export function trimmedMeanOfSorted(sorted: Float64Array): number {
   for (let i = cut; i < n - cut; i++) sum += sorted[i];
   return sum / (n - 2 * cut);
 }
+
+/**
+ * The same 25% trimmed mean of a sample given as counts over its ascending distinct values
+ * (`total` = Σ counts): the ⌊total/4⌋ lowest and highest observations are cut, and the
+ * rest summed a value at a time, so a bootstrap resample needs no sort.
+ */
+export function trimmedMeanOfCounts(values: Float64Array, counts: Float64Array, total: number): number {
+  const cut = Math.floor(total / 4);
+  const keepFrom = cut;
+  const keepTo = total - cut; // positions [keepFrom, keepTo) of the sorted sample are kept
+  let position = 0;
+  let sum = 0;
+  for (let d = 0; d < values.length && position < keepTo; d++) {
+    const c = counts[d];
+    if (c === 0) continue;
+    const from = Math.max(position, keepFrom);
+    const to = Math.min(position + c, keepTo);
+    if (to > from) sum += (to - from) * values[d];
+    position += c;
+  }
+  return sum / (keepTo - keepFrom);
+}
