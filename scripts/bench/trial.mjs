@@ -152,6 +152,51 @@ const RUNNERS = {
     }
   },
 
+  /**
+   * Each figure computed after sampling, timed on its own on the returns of two policies (the
+   * demo's, `episodes` each, sampled first and not timed), in the order a report computes
+   * them. Cold: a fresh process, as a user's run meets them.
+   */
+  async analysis({ env, policies, seed, episodes, workers }) {
+    const { runEpisodes } = await import('../../dist/engine/pool.js');
+    const stats = await import('../../dist/stats/index.js');
+    const { probabilityOfImprovementInterval } = await import('../../dist/stats/probability-of-improvement.js');
+    const { interquartileMeanInterval } = await import('../../dist/stats/interquartile-mean-interval.js');
+    const { rankByMean } = await import('../../dist/stats/policy-ranking.js');
+    const samples = [];
+    for (const policy of policies) {
+      const spec = await specOf(env, policy, seed);
+      const returns = new Float64Array(episodes);
+      await runEpisodes(spec, { first: 0, count: episodes, workers, onBlock: (b) => returns.set(b.returns, b.first) });
+      samples.push(returns);
+    }
+    const [a, b] = samples;
+    const level = 0.95;
+    const options = { seed, resamples: stats.DEFAULT_RESAMPLES };
+    const steps = {};
+    const step = async (name, work) => {
+      const { seconds } = await timed(work);
+      steps[name] = seconds;
+    };
+    let summary;
+    await step('summary + t interval', () => {
+      summary = stats.summarize(a);
+      return stats.tInterval(summary, level);
+    });
+    await step('bootstrap (BCa)', () => stats.bcaBootstrapInterval(a, summary, level, options));
+    await step('bootstrap-percentile', () => stats.percentileBootstrapInterval(a, summary, level, options));
+    await step('paired difference, t', () => stats.comparePair(a, b, { level, method: 't' }));
+    await step('paired difference, BCa', () => stats.comparePair(a, b, { level, method: 'bootstrap', ...options }));
+    await step('probability of improvement', () => probabilityOfImprovementInterval(a, b, level));
+    await step('IQM + stratified bootstrap', () => interquartileMeanInterval([a], level, options));
+    await step('Holm + ranking', () => {
+      stats.holmAdjust([0.01, 0.2, 0.03]);
+      return rankByMean([stats.summarize(a).mean, stats.summarize(b).mean]);
+    });
+    const distinct = new Set(a).size;
+    return { seconds: Object.values(steps).reduce((x, y) => x + y, 0), steps, episodes, distinct };
+  },
+
   /** Wall time of a command started from scratch (e.g. `reckon --help`). */
   async command({ argv }) {
     const { seconds, cpuSeconds } = await timed(() => execFileSync(argv[0], argv.slice(1), { stdio: ['ignore', 'ignore', 'inherit'] }));

@@ -30,6 +30,7 @@ export function binomialSample(rng: Xoshiro128, m: number, p: number): number {
   if (m === 0 || p <= 0) return 0;
   if (p >= 1) return m;
   const q = 1 - p;
+  if (m * p < SMALL_MEAN) return fromZero(rng.uniform(), m, p, q);
   const mode = Math.min(m, Math.floor((m + 1) * p));
   const u = rng.uniform();
   const atMode = binomialPmf(mode, m, p);
@@ -55,6 +56,23 @@ export function binomialSample(rng: Xoshiro128, m: number, p: number): number {
     }
   }
   return mode; // u fell in the rounding gap above the masses' computed sum (about 1e-15)
+}
+
+/** Below this mean, searching up from 0 (one exp, about mp steps) beats the saddle-point mass at the mode. */
+const SMALL_MEAN = 8;
+
+/** Inversion searching up from k = 0, f(0) = q^m (the sequential search of Devroye 1986, §X.4.3). */
+function fromZero(u: number, m: number, p: number, q: number): number {
+  let mass = Math.exp(m * Math.log1p(-p));
+  let total = mass;
+  const up = p / q;
+  let k = 0;
+  while (u >= total && k < m) {
+    mass *= ((m - k) * up) / (k + 1);
+    k++;
+    total += mass;
+  }
+  return k;
 }
 
 const HALF_LOG_TWO_PI = 0.5 * Math.log(2 * Math.PI);

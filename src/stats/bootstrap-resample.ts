@@ -1,6 +1,6 @@
 import { STREAM, streamFor } from '../engine/streams.js';
 import { InputError } from '../errors.js';
-import { distinctValues, drawFrequentCounts, groupForResampling } from './resample-groups.js';
+import { drawFrequentCounts, resamplingOf } from './resample-groups.js';
 
 /** Resamples used when the caller names none (Efron & Tibshirani 1993 §13.3 suggest ≥ 1000 for percentiles). */
 export const DEFAULT_RESAMPLES = 2000;
@@ -44,11 +44,10 @@ export function resampledMeanDeviations(
   seed: number,
 ): Float64Array {
   const sample = returns.length === n ? returns : returns.slice(0, n);
-  const categories = distinctValues([sample]);
-  const groups = groupForResampling(sample, categories);
+  const { categories, groups } = resamplingOf(sample);
   const frequentValues = Float64Array.from(groups.frequent, (d) => categories[d] - mean);
   const frequentDraws = new Float64Array(groups.frequent.length);
-  const rare = Float64Array.from(groups.rare, (d) => categories[d] - mean);
+  const rare = Float64Array.from(groups.rare, (i) => sample[i] - mean);
   const rareCount = rare.length;
   const rng = streamFor(seed, STREAM.BOOTSTRAP);
   const deviations = new Float64Array(resamples);

@@ -1,8 +1,9 @@
 import { STREAM, streamFor } from '../engine/streams.js';
+import type { Xoshiro128 } from '../engine/xoshiro128.js';
 import { InputError } from '../errors.js';
 import { DEFAULT_RESAMPLES, requireResamples } from './bootstrap-resample.js';
 import { trimmedMeanOfCounts, trimmedMeanOfSorted } from './interquartile-mean.js';
-import { distinctValues, drawFrequentCounts, groupForResampling } from './resample-groups.js';
+import { distinctValues, drawFrequentCounts, groupForResampling, lowerBound } from './resample-groups.js';
 import { makeInterval, requireLevel, type Interval } from './interval.js';
 import { sortedQuantile } from './sample-quantile.js';
 
@@ -37,6 +38,7 @@ export function interquartileMeanInterval(
   }
   const categories = distinctValues(strata);
   const groups = strata.map((stratum) => groupForResampling(stratum, categories));
+  const rareCategories = groups.map((group, s) => Int32Array.from(group.rare, (i) => lowerBound(categories, strata[s][i])));
   const counts = new Float64Array(categories.length);
   const pooled = new Float64Array(total);
   let offset = 0;
@@ -51,12 +53,11 @@ export function interquartileMeanInterval(
   const estimates = new Float64Array(resamples);
   for (let b = 0; b < resamples; b++) {
     counts.fill(0);
-    for (const group of groups) {
+    groups.forEach((group, s) => {
       const left = drawFrequentCounts(group, rng, draws);
       for (let g = 0; g < group.frequent.length; g++) counts[group.frequent[g]] += draws[g];
-      const rare = group.rare;
-      for (let i = 0; i < left; i++) counts[rare[rng.integer(rare.length)]]++;
-    }
+      addRareDraws(rareCategories[s], left, rng, counts);
+    });
     estimates[b] = trimmedMeanOfCounts(categories, counts, total);
   }
   estimates.sort();
@@ -66,3 +67,35 @@ export function interquartileMeanInterval(
     interval: makeInterval('bootstrap-percentile', level, sortedQuantile(estimates, alpha / 2), sortedQuantile(estimates, 1 - alpha / 2)),
   };
 }
+
+/**
+ * `draws` index draws over the rare observations, counted into `counts`: exactly
+ * `counts[rare[rng.integer(rare.length)]]++` repeated, with the xoshiro128** step on local
+ * copies of the generator's state (as bootstrap-resample.ts does, for the same reason).
+ */
+function addRareDraws(rare: Int32Array, draws: number, rng: Xoshiro128, counts: Float64Array): void {
+  const size = rare.length;
+  let s0 = rng.s0;
+  let s1 = rng.s1;
+  let s2 = rng.s2;
+  let s3 = rng.s3;
+  for (let i = 0; i < draws; i++) {
+    const scaled = Math.imul(s1, 5);
+    const bits = Math.imul((scaled << 7) | (scaled >>> 25), 9) >>> 0;
+    const shifted = s1 << 9;
+    s2 ^= s0;
+    s3 ^= s1;
+    s1 ^= s2;
+    s0 ^= s3;
+    s2 ^= shifted;
+    s3 = (s3 << 11) | (s3 >>> 21);
+    counts[rare[(bits * UINT32_TO_UNIT * size) | 0]]++;
+  }
+  rng.s0 = s0;
+  rng.s1 = s1;
+  rng.s2 = s2;
+  rng.s3 = s3;
+}
+
+/** 2⁻³², as in Xoshiro128.uniform(). */
+const UINT32_TO_UNIT = 2.3283064365386963e-10;

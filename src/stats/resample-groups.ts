@@ -25,7 +25,7 @@ export interface ResampleGroups {
   readonly frequent: Int32Array;
   /** How often each frequent value occurs. */
   readonly frequentCounts: Float64Array;
-  /** Position in `categories` of each remaining observation, in sample order. */
+  /** Positions in the sample of the remaining observations, in sample order. */
   readonly rare: Int32Array;
 }
 
@@ -35,10 +35,21 @@ export function distinctValues(samples: readonly ArrayLike<number>[]): Float64Ar
   const all = new Float64Array(total);
   let at = 0;
   for (const sample of samples) for (let i = 0; i < sample.length; i++) all[at++] = sample[i];
-  all.sort();
+  return distinctOfSorted(all.sort());
+}
+
+function distinctOfSorted(sorted: Float64Array): Float64Array {
+  const out = new Float64Array(sorted.length);
   let m = 0;
-  for (let i = 0; i < all.length; i++) if (m === 0 || all[i] !== all[m - 1]) all[m++] = all[i];
-  return all.slice(0, m);
+  for (let i = 0; i < sorted.length; i++) if (m === 0 || sorted[i] !== out[m - 1]) out[m++] = sorted[i];
+  return out.slice(0, m);
+}
+
+/** One sample's distinct values and groups, from a single sort. */
+export function resamplingOf(sample: ArrayLike<number>): { categories: Float64Array; groups: ResampleGroups } {
+  const sorted = Float64Array.from(sample as ArrayLike<number>).sort();
+  const categories = distinctOfSorted(sorted);
+  return { categories, groups: groupSorted(sample, sorted, categories) };
 }
 
 /** Index of the first element ≥ v in ascending `sorted`. */
@@ -55,8 +66,11 @@ export function lowerBound(sorted: Float64Array, v: number): number {
 
 /** Splits `sample` into frequent values and rare observations; `categories` must hold every value. */
 export function groupForResampling(sample: ArrayLike<number>, categories: Float64Array): ResampleGroups {
+  return groupSorted(sample, Float64Array.from(sample as ArrayLike<number>).sort(), categories);
+}
+
+function groupSorted(sample: ArrayLike<number>, sorted: Float64Array, categories: Float64Array): ResampleGroups {
   const n = sample.length;
-  const sorted = Float64Array.from(sample as ArrayLike<number>).sort();
   const frequentValues: number[] = [];
   const counts: number[] = [];
   for (let i = 0; i < n; ) {
@@ -82,7 +96,7 @@ export function groupForResampling(sample: ArrayLike<number>, categories: Float6
       const g = lowerBound(frequentSorted, v);
       if (g < frequentSorted.length && frequentSorted[g] === v) continue;
     }
-    rare[r++] = lowerBound(categories, v);
+    rare[r++] = i;
   }
   return { size: n, frequent, frequentCounts, rare };
 }
