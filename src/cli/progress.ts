@@ -8,6 +8,7 @@ import { count, duration, rate, sig } from '../report/format.js';
 export class ProgressLine {
   private lastDraw = 0;
   private drawn = false;
+  private analysisStarted: number | null = null;
   private readonly enabled: boolean;
 
   constructor(private readonly stream: NodeJS.WriteStream = process.stderr) {
@@ -31,6 +32,23 @@ export class ProgressLine {
     } else {
       text = `  ${count(p.done)}/${count(p.total)} episodes  ${rate(perSecond)}/s  mean ${sig(p.mean)}${hw}  ~${duration(left)} left`;
     }
+    this.stream.write(`\r${text.padEnd(78)}`);
+    this.drawn = true;
+  }
+
+  /**
+   * The figures computed after the episodes (a bootstrap's resamples): shown once the analysis
+   * has taken a second, redrawn at most five times a second.
+   */
+  analysis(step: string, done: number, total: number): void {
+    if (!this.enabled) return;
+    const now = performance.now();
+    this.analysisStarted ??= now;
+    if (now - this.analysisStarted < 1000) return;
+    if (now - this.lastDraw < 200 && done < total) return;
+    this.lastDraw = now;
+    const perSecond = done / ((now - this.analysisStarted) / 1000);
+    const text = `  analysing: ${step}, ${count(done)}/${count(total)} resamples  ~${duration(perSecond > 0 ? (total - done) / perSecond : null)} left`;
     this.stream.write(`\r${text.padEnd(78)}`);
     this.drawn = true;
   }

@@ -6,7 +6,7 @@ import { InputError } from '../errors.js';
 import { comparePolicies, differenceBounds, type DifferenceMethod, type PolicyComparison, type RunningInterval } from '../stats/index.js';
 import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
 import type { EstimateResult } from './estimate.js';
-import { computeFigures, type ReportedInterval, type TargetOutcome } from './figures.js';
+import { computeFigures, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import { chooseSequence, makeRunningInterval, sequenceInterval, targetReached, type SequenceChoice, type SequenceSettings } from './sequence.js';
 
@@ -36,6 +36,8 @@ export interface CompareRequest {
   readonly onStart?: (facts: readonly EnvironmentFacts[], sequence: SequenceChoice | null) => void;
   /** Called with each policy's kept episodes, in episode order, batch by batch. */
   readonly onEpisodes?: (policy: number, block: EpisodeBlock, steps: number, seconds: number) => void;
+  /** Told how far a slow figure has got, once the episodes are done. */
+  readonly onAnalysis?: AnalysisProgress;
 }
 
 export interface ComparisonResult {
@@ -47,7 +49,12 @@ export interface ComparisonResult {
   /** Per pair (in `comparison.pairs` order), the interval reported for the difference. */
   readonly differenceIntervals: readonly ReportedInterval[];
   readonly episodes: number;
+  /** Sampling plus analysis. */
   readonly seconds: number;
+  /** Running the episodes of every policy. */
+  readonly samplingSeconds: number;
+  /** Computing every figure from the returns. */
+  readonly analysisSeconds: number;
   readonly target: TargetOutcome | null;
   readonly interrupted: boolean;
 }
@@ -176,6 +183,7 @@ export function summarizeComparison(
   seconds: number,
   reached: boolean,
 ): ComparisonResult {
+  const analysisStarted = performance.now();
   const episodes = buffers[0].count;
   const estimates = buffers.map((buffer, p) =>
     computeFigures(
@@ -189,6 +197,7 @@ export function summarizeComparison(
         sigma: request.sigma,
         seed: request.seed,
         start: request.start,
+        onAnalysis: request.onAnalysis,
       },
       { steps: buffer.lengthSum, seconds: seconds / buffers.length, workers: request.workers },
       request.episodes,
@@ -196,7 +205,7 @@ export function summarizeComparison(
   );
   const comparison = comparePolicies(
     buffers.map((b) => b.view()),
-    { level: request.level, method: request.method, seed: request.seed, interquartileMean: request.interquartileMean },
+    { level: request.level, method: request.method, seed: request.seed, interquartileMean: request.interquartileMean, onProgress: request.onAnalysis },
   );
   let differenceIntervals: ReportedInterval[] = comparison.pairs.map((pair) => ({ ...pair.interval, anytimeValid: false }));
   if (sequence !== null && request.targetError !== null) {
@@ -220,6 +229,7 @@ export function summarizeComparison(
     });
   }
   const target = request.targetError === null ? null : { error: request.targetError, reached, maxEpisodes: request.episodes };
+  const analysisSeconds = (performance.now() - analysisStarted) / 1000;
   return {
     request,
     facts,
@@ -227,7 +237,9 @@ export function summarizeComparison(
     comparison,
     differenceIntervals,
     episodes,
-    seconds,
+    seconds: seconds + analysisSeconds,
+    samplingSeconds: seconds,
+    analysisSeconds,
     target,
     interrupted: target ? !reached && episodes < request.episodes : episodes < request.episodes,
   };

@@ -3,7 +3,7 @@ import { prepareRollout } from '../engine/prepare.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
 import type { CiMethod, ProjectionRow } from '../stats/index.js';
-import { computeFigures, checkIntervalPossible, type ReportedInterval, type TargetOutcome } from './figures.js';
+import { computeFigures, checkIntervalPossible, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
 import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import { RunningMoments } from './running-moments.js';
@@ -41,6 +41,8 @@ export interface EstimateRequest {
   readonly prior?: { returns: Float64Array; lengths: Uint32Array };
   readonly priorSeconds?: number;
   readonly signal?: AbortSignal;
+  /** Told how far a slow figure has got, once the episodes are done. */
+  readonly onAnalysis?: AnalysisProgress;
 }
 
 export interface EstimateProgress {
@@ -73,7 +75,12 @@ export interface EstimateResult {
   readonly longestEpisode: number;
   readonly episodesAtHorizon: number;
   readonly steps: number;
+  /** Sampling plus analysis. */
   readonly seconds: number;
+  /** Running the episodes. */
+  readonly samplingSeconds: number;
+  /** Computing the figures from the returns (interval, projection). */
+  readonly analysisSeconds: number;
   readonly workers: number;
   readonly interrupted: boolean;
   /** Set for a run until a target error. */
@@ -180,8 +187,9 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   return computeFigures(
     buffer,
     facts,
-    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start },
+    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start, onAnalysis: request.onAnalysis },
     timing,
     request.episodes,
+    sequence,
   );
 }

@@ -1,8 +1,11 @@
-import { confidenceInterval, projectionTable, summarize, type CiMethod, type ProjectionRow } from '../stats/index.js';
+import { confidenceInterval, projectionTable, summarize, type CiMethod, type ProjectionRow, type RunningInterval } from '../stats/index.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import type { EstimateResult, IntervalChoice } from './estimate.js';
 import type { ReturnsBuffer } from './returns-buffer.js';
 import { isSequenceMethod, makeRunningInterval, sequenceEpisodesNeeded, sequenceInterval, targetReached, type SequenceSettings } from './sequence.js';
+
+/** Told how far a slow figure has got (a bootstrap's resamples), so a terminal can show it. */
+export type AnalysisProgress = (step: string, done: number, total: number) => void;
 
 export interface FigureSettings {
   readonly method: IntervalChoice;
@@ -13,12 +16,34 @@ export interface FigureSettings {
   readonly sigma: number | null;
   readonly seed: number;
   readonly start: string | null;
+  readonly onAnalysis?: AnalysisProgress;
 }
 
 export interface RunTiming {
   readonly steps: number;
+  /** Seconds spent running the episodes (the sampling). */
   readonly seconds: number;
   readonly workers: number;
+}
+
+/**
+ * The analysis time at `to` episodes from the time it took at `from`, as n log n grows (the
+ * sorts; the resampling costs grow no faster). Used to tell what a projected run would cost in
+ * all, not only in sampling.
+ */
+export function projectedAnalysisSeconds(seconds: number, from: number, to: number): number {
+  if (!(seconds > 0) || from < 2 || to <= from) return Math.max(0, seconds);
+  return (seconds * to * Math.log(to)) / (from * Math.log(from));
+}
+
+/** Below this, an analysis is timed again once compiled before its time is projected. */
+const QUICK_ANALYSIS_SECONDS = 0.05;
+
+/** Adds the analysis of the projected run to each projection row's time. */
+function withAnalysis(rows: ProjectionRow[], analysisSeconds: number, episodes: number): ProjectionRow[] {
+  return rows.map((row) =>
+    row.seconds === null ? row : { ...row, seconds: row.seconds + projectedAnalysisSeconds(analysisSeconds, episodes, row.episodes_needed) },
+  );
 }
 
 /** An interval as reported: a fixed-sample one, or a confidence sequence's at the stop. */
@@ -50,7 +75,8 @@ export function checkIntervalPossible(method: CiMethod, bounds: [number, number]
  * Every figure of a report from the returns in episode order: the same code serves a fresh
  * run, a resumed one and a re-analysis of stored returns, so they agree to the bit. For a
  * sequence method the returns are fed to a new sequence in order, which reproduces the
- * interval the run stopped on.
+ * interval the run stopped on; a fresh run passes the sequence it already fed with exactly
+ * these returns in this order (`live`), which is the same state, to save the replay.
  */
 export function computeFigures(
   buffer: ReturnsBuffer,
@@ -58,7 +84,10 @@ export function computeFigures(
   settings: FigureSettings,
   timing: RunTiming,
   requestedEpisodes: number,
+  live: RunningInterval | null = null,
 ): EstimateResult {
+  const analysisStarted = performance.now();
+  const analysisSoFar = () => (performance.now() - analysisStarted) / 1000;
   const returns = buffer.view();
   const summary = summarize(returns);
   const bounds = settings.bounds ?? facts.returnBounds;
@@ -74,8 +103,9 @@ export function computeFigures(
       sigma: settings.sigma,
       targetError: settings.targetError ?? Number.NaN,
     };
-    const sequence = makeRunningInterval(sequenceSettings);
-    sequence.add(returns);
+    // A fresh run hands over the sequence it fed while running; a re-analysis replays it.
+    const sequence = live ?? makeRunningInterval(sequenceSettings);
+    if (!live) sequence.add(returns);
     const reached = settings.targetError !== null && targetReached(sequence, sequenceSettings);
     ci = sequenceInterval(sequence, sequenceSettings, reached, summary.mean);
     target = settings.targetError === null ? null : { error: settings.targetError, reached, maxEpisodes: requestedEpisodes };
@@ -87,8 +117,20 @@ export function computeFigures(
         const more = Math.max(0, needed - summary.n);
         return { half_width: halfWidth, episodes_needed: needed, more_episodes: more, seconds: episodesPerSecond ? more / episodesPerSecond : null };
       });
+    projection = withAnalysis(projection, analysisSoFar(), summary.n);
   } else {
-    const interval = confidenceInterval(returns, summary, { method: settings.method, level: settings.level, bounds, seed: settings.seed });
+    const onProgress = settings.onAnalysis ? (done: number, total: number) => settings.onAnalysis!(`${settings.method} interval`, done, total) : undefined;
+    const request = { method: settings.method, level: settings.level, bounds, seed: settings.seed, onProgress };
+    const interval = confidenceInterval(returns, summary, request);
+    const firstAnalysis = analysisSoFar();
+    // A quick analysis is mostly compiling its code, which a longer run pays no more of: its
+    // cost per episode is read from a second, compiled pass (a few milliseconds at most).
+    let perRunAnalysis = firstAnalysis;
+    if (firstAnalysis < QUICK_ANALYSIS_SECONDS) {
+      const again = performance.now();
+      confidenceInterval(returns, summarize(returns), request);
+      perRunAnalysis = (performance.now() - again) / 1000;
+    }
     ci = { ...interval, anytimeValid: false };
     projection = projectionTable({
       method: settings.method,
@@ -99,7 +141,9 @@ export function computeFigures(
       targets: settings.targetError !== null ? [settings.targetError] : undefined,
       episodesPerSecond,
     });
+    projection = withAnalysis(projection, perRunAnalysis, summary.n);
   }
+  const analysisSeconds = analysisSoFar();
   return {
     facts,
     seed: settings.seed,
@@ -119,7 +163,9 @@ export function computeFigures(
     longestEpisode: buffer.longest,
     episodesAtHorizon: buffer.atHorizon,
     steps: timing.steps,
-    seconds: timing.seconds,
+    seconds: timing.seconds + analysisSeconds,
+    samplingSeconds: timing.seconds,
+    analysisSeconds,
     workers: timing.workers,
     interrupted: target ? !target.reached && buffer.count < requestedEpisodes : buffer.count < requestedEpisodes,
     target,

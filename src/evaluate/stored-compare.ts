@@ -7,6 +7,7 @@ import { InputError } from '../errors.js';
 import type { DifferenceMethod } from '../stats/index.js';
 import { runComparison, summarizeComparison, type CompareRequest, type ComparisonResult } from './compare.js';
 import type { EnvironmentFacts } from './environment-facts.js';
+import type { AnalysisProgress } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import type { SequenceChoice } from './sequence.js';
 
@@ -136,7 +137,7 @@ function comparisonSummary(result: ComparisonResult): Record<string, unknown> {
 }
 
 /** A stored comparison recomputed from its member runs' stored returns. */
-export function analyzeStoredComparison(db: Db, run: RunRecord): { result: ComparisonResult; labels: { env: string; policies: string[] } } {
+export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: AnalysisProgress): { result: ComparisonResult; labels: { env: string; policies: string[] } } {
   const options = run.options as unknown as ComparisonOptions;
   const members = listRuns(db, { parentId: run.id, limit: 1000 }).sort(
     (x, y) => (x.options.policyIndex as number) - (y.options.policyIndex as number),
@@ -165,6 +166,7 @@ export function analyzeStoredComparison(db: Db, run: RunRecord): { result: Compa
     sigma: options.sigma,
     targetError: options.targetError,
     interquartileMean: options.interquartileMean,
+    onAnalysis,
   };
   const totalSeconds = members.reduce((s, m) => Math.max(s, m.seconds), 0);
   const reached = (run.summary as { target_reached?: boolean } | null)?.target_reached === true;

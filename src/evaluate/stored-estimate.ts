@@ -9,7 +9,7 @@ import type { CiMethod } from '../stats/index.js';
 import type { IntervalChoice } from './estimate.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import { runEstimate, type EstimateProgress, type EstimateResult } from './estimate.js';
-import { computeFigures } from './figures.js';
+import { computeFigures, type AnalysisProgress } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 
 /** The options a stored estimate keeps, to resume it and to re-analyse it the same way. */
@@ -35,6 +35,8 @@ export interface StoredEstimateRequest {
   readonly first: number;
   readonly signal?: AbortSignal;
   readonly onProgress?: (p: EstimateProgress) => void;
+  /** Told how far a slow figure has got, once the episodes are done. */
+  readonly onAnalysis?: AnalysisProgress;
   /** Told the run id as soon as the run exists (so Ctrl-C can say how to resume). */
   readonly onRunId?: (id: string) => void;
 }
@@ -128,6 +130,7 @@ async function execute(
       priorSeconds: resume?.seconds,
       signal: request.signal,
       onProgress: request.onProgress,
+      onAnalysis: request.onAnalysis,
       onFacts: (facts, method) => {
         runId = open(facts, method);
       },
@@ -160,7 +163,11 @@ function ownerAlive(run: RunRecord): boolean {
  * The figures of a stored run recomputed from its stored returns: a different interval method
  * or level is a re-analysis, with no new episodes.
  */
-export function analyzeStoredRun(db: Db, run: RunRecord, overrides: { method?: CiMethod; level?: number } = {}): EstimateResult {
+export function analyzeStoredRun(
+  db: Db,
+  run: RunRecord,
+  overrides: { method?: CiMethod; level?: number; onAnalysis?: AnalysisProgress } = {},
+): EstimateResult {
   // A target-error run re-analysed with a fixed-sample method is a what-if: the interval then
   // ignores that the run stopped on the data, and no target is reported.
   const stored = run.options as unknown as StoredOptions;
@@ -182,6 +189,7 @@ export function analyzeStoredRun(db: Db, run: RunRecord, overrides: { method?: C
       sigma: stored.sigma ?? null,
       seed: run.seed,
       start: run.start,
+      onAnalysis: overrides.onAnalysis,
     },
     { steps: run.steps, seconds: run.seconds, workers: stored.workers },
     run.episodesRequested,

@@ -55,6 +55,8 @@ export function compareJson(result: ComparisonResult, labels: { env: string; pol
     target_reached: result.target ? result.target.reached : null,
     max_episodes: result.target?.maxEpisodes ?? null,
     seconds: result.seconds,
+    sampling_seconds: result.samplingSeconds,
+    analysis_seconds: result.analysisSeconds,
     workers: result.request.workers,
     interrupted: result.interrupted,
     reckon_version: version,

@@ -1,5 +1,5 @@
 import type { ComparisonResult } from '../evaluate/compare.js';
-import { columns, count, decimalsFor, duration, fixed, sig } from './format.js';
+import { columns, count, decimalsFor, fixed, sig, timeSplit } from './format.js';
 
 function pText(p: number): string {
   return p < 1e-4 ? '< 0.0001' : p.toFixed(4);
@@ -61,7 +61,7 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
     );
   });
   if (multiple) lines.push('', `  With ${comparison.pairs.length} pairs, p-values are Holm-adjusted (Holm 1979) to keep the chance of any false difference at ${(100 - result.request.level * 100).toFixed(0)}%.`);
-  lines.push('', `  time ${duration(result.seconds)} on ${result.request.workers} worker${result.request.workers === 1 ? '' : 's'}`);
+  lines.push('', `  time ${timeSplit(result.samplingSeconds, result.analysisSeconds)} on ${result.request.workers} worker${result.request.workers === 1 ? '' : 's'}`);
   if (result.interrupted) lines.push(`  Stopped early after ${count(result.episodes)} episodes; the figures above use those.`);
   return lines.join('\n') + '\n';
 }

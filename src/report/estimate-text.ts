@@ -1,5 +1,5 @@
 import type { EstimateResult } from '../evaluate/estimate.js';
-import { columns, count, decimalsFor, duration, fixed, rate, sig } from './format.js';
+import { columns, count, decimalsFor, duration, fixed, rate, sig, timeSplit } from './format.js';
 
 const METHOD_NAMES: Record<string, string> = {
   t: 'Student t',
@@ -50,13 +50,14 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
     const source = result.boundsSource === 'user' ? 'from --bounds' : facts.kind === 'finite' ? 'exact, for this policy' : "from the environment's reward range";
     lines.push(`  return bounds    ${sig(result.bounds[0])} … ${sig(result.bounds[1])} (${source})`);
   }
-  const throughput = result.seconds > 0 ? `${rate(result.steps / result.seconds)} steps/s, ${rate(result.episodes / result.seconds)} episodes/s` : '';
-  lines.push(`  time             ${duration(result.seconds)} on ${result.workers} worker${result.workers === 1 ? '' : 's'}${throughput ? `, ${throughput}` : ''}`);
+  const sampling = result.samplingSeconds;
+  const throughput = sampling > 0 ? `${rate(result.steps / sampling)} steps/s, ${rate(result.episodes / sampling)} episodes/s` : '';
+  lines.push(`  time             ${timeSplit(sampling, result.analysisSeconds)} on ${result.workers} worker${result.workers === 1 ? '' : 's'}${throughput ? `, ${throughput}` : ''}`);
   if (result.interrupted) {
     lines.push('', `  Stopped early: ${count(result.episodes)} of ${count(result.requestedEpisodes)} episodes ran; the figures above use those.`);
   }
   if (result.projection.length > 0) {
-    lines.push('', '  To narrow the interval (at this run\'s spread and speed):');
+    lines.push('', '  To narrow the interval (at this run\'s spread and speed; time counts sampling and analysis):');
     const rows = [['± half-width', 'episodes needed', 'more than now', 'time']];
     for (const row of result.projection) {
       rows.push([fixed(row.half_width, decimalsFor(row.half_width)), count(row.episodes_needed), count(row.more_episodes), duration(row.seconds)]);

@@ -78,7 +78,7 @@ export function bcaBootstrapInterval(
   requireTwoEpisodes('bootstrap', summary);
   const resamples = options.resamples ?? DEFAULT_RESAMPLES;
   requireResamples(resamples);
-  const deviations = resampledMeanDeviations(returns, summary.n, summary.mean, resamples, options.seed ?? 0);
+  const deviations = resampledMeanDeviations(returns, summary.n, summary.mean, resamples, options.seed ?? 0, options.onProgress);
   const z0 = bcaBiasCorrection(deviations);
   const acceleration = bcaAcceleration(returns, summary.n);
   const zLow = normalQuantile((1 - level) / 2);

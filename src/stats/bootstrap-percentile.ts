@@ -19,7 +19,7 @@ export function percentileBootstrapInterval(
   requireTwoEpisodes('bootstrap-percentile', summary);
   const resamples = options.resamples ?? DEFAULT_RESAMPLES;
   requireResamples(resamples);
-  const deviations = resampledMeanDeviations(returns, summary.n, summary.mean, resamples, options.seed ?? 0);
+  const deviations = resampledMeanDeviations(returns, summary.n, summary.mean, resamples, options.seed ?? 0, options.onProgress);
   const alpha = 1 - level;
   return makeInterval(
     'bootstrap-percentile',

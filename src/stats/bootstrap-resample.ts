@@ -13,7 +13,12 @@ export interface BootstrapOptions {
   seed?: number;
   /** Number of resamples B (default {@link DEFAULT_RESAMPLES}). */
   resamples?: number;
+  /** Called now and then with the resamples done so far (for a progress display). */
+  onProgress?: (done: number, total: number) => void;
 }
+
+/** Resamples between two progress calls. */
+export const PROGRESS_EVERY = 64;
 
 export function requireResamples(resamples: number): void {
   if (!Number.isInteger(resamples) || resamples < MIN_RESAMPLES) {
@@ -42,6 +47,7 @@ export function resampledMeanDeviations(
   mean: number,
   resamples: number,
   seed: number,
+  onProgress?: (done: number, total: number) => void,
 ): Float64Array {
   const sample = returns.length === n ? returns : returns.slice(0, n);
   const { categories, groups } = resamplingOf(sample);
@@ -76,6 +82,7 @@ export function resampledMeanDeviations(
     rng.s2 = s2;
     rng.s3 = s3;
     deviations[b] = sum / n;
+    if (onProgress && (b + 1) % PROGRESS_EVERY === 0) onProgress(b + 1, resamples);
   }
   return deviations.sort();
 }

@@ -19,6 +19,8 @@ export interface CompareOptions {
   resamples?: number;
   /** Also report each policy's interquartile mean with a bootstrap interval (default false). */
   interquartileMean?: boolean;
+  /** Told how far each bootstrap has got (for a progress display). */
+  onProgress?: (step: string, done: number, total: number) => void;
 }
 
 export interface PolicyStanding {
@@ -62,7 +64,8 @@ export function comparePolicies(returns: readonly (Float64Array | number[])[], o
   const pairs: PairResult[] = [];
   for (let i = 0; i < returns.length; i++) {
     for (let j = i + 1; j < returns.length; j++) {
-      const comparison = comparePair(returns[i], returns[j], { level: options.level, method: options.method, ...bootstrap });
+      const onProgress = options.onProgress ? (done: number, total: number) => options.onProgress!(`[${i}] − [${j}] bootstrap`, done, total) : undefined;
+      const comparison = comparePair(returns[i], returns[j], { level: options.level, method: options.method, ...bootstrap, onProgress });
       pairs.push({
         first: i,
         second: j,
@@ -79,7 +82,10 @@ export function comparePolicies(returns: readonly (Float64Array | number[])[], o
   const { rank } = rankByMean(means);
   const policies = means.map((mean, policy): PolicyStanding => {
     const standing: PolicyStanding = { policy, mean, rank: rank[policy] };
-    if (options.interquartileMean) standing.interquartileMean = interquartileMeanInterval([returns[policy]], options.level, bootstrap);
+    if (options.interquartileMean) {
+      const onProgress = options.onProgress ? (done: number, total: number) => options.onProgress!(`[${policy}] IQM bootstrap`, done, total) : undefined;
+      standing.interquartileMean = interquartileMeanInterval([returns[policy]], options.level, { ...bootstrap, onProgress });
+    }
     return standing;
   });
   return { policies, pairs };

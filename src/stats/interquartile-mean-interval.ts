@@ -1,7 +1,7 @@
 import { STREAM, streamFor } from '../engine/streams.js';
 import type { Xoshiro128 } from '../engine/xoshiro128.js';
 import { InputError } from '../errors.js';
-import { DEFAULT_RESAMPLES, requireResamples } from './bootstrap-resample.js';
+import { DEFAULT_RESAMPLES, PROGRESS_EVERY, requireResamples } from './bootstrap-resample.js';
 import { trimmedMeanOfCounts, trimmedMeanOfSorted } from './interquartile-mean.js';
 import { distinctValues, drawFrequentCounts, groupForResampling, lowerBound } from './resample-groups.js';
 import { makeInterval, requireLevel, type Interval } from './interval.js';
@@ -12,6 +12,8 @@ export interface StratifiedBootstrapOptions {
   seed?: number;
   /** Bootstrap resamples (default 2000). */
   resamples?: number;
+  /** Called now and then with the resamples done so far (for a progress display). */
+  onProgress?: (done: number, total: number) => void;
 }
 
 /**
@@ -59,6 +61,7 @@ export function interquartileMeanInterval(
       addRareDraws(rareCategories[s], left, rng, counts);
     });
     estimates[b] = trimmedMeanOfCounts(categories, counts, total);
+    if (options.onProgress && (b + 1) % PROGRESS_EVERY === 0) options.onProgress(b + 1, resamples);
   }
   estimates.sort();
   const alpha = 1 - level;

@@ -21,6 +21,8 @@ export interface IntervalRequest {
   seed?: number;
   /** Bootstrap resamples (default 2000). */
   resamples?: number;
+  /** Told of the bootstrap's progress (resamples done of all). */
+  onProgress?: (done: number, total: number) => void;
 }
 
 export function isCiMethod(name: string): name is CiMethod {
@@ -43,7 +45,7 @@ export function confidenceInterval(
   if (!isCiMethod(method)) {
     throw new InputError('--ci', `unknown method "${method}"; choose one of ${CI_METHODS.join(', ')}`);
   }
-  const bootstrap = { seed: request.seed, resamples: request.resamples };
+  const bootstrap = { seed: request.seed, resamples: request.resamples, onProgress: request.onProgress };
   switch (method) {
     case 't':
       return tInterval(summary, level);

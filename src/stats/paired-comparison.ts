@@ -19,6 +19,8 @@ export interface PairedComparisonOptions {
   seed?: number;
   /** Bootstrap resamples (default 2000). */
   resamples?: number;
+  /** Told of the bootstrap's progress (resamples done of all). */
+  onProgress?: (done: number, total: number) => void;
 }
 
 /** Everything `compare` reports for one ordered pair (first, second). */
@@ -58,7 +60,7 @@ export function comparePair(
   const differences = pairedDifferences(first, second);
   const test = pairedTTest(differences, options.level);
   const summary = test.differences;
-  const bootstrap = { seed: options.seed, resamples: options.resamples };
+  const bootstrap = { seed: options.seed, resamples: options.resamples, onProgress: options.onProgress };
   const interval =
     method === 't'
       ? test.interval

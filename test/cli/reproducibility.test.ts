@@ -6,6 +6,8 @@ import { FIXTURES, reckon } from './run-cli.js';
 function figures(stdout: string) {
   const json = JSON.parse(stdout);
   delete json.seconds;
+  delete json.sampling_seconds;
+  delete json.analysis_seconds;
   delete json.steps_per_second;
   delete json.episodes_per_second;
   delete json.workers;

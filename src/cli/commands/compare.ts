@@ -115,6 +115,7 @@ export async function run(args: string[]): Promise<number> {
       ...request,
       signal: controller.signal,
       onProgress: (p) => progress.update({ ...p, mean: Number.NaN }),
+      onAnalysis: (step, done, total) => progress.analysis(step, done, total),
     };
     if (db) {
       const stored = await runStoredComparison(db, withProgress, version());

@@ -116,11 +116,19 @@ export async function run(args: string[]): Promise<number> {
         first: range.first,
         signal: controller.signal,
         onProgress: (p) => progress.update(p),
+        onAnalysis: (step, done, total) => progress.analysis(step, done, total),
       });
       result = stored.result;
       runId = stored.runId;
     } else {
-      result = await runEstimate({ spec, ...options, first: range.first, signal: controller.signal, onProgress: (p) => progress.update(p) });
+      result = await runEstimate({
+        spec,
+        ...options,
+        first: range.first,
+        signal: controller.signal,
+        onProgress: (p) => progress.update(p),
+        onAnalysis: (step, done, total) => progress.analysis(step, done, total),
+      });
     }
   } finally {
     progress.clear();

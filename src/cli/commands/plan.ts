@@ -2,7 +2,8 @@ import { readDefinitionFile } from '../../definitions/index.js';
 import { InputError } from '../../errors.js';
 import { runPilot, type PilotResult } from '../../evaluate/pilot.js';
 import { columns, count, duration, rate as formatRate, sig } from '../../report/format.js';
-import { differenceBounds, pairedSampleSize, planEpisodes, summarize } from '../../stats/index.js';
+import { comparePolicies, differenceBounds, pairedSampleSize, planEpisodes, summarize, tInterval } from '../../stats/index.js';
+import { projectedAnalysisSeconds } from '../../evaluate/figures.js';
 import { pairingGain } from '../../stats/pairing-gain.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
@@ -59,6 +60,28 @@ function seconds(episodes: number | null, rate: number): number | null {
   return episodes === null || !Number.isFinite(episodes) ? null : episodes / rate;
 }
 
+/**
+ * Seconds `work` takes: the planned run's analysis, timed on the pilot's returns. Timed on a
+ * second call, once compiled: at a long run's size, compiling is a negligible part.
+ */
+function timed(work: () => unknown): number {
+  work();
+  const started = performance.now();
+  work();
+  return (performance.now() - started) / 1000;
+}
+
+/**
+ * Sampling and analysis of a run of `episodes`: the pilot's rate for the first, the pilot's
+ * analysis time grown as n log n (figures.ts) for the second.
+ */
+function runSeconds(episodes: number | null, rate: number, pilotAnalysis: number, pilotEpisodes: number): { total: number | null; analysis: number | null } {
+  const sampling = seconds(episodes, rate);
+  if (sampling === null || episodes === null) return { total: null, analysis: null };
+  const analysis = projectedAnalysisSeconds(pilotAnalysis, pilotEpisodes, episodes);
+  return { total: sampling + analysis, analysis };
+}
+
 export async function run(args: string[]): Promise<number> {
   const { values } = parseCommandArgs('plan', args, OPTIONS);
   if (values.help) {
@@ -89,6 +112,8 @@ export async function run(args: string[]): Promise<number> {
     // Both policies run each pair: the time per pair is the sum of their times per episode.
     const rate = 1 / (1 / pilots[0].episodesPerSecond + 1 / pilots[1].episodesPerSecond);
     const independent = pairedSampleSize({ effect, sigmaDifference: Math.sqrt(gain.varianceFirst + gain.varianceSecond), level, power });
+    const pilotAnalysis = timed(() => comparePolicies([pilots[0].returns.subarray(0, n), pilots[1].returns.subarray(0, n)], { level }));
+    const projected = runSeconds(size.exactPairs, rate, pilotAnalysis, n);
     const out = {
       env: envPath,
       policies: policyPaths,
@@ -103,7 +128,8 @@ export async function run(args: string[]): Promise<number> {
       episodes_needed_z: size.zPairs,
       power_at_episodes_needed: size.powerAtExactPairs,
       episodes_needed_unpaired: independent.exactPairs,
-      seconds: seconds(size.exactPairs, rate),
+      seconds: projected.total,
+      analysis_seconds: projected.analysis,
       workers,
     };
     if (values.json) {
@@ -117,7 +143,7 @@ export async function run(args: string[]): Promise<number> {
         '',
         `  pilot            ${count(n)} episodes per policy; σ of the paired difference ${sig(sigmaDifference)}, correlation ${gain.correlation.toFixed(3)}`,
         `  episodes needed  ${count(size.exactPairs)} per policy (exact power ${size.powerAtExactPairs.toFixed(4)}; normal approximation ${count(size.zPairs)})`,
-        `  time             ${duration(out.seconds)} at ${formatRate(rate)} pairs/s on ${workers} worker${workers === 1 ? '' : 's'}`,
+        `  time             ${duration(out.seconds)} at ${formatRate(rate)} pairs/s on ${workers} worker${workers === 1 ? '' : 's'} (${duration(projected.analysis)} of it analysis)`,
         `  without pairing  ${count(independent.exactPairs)} per policy: pairing saves ${sig(gain.varianceReduction, 3)}×`,
         '',
       ].join('\n'),
@@ -134,6 +160,8 @@ export async function run(args: string[]): Promise<number> {
   const sequentialMethod = bounds ? 'empirical-bernstein' : sigma !== undefined ? 'normal-mixture' : null;
   const sequential = sequentialMethod === 'empirical-bernstein' ? plan.empiricalBernstein : sequentialMethod === 'normal-mixture' ? plan.normalMixture.episodes : null;
   const rate = result.episodesPerSecond;
+  const pilotAnalysis = timed(() => tInterval(summarize(result.returns), level));
+  const total = (episodes: number | null) => runSeconds(episodes, rate, pilotAnalysis, summary.n);
   const out = {
     env: envPath,
     policy: policyPaths[0],
@@ -145,7 +173,8 @@ export async function run(args: string[]): Promise<number> {
     sequential_method: sequentialMethod,
     episodes_needed_normal_mixture: plan.normalMixture.sigmaSource === 'estimated' ? null : plan.normalMixture.episodes,
     episodes_needed_hoeffding: plan.hoeffding,
-    seconds: { fixed: seconds(plan.fixedT, rate), sequential: seconds(sequential, rate), hoeffding: seconds(plan.hoeffding, rate) },
+    seconds: { fixed: total(plan.fixedT).total, sequential: total(sequential).total, hoeffding: total(plan.hoeffding).total },
+    analysis_seconds: { fixed: total(plan.fixedT).analysis, sequential: total(sequential).analysis, hoeffding: total(plan.hoeffding).analysis },
     return_bounds: bounds,
     workers,
     note: 'projections use the pilot\'s standard deviation, so a run reaches the target about half the time at the projected size',
@@ -154,11 +183,11 @@ export async function run(args: string[]): Promise<number> {
     process.stdout.write(`${JSON.stringify(out, null, 2)}\n`);
     return 0;
   }
-  const rows = [['run', 'episodes', 'time at this machine\'s rate']];
+  const rows = [['run', 'episodes', 'time at this machine\'s rate (sampling + analysis)']];
   rows.push(['fixed n, Student t', count(plan.fixedT), duration(out.seconds.fixed)]);
   if (sequential !== null) rows.push([`until ±${epsilon} (--target-error, ${sequentialMethod})`, Number.isFinite(sequential) ? count(sequential) : 'over 10⁹', duration(out.seconds.sequential)]);
   if (out.episodes_needed_normal_mixture !== null && sequentialMethod !== 'normal-mixture') {
-    rows.push([`until ±${epsilon} (--target-error --ci normal-mixture)`, count(plan.normalMixture.episodes), duration(seconds(plan.normalMixture.episodes, rate))]);
+    rows.push([`until ±${epsilon} (--target-error --ci normal-mixture)`, count(plan.normalMixture.episodes), duration(total(plan.normalMixture.episodes).total)]);
   }
   if (plan.hoeffding !== null) rows.push(['fixed n, Hoeffding (distribution-free)', count(plan.hoeffding), duration(out.seconds.hoeffding)]);
   process.stdout.write(

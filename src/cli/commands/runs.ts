@@ -123,8 +123,11 @@ function show(args: string[]): number {
   const { db, label } = storeFor(values.store);
   try {
     const run = getRun(db, id, label);
+    const progress = new ProgressLine();
+    const onAnalysis = (step: string, done: number, total: number) => progress.analysis(step, done, total);
     if (run.kind === 'comparison') {
-      const { result, labels } = analyzeStoredComparison(db, run);
+      const { result, labels } = analyzeStoredComparison(db, run, onAnalysis);
+      progress.clear();
       if (values.json) {
         process.stdout.write(`${JSON.stringify({ ...compareJson(result, labels, run.toolVersion, run.id), kind: 'comparison', status: run.status, created_at: run.createdAt, env_hash: run.env.hash }, null, 2)}\n`);
       } else {
@@ -132,7 +135,8 @@ function show(args: string[]): number {
       }
       return 0;
     }
-    const result = analyzeStoredRun(db, run, { method, level });
+    const result = analyzeStoredRun(db, run, { method, level, onAnalysis });
+    progress.clear();
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) {
       process.stdout.write(`${JSON.stringify(runShowJson(run, result), null, 2)}\n`);
