@@ -24,8 +24,9 @@ export class NotFoundError extends InputError {
 }
 
 /**
- * A plug-in (module environment or policy) threw. Carries what is needed to replay the
- * failure: the episode index and step, so `--seed S` reproduces it.
+ * A plug-in (module environment or policy) threw, hung, or returned something it must not.
+ * Carries what is needed to replay the failure: the episode index and step, so `--seed S`
+ * reproduces it.
  */
 export class PluginError extends Error {
   readonly exitCode = 1;
@@ -34,9 +35,11 @@ export class PluginError extends Error {
     readonly episode: number,
     readonly step: number,
     cause: unknown,
+    /** What the plug-in did: `threw`, `hung`, `returned`. */
+    what = 'threw',
   ) {
     const why = cause instanceof Error ? cause.message : String(cause);
-    super(`${plugin} threw at episode ${episode}, step ${step}: ${why}`, { cause });
+    super(`${plugin} ${what} at episode ${episode}, step ${step}: ${why}`, { cause });
     this.name = 'PluginError';
   }
 }

@@ -1,6 +1,7 @@
 import type { FiniteMdp, PolicyMatrix } from '../definitions/finite-mdp.js';
 import type { ActingPolicy } from '../definitions/built.js';
 import { checkedAction } from './checked-action.js';
+import { pluginClock } from './plugin-clock.js';
 import { Xoshiro128 } from './xoshiro128.js';
 import { STREAM, seedStream, streamWords } from './streams.js';
 import type { EpisodeBlock } from './episode-block.js';
@@ -171,11 +172,13 @@ export function rolloutFiniteActing(
   const startStates = startSupport(mdp);
   const lastStart = startStates.states.length - 1;
   const { returns, lengths, first, count } = block;
+  const clock = pluginClock();
   let steps = 0;
   for (let i = 0; i < count; i++) {
     const episode = first + i;
     seedStream(envRng, seed, STREAM.ENV, episode);
     seedStream(policyRng, seed, STREAM.POLICY, episode);
+    clock[0] = episode;
     let s = start;
     if (s < 0) {
       s = startStates.states[firstAbove(startStates.cumulative, startStates.guide, envRng.uniform(), lastStart)];
@@ -185,6 +188,7 @@ export function rolloutFiniteActing(
     let t = 0;
     if (terminal[s] === 0) {
       while (t < horizon) {
+        clock[1] = 2 * t;
         const a = checkedAction(acting, stateNames[s], policyRng, actionCount, episode, t);
         const sa = s * actionCount + a;
         let k = outcomeStart[sa];

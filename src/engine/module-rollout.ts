@@ -5,6 +5,7 @@ import { checkedAction } from './checked-action.js';
 import { Xoshiro128 } from './xoshiro128.js';
 import { STREAM, seedStream } from './streams.js';
 import type { EpisodeBlock } from './episode-block.js';
+import { pluginClock } from './plugin-clock.js';
 
 /**
  * The rollout loop for a code environment. One reusable `out` object is handed to every
@@ -24,11 +25,14 @@ export function rolloutModule(
   const actionCount = built.actionNames.length;
   const out: StepResult = { state: undefined, reward: 0, done: false };
   const { returns, lengths, first, count } = block;
+  const clock = pluginClock();
   let steps = 0;
   for (let i = 0; i < count; i++) {
     const episode = first + i;
     seedStream(envRng, seed, STREAM.ENV, episode);
     seedStream(policyRng, seed, STREAM.POLICY, episode);
+    clock[0] = episode;
+    clock[1] = -1;
     let state: unknown;
     try {
       state = startName !== null ? env.stateFromName!(startName) : env.reset(envRng);
@@ -39,7 +43,9 @@ export function rolloutModule(
     let weight = 1;
     let t = 0;
     while (t < horizon) {
+      clock[1] = 2 * t;
       const a = checkedAction(acting, state, policyRng, actionCount, episode, t);
+      clock[1] = 2 * t + 1;
       let result: StepResult;
       try {
         result = env.step(state, a, envRng, out);

@@ -9,6 +9,9 @@ import { rolloutTables } from './finite-rollout.js';
 import type { TableWorkerData } from './table-worker.js';
 import type { RolloutSpec } from './spec.js';
 import type { FromWorker } from './worker-messages.js';
+import { newClockBuffer } from './plugin-clock.js';
+import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-watch.js';
+import type { CodeWorkerData } from './worker.js';
 
 export interface RunOptions {
   /** First episode index (a resumed or sharded run starts later). */
@@ -30,6 +33,8 @@ export interface RunOptions {
    * and gets K worker threads.
    */
   readonly callerRuns?: boolean;
+  /** Seconds one plug-in call may take before the run fails (default 10). */
+  readonly stepTimeout?: number;
 }
 
 export interface RunOutcome {
@@ -50,14 +55,23 @@ export function defaultWorkers(): number {
  */
 export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promise<RunOutcome> {
   const workers = Math.max(1, Math.min(options.workers, Math.ceil(options.count / 64) || 1));
-  const callerRuns = options.callerRuns ?? true;
-  const prepared = callerRuns || workers === 1 || isFiniteSpec(spec) ? (options.prepared ?? (await prepareRollout(spec))) : null;
-  if (workers === 1 && prepared) return runInline(prepared, options);
+  const prepared = (options.callerRuns ?? true) || workers === 1 || isFiniteSpec(spec) ? (options.prepared ?? (await prepareRollout(spec))) : null;
+  // Plug-in code runs on worker threads only: a call that hangs must not stop this thread
+  // from answering signals and from noticing the hang (step-watch.ts).
+  const plugins = prepared === null || runsPluginCode(prepared);
+  const callerRuns = (options.callerRuns ?? true) && !plugins;
+  if (workers === 1 && prepared && !plugins) return runInline(prepared, options);
   return runThreaded(spec, prepared, options, workers, callerRuns);
+}
+
+function runsPluginCode(prepared: PreparedRollout): boolean {
+  return prepared.env.kind === 'module' || prepared.policy.kind === 'code';
 }
 
 const MIN_BLOCK = 16;
 const MAX_BLOCK = 65536;
+/** How long a stopped run waits for the blocks still running before it leaves them. */
+const ABORT_GRACE_MS = 2000;
 /** Block length for this thread when it shares the work with worker threads. */
 const CALLER_BLOCK_SECONDS = 0.02;
 
@@ -117,7 +131,7 @@ function isFiniteSpec(spec: RolloutSpec): boolean {
  * layer and start in milliseconds. Anything else (code environments or policies) is
  * prepared by each worker from the spec (worker.ts).
  */
-function workerEntry(spec: RolloutSpec, prepared: PreparedRollout | null): { url: string; data: unknown } {
+function workerEntry(spec: RolloutSpec, prepared: PreparedRollout | null): { url: string; data: unknown; watched: boolean } {
   if (prepared && prepared.env.kind === 'finite' && prepared.policy.kind === 'matrix') {
     const data: TableWorkerData = {
       mdp: rolloutTables(prepared.env.mdp),
@@ -125,9 +139,9 @@ function workerEntry(spec: RolloutSpec, prepared: PreparedRollout | null): { url
       seed: spec.seed,
       start: prepared.startIndex,
     };
-    return { url: workerUrl('table-worker.js'), data };
+    return { url: workerUrl('table-worker.js'), data, watched: false };
   }
-  return { url: workerUrl('worker.js'), data: spec };
+  return { url: workerUrl('worker.js'), data: spec, watched: true };
 }
 
 function rebuildError(message: Extract<FromWorker, { type: 'error' }>): Error {
@@ -165,6 +179,9 @@ async function runThreaded(
   let inFlight = 0;
   let failure: Error | null = null;
   let wake: (() => void) | null = null;
+  const watches: StepWatch[] = [];
+  /** Set once a stopped run has waited long enough for the blocks still running. */
+  let abandoned = false;
 
   const stopped = () => failure !== null || options.signal?.aborted === true;
   /** The next range of episodes for a thread whose blocks should be `size` long, or null when none is left. */
@@ -200,10 +217,12 @@ async function runThreaded(
   // few more turns of the event loop.
   const callerSizer = new BlockSizer(Math.min(blockSeconds, CALLER_BLOCK_SECONDS));
   for (let w = callerRuns ? 1 : 0; w < workerCount; w++) {
-    const worker = new Worker(entry.url, { workerData: entry.data });
+    const clock = entry.watched ? newClockBuffer() : null;
+    const worker = new Worker(entry.url, { workerData: clock ? ({ spec: entry.data as RolloutSpec, clock } satisfies CodeWorkerData) : entry.data });
     const sizer = new BlockSizer(blockSeconds);
     let lastArrival = 0;
     let inHand = 0;
+    if (clock) watches.push(new StepWatch(clock, () => inHand > 0));
     /** Gives the worker blocks up to two in hand; one near the end, where queued work could not move to an idle thread. */
     const issue = () => {
       const wanted = end - next > 4 * workerCount * sizer.size ? 2 : 1;
@@ -237,8 +256,28 @@ async function runThreaded(
     threads.push(worker);
   }
 
-  const onAbort = () => wake?.();
+  // A stopped run waits a moment for the blocks still running (a block is about 0.1 s), then
+  // leaves them: a plug-in stuck in a call must not hold up Ctrl-C.
+  let graceTimer: NodeJS.Timeout | undefined;
+  const onAbort = () => {
+    wake?.();
+    graceTimer ??= setTimeout(() => {
+      abandoned = true;
+      wake?.();
+    }, ABORT_GRACE_MS);
+  };
+  if (options.signal?.aborted) onAbort();
   options.signal?.addEventListener('abort', onAbort);
+  const stepTimeout = options.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS;
+  const watchTimer = watches.length
+    ? setInterval(() => {
+        const now = performance.now();
+        for (const watch of watches) {
+          const hang = watch.check(now, stepTimeout);
+          if (hang) fail(hang);
+        }
+      }, watchInterval(stepTimeout))
+    : undefined;
   try {
     const sizer = callerSizer;
     for (;;) {
@@ -251,7 +290,7 @@ async function runThreaded(
         sizer.observe(range.count, (performance.now() - t0) / 1000);
         accept(block, blockSteps);
         await yieldToEventLoop();
-      } else if (inFlight > 0 || (!stopped() && next < end)) {
+      } else if (!abandoned && (inFlight > 0 || (!stopped() && next < end))) {
         // Blocks are still running on other threads, or (callerRuns false) threads are starting.
         await new Promise<void>((resolve) => (wake = resolve));
         wake = null;
@@ -261,6 +300,8 @@ async function runThreaded(
     }
   } finally {
     options.signal?.removeEventListener('abort', onAbort);
+    clearTimeout(graceTimer);
+    clearInterval(watchTimer);
     for (const t of threads) void t.terminate();
   }
   return { episodes: delivered - options.first, steps, seconds: (performance.now() - started) / 1000 };

@@ -3,14 +3,23 @@
  * request and sends the results back (buffers transferred, not copied).
  */
 import { parentPort, workerData } from 'node:worker_threads';
+import { shareClock } from './plugin-clock.js';
 import { prepareRollout } from './prepare.js';
 import type { RolloutSpec } from './spec.js';
 import { describeError, serveBlocks } from './worker-loop.js';
 
+/** What the pool sends this worker: the spec, and the memory its plug-in clock lives in. */
+export interface CodeWorkerData {
+  readonly spec: RolloutSpec;
+  readonly clock: SharedArrayBuffer;
+}
+
 const port = parentPort;
 if (!port) throw new Error('worker.js must run as a worker thread');
+const data = workerData as CodeWorkerData;
+shareClock(data.clock);
 
-prepareRollout(workerData as RolloutSpec).then(
+prepareRollout(data.spec).then(
   (prepared) => serveBlocks(port, (block) => prepared.runBlock(block)),
   (e) => port.postMessage(describeError(e)),
 );

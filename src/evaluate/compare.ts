@@ -31,6 +31,8 @@ export interface CompareRequest {
   readonly targetError: number | null;
   readonly interquartileMean: boolean;
   readonly signal?: AbortSignal;
+  /** Seconds one call into a plug-in may take before the run fails (default 10). */
+  readonly stepTimeout?: number;
   readonly onProgress?: (progress: { done: number; total: number; seconds: number; halfWidth: number; targetError: number | null }) => void;
   /** Called once facts are known, before any episode: lets a caller create stored runs. */
   readonly onStart?: (facts: readonly EnvironmentFacts[], sequence: SequenceChoice | null) => void;
@@ -114,6 +116,7 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
         first: done,
         count,
         workers: request.workers,
+        stepTimeout: request.stepTimeout,
         signal: request.signal,
         onBlock: (block) => {
           collected.push(block);

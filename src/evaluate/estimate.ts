@@ -43,6 +43,8 @@ export interface EstimateRequest {
   readonly signal?: AbortSignal;
   /** Told how far a slow figure has got, once the episodes are done. */
   readonly onAnalysis?: AnalysisProgress;
+  /** Seconds one call into a plug-in may take before the run fails (default 10). */
+  readonly stepTimeout?: number;
 }
 
 export interface EstimateProgress {
@@ -157,6 +159,7 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
       first: first + buffer.count,
       count: request.episodes - buffer.count,
       workers: request.workers,
+      stepTimeout: request.stepTimeout,
       signal,
       onBlock: (block) => {
         if (reached) return;

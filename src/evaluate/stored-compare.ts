@@ -2,7 +2,8 @@ import { createHash } from 'node:crypto';
 import { definitionHash } from '../store/definition-hash.js';
 import { machineFacts } from '../store/machine.js';
 import type { Db } from '../store/open.js';
-import { appendChunk, createRun, finishRun, listRuns, loadEpisodes, type RunRecord } from '../store/runs.js';
+import { appendChunk, createRun, finishRun, keepHeartbeat, listRuns, loadEpisodes, type RunRecord } from '../store/runs.js';
+import { HEARTBEAT_SECONDS } from '../store/owner.js';
 import { InputError } from '../errors.js';
 import type { DifferenceMethod } from '../stats/index.js';
 import { runComparison, summarizeComparison, type CompareRequest, type ComparisonResult } from './compare.js';
@@ -39,6 +40,7 @@ export async function runStoredComparison(
   let parentId = '';
   const children: string[] = [];
   const labels = request.policies.map((p) => p.source.label);
+  const stopBeating = keepHeartbeat(db, () => (parentId ? [parentId, ...children] : []), HEARTBEAT_SECONDS);
   try {
     const result = await runComparison({
       ...request,
@@ -119,6 +121,8 @@ export async function runStoredComparison(
     for (const id of children) finishRun(db, id, 'failed', null, message);
     if (parentId) finishRun(db, parentId, 'failed', null, message);
     throw e;
+  } finally {
+    stopBeating();
   }
 }
 

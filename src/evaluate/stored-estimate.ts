@@ -1,10 +1,10 @@
-import { hostname } from 'node:os';
 import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';
 import { definitionHash } from '../store/definition-hash.js';
 import { machineFacts } from '../store/machine.js';
 import type { Db } from '../store/open.js';
-import { appendChunk, claimRun, createRun, finishRun, loadEpisodes, type RunRecord, type ShardInfo } from '../store/runs.js';
+import { appendChunk, claimRun, createRun, finishRun, keepHeartbeat, loadEpisodes, refuseIfLive, type RunRecord, type ShardInfo } from '../store/runs.js';
+import { HEARTBEAT_SECONDS } from '../store/owner.js';
 import type { CiMethod } from '../stats/index.js';
 import type { IntervalChoice } from './estimate.js';
 import type { EnvironmentFacts } from './environment-facts.js';
@@ -23,6 +23,8 @@ export interface StoredOptions {
   readonly bounds: [number, number] | null;
   readonly targetError: number | null;
   readonly workers: number;
+  /** Seconds one plug-in call may take (absent in runs stored before it existed: the default). */
+  readonly stepTimeout?: number;
 }
 
 export interface StoredEstimateRequest {
@@ -79,13 +81,11 @@ export async function runStoredEstimate(request: StoredEstimateRequest): Promise
 export async function resumeStoredEstimate(
   db: Db,
   run: RunRecord,
-  extra: { signal?: AbortSignal; onProgress?: (p: EstimateProgress) => void; workers?: number },
+  extra: { signal?: AbortSignal; onProgress?: (p: EstimateProgress) => void; workers?: number; stepTimeout?: number },
 ): Promise<{ runId: string; result: EstimateResult }> {
   if (run.kind !== 'estimate') throw new InputError(`run ${run.id}`, `is a ${run.kind} run; only estimate runs can be resumed`);
   if (run.status === 'done') throw new InputError(`run ${run.id}`, "is already done; see it with 'reckon runs show " + run.id + "'");
-  if (run.status === 'running' && ownerAlive(run)) {
-    throw new InputError(`run ${run.id}`, `is still running (process ${run.ownerPid}); stop it first, or wait for it`);
-  }
+  refuseIfLive(run, 'resume it');
   const spec: RolloutSpec = {
     env: { json: run.env.json, source: { label: run.env.label, baseDir: run.env.baseDir } },
     policy: { json: run.policy.json, source: { label: run.policy.label, baseDir: run.policy.baseDir } },
@@ -98,7 +98,7 @@ export async function resumeStoredEstimate(
     }
   }
   const stored = run.options as unknown as StoredOptions;
-  const options: StoredOptions = { ...stored, workers: extra.workers ?? stored.workers };
+  const options: StoredOptions = { ...stored, workers: extra.workers ?? stored.workers, stepTimeout: extra.stepTimeout ?? stored.stepTimeout };
   claimRun(db, run.id);
   const prior = loadEpisodes(db, run);
   return execute(
@@ -115,6 +115,7 @@ async function execute(
 ): Promise<{ runId: string; result: EstimateResult }> {
   const { db, spec, options } = request;
   let runId = '';
+  const stopBeating = keepHeartbeat(db, () => (runId ? [runId] : []), HEARTBEAT_SECONDS);
   try {
     const result = await runEstimate({
       spec,
@@ -125,6 +126,7 @@ async function execute(
       bounds: options.bounds,
       targetError: options.targetError,
       sigma: options.sigma,
+      stepTimeout: options.stepTimeout,
       first: request.first,
       prior: resume?.prior,
       priorSeconds: resume?.seconds,
@@ -141,22 +143,14 @@ async function execute(
   } catch (e) {
     if (runId) finishRun(db, runId, 'failed', null, e instanceof Error ? e.message : String(e));
     throw e;
+  } finally {
+    stopBeating();
   }
 }
 
 /** What `runs list` shows without re-reading the episodes. */
 function summaryOf(result: EstimateResult): Record<string, unknown> {
   return { episodes: result.episodes, mean: result.mean, std: result.std, ci: result.ci };
-}
-
-function ownerAlive(run: RunRecord): boolean {
-  if (run.ownerPid === null || run.ownerHost !== hostname()) return false;
-  try {
-    process.kill(run.ownerPid, 0);
-    return true;
-  } catch {
-    return false;
-  }
 }
 
 /**

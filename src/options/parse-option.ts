@@ -42,6 +42,7 @@ export const optionSchemas = {
     .transform((p) => [p[0], p[1]] as [number, number]),
   targetError: positiveNumberText('the half-width to reach'),
   start: z.string().min(1, { message: 'must name a state' }),
+  stepTimeout: positiveNumberText('seconds one plug-in call may take'),
   limit: integerText(1, 1e6, 'how many runs to list'),
 } as const;
 

@@ -1,6 +1,7 @@
 import { randomInt } from 'node:crypto';
 import { defaultWorkers } from '../engine/pool.js';
 import { parseOption } from './parse-option.js';
+import { DEFAULT_STEP_TIMEOUT_SECONDS } from '../engine/step-watch.js';
 
 /** The option texts every command that runs episodes shares. */
 export interface RunOptionTexts {
@@ -10,6 +11,7 @@ export interface RunOptionTexts {
   bounds?: string;
   sigma?: string;
   start?: string;
+  'step-timeout'?: string;
 }
 
 export interface RunOptions {
@@ -21,6 +23,8 @@ export interface RunOptions {
   readonly bounds: [number, number] | null;
   readonly sigma: number | null;
   readonly start: string | null;
+  /** Seconds one call into a plug-in may take (`--step-timeout`). */
+  readonly stepTimeout: number;
 }
 
 /** Parses the shared options with their defaults: one place for estimate, compare and plan. */
@@ -33,5 +37,6 @@ export function parseRunOptions(values: RunOptionTexts): RunOptions {
     bounds: values.bounds === undefined ? null : parseOption('bounds', 'bounds', values.bounds),
     sigma: values.sigma === undefined ? null : parseOption('sigma', 'sigma', values.sigma),
     start: values.start === undefined ? null : parseOption('start', 'start', values.start),
+    stepTimeout: values['step-timeout'] === undefined ? DEFAULT_STEP_TIMEOUT_SECONDS : parseOption('step-timeout', 'stepTimeout', values['step-timeout']),
   };
 }

@@ -38,6 +38,8 @@ function provenance(run: RunRecord) {
     episodes_requested: run.episodesRequested,
     tool_version: run.toolVersion,
     machine: run.machine,
+    /** Why a failed run failed (null otherwise). */
+    error: run.error,
   };
 }
 
@@ -58,6 +60,5 @@ export function runPendingJson(run: RunRecord) {
     seed: run.seed,
     start: run.start,
     ...provenance(run),
-    error: run.error,
   };
 }

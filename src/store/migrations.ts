@@ -56,6 +56,11 @@ export const MIGRATIONS: readonly string[] = [
   CREATE INDEX runs_by_env_hash ON runs (env_hash);
   CREATE INDEX runs_by_parent ON runs (parent_id);
   `,
+  // 3: when the owning process last said it is alive, so a run whose process died without a
+  // word on another machine (where its process id means nothing) shows as interrupted.
+  `
+  ALTER TABLE runs ADD COLUMN heartbeat_at TEXT;
+  `,
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS.length;

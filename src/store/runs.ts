@@ -1,7 +1,8 @@
 import { randomBytes } from 'node:crypto';
 import { hostname } from 'node:os';
-import { NotFoundError } from '../errors.js';
+import { InputError, NotFoundError } from '../errors.js';
 import type { Db } from './open.js';
+import { ownerAlive } from './owner.js';
 
 export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
 export type RunKind = 'estimate' | 'comparison';
@@ -40,6 +41,10 @@ export interface NewRun {
 export interface RunRecord {
   readonly id: string;
   readonly kind: RunKind;
+  /**
+   * Where the run stands: a run recorded as running whose process has died (killed, a power
+   * cut) reads as `interrupted`, since nothing will ever finish it but `runs resume`.
+   */
   readonly status: RunStatus;
   readonly createdAt: string;
   readonly finishedAt: string | null;
@@ -61,6 +66,7 @@ export interface RunRecord {
   readonly shard: ShardInfo | null;
   readonly ownerPid: number | null;
   readonly ownerHost: string | null;
+  readonly heartbeatAt: string | null;
   readonly parentId: string | null;
 }
 
@@ -96,6 +102,7 @@ interface RunRow {
   total_episodes: number | null;
   owner_pid: number | null;
   owner_host: string | null;
+  heartbeat_at: string | null;
   parent_id: string | null;
 }
 
@@ -114,11 +121,11 @@ export function createRun(db: Db, run: NewRun): string {
     INSERT INTO runs (id, kind, status, created_at, env_label, env_json, env_hash, env_base_dir,
       policy_label, policy_json, policy_hash, policy_base_dir, seed, start_state, first_episode,
       episodes_requested, options_json, facts_json, tool_version, machine_json,
-      shard_index, shard_count, total_episodes, owner_pid, owner_host, parent_id)
+      shard_index, shard_count, total_episodes, owner_pid, owner_host, heartbeat_at, parent_id)
     VALUES (@id, @kind, 'running', @created_at, @env_label, @env_json, @env_hash, @env_base_dir,
       @policy_label, @policy_json, @policy_hash, @policy_base_dir, @seed, @start_state, @first_episode,
       @episodes_requested, @options_json, @facts_json, @tool_version, @machine_json,
-      @shard_index, @shard_count, @total_episodes, @owner_pid, @owner_host, @parent_id)`);
+      @shard_index, @shard_count, @total_episodes, @owner_pid, @owner_host, @created_at, @parent_id)`);
   for (let attempt = 0; ; attempt++) {
     const id = newRunId();
     try {
@@ -174,10 +181,10 @@ export function appendChunk(
   seconds: number,
 ): void {
   const insert = db.prepare('INSERT INTO episode_chunks (run_id, first, count, returns, lengths) VALUES (?, ?, ?, ?, ?)');
-  const update = db.prepare('UPDATE runs SET episodes_done = episodes_done + ?, steps = steps + ?, seconds = ? WHERE id = ?');
+  const update = db.prepare('UPDATE runs SET episodes_done = episodes_done + ?, steps = steps + ?, seconds = ?, heartbeat_at = ? WHERE id = ?');
   db.transaction(() => {
     insert.run(runId, chunk.first, chunk.returns.length, bytesOf(chunk.returns), bytesOf(chunk.lengths));
-    update.run(chunk.returns.length, steps, seconds, runId);
+    update.run(chunk.returns.length, steps, seconds, new Date().toISOString(), runId);
   })();
 }
 
@@ -193,18 +200,41 @@ export function finishRun(db: Db, runId: string, status: RunStatus, summary: unk
 
 /** Marks a run as running again under this process (resume). */
 export function claimRun(db: Db, runId: string): void {
-  db.prepare("UPDATE runs SET status = 'running', owner_pid = ?, owner_host = ?, finished_at = NULL, error = NULL WHERE id = ?").run(
+  db.prepare("UPDATE runs SET status = 'running', owner_pid = ?, owner_host = ?, heartbeat_at = ?, finished_at = NULL, error = NULL WHERE id = ?").run(
     process.pid,
     hostname(),
+    new Date().toISOString(),
     runId,
   );
+}
+
+/** Records that this process still runs these runs (between chunk commits, which record it too). */
+export function recordHeartbeat(db: Db, runIds: readonly string[]): void {
+  const update = db.prepare("UPDATE runs SET heartbeat_at = ? WHERE id = ? AND status = 'running'");
+  const now = new Date().toISOString();
+  db.transaction(() => {
+    for (const id of runIds) update.run(now, id);
+  })();
+}
+
+/**
+ * Keeps recording heartbeats for the given runs every `seconds` until the returned function
+ * is called; the timer never keeps the process alive on its own.
+ */
+export function keepHeartbeat(db: Db, runIds: () => readonly string[], seconds: number): () => void {
+  const timer = setInterval(() => {
+    const ids = runIds();
+    if (ids.length > 0 && db.open) recordHeartbeat(db, ids);
+  }, seconds * 1000);
+  timer.unref();
+  return () => clearInterval(timer);
 }
 
 function toRecord(row: RunRow): RunRecord {
   return {
     id: row.id,
     kind: row.kind,
-    status: row.status,
+    status: row.status === 'running' && !ownerAlive({ pid: row.owner_pid, host: row.owner_host, heartbeatAt: row.heartbeat_at }) ? 'interrupted' : row.status,
     createdAt: row.created_at,
     finishedAt: row.finished_at,
     env: { label: row.env_label, json: JSON.parse(row.env_json), baseDir: row.env_base_dir, hash: row.env_hash },
@@ -225,6 +255,7 @@ function toRecord(row: RunRow): RunRecord {
     shard: row.shard_index === null || row.shard_count === null ? null : { index: row.shard_index, count: row.shard_count, total: row.total_episodes ?? 0 },
     ownerPid: row.owner_pid,
     ownerHost: row.owner_host,
+    heartbeatAt: row.heartbeat_at,
     parentId: row.parent_id,
   };
 }
@@ -266,6 +297,16 @@ export function listRuns(db: Db, filter: RunFilter = {}): RunRecord[] {
   const sql = `SELECT * FROM runs ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY created_at DESC, rowid DESC LIMIT ?`;
   params.push(filter.limit ?? 20);
   return (db.prepare(sql).all(...params) as RunRow[]).map(toRecord);
+}
+
+/**
+ * Refuses to touch a run whose process is still running it (resume would run its episodes
+ * twice, delete would pull its rows from under it); names the process so it can be stopped.
+ */
+export function refuseIfLive(run: RunRecord, what: string): void {
+  if (run.status !== 'running') return;
+  const where = run.ownerHost && run.ownerHost !== hostname() ? ` on ${run.ownerHost}` : '';
+  throw new InputError(`run ${run.id}`, `is still running (process ${run.ownerPid}${where}); stop it first (Ctrl-C, or kill ${run.ownerPid}), or wait for it, then ${what}`);
 }
 
 export function deleteRun(db: Db, id: string): boolean {

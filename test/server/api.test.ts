@@ -1,4 +1,7 @@
 import { writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { hostname } from 'node:os';
+import Database from 'better-sqlite3';
 import path from 'node:path';
 import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -250,6 +253,31 @@ describe('comparisons over HTTP', () => {
       expect(`reckon: ${ci.json().error}\n`).toBe(cli.stderr);
       const badPolicy = await app.inject({ method: 'POST', url: '/api/comparisons', payload: { env: grid, policies: [{ definition: optimal }, { name: 'mine', definition: { kind: 'table', states: { '9,9': 'up' } } }] } });
       expect(badPolicy.json().field).toBe('policies[1]');
+    } finally {
+      await app.close();
+    }
+  });
+});
+
+describe('runs whose process is gone, and failed runs', () => {
+  it('a run left running by a process that died reads as interrupted; a failed run shows its reason', async () => {
+    const storePath = tempStore();
+    const killed = await storeTextbookRun(storePath, 31, 500);
+    const failed = await storeTextbookRun(storePath, 32, 500);
+    // What a SIGKILL leaves behind: status running, owned by a process that no longer exists.
+    const gone = spawnSync(process.execPath, ['-e', 'process.stdout.write(String(process.pid))'], { encoding: 'utf8' });
+    const db = new Database(storePath);
+    db.prepare("UPDATE runs SET status = 'running', owner_pid = ?, owner_host = ? WHERE id = ?").run(Number(gone.stdout), hostname(), killed);
+    db.prepare("UPDATE runs SET status = 'failed', error = ? WHERE id = ?").run('the environment (step) hung at episode 7, step 2: no answer within 10 s', failed);
+    db.close();
+    const app = await buildApp({ storePath, toolVersion: 'test', workers: 1 });
+    try {
+      const list = (await app.inject({ url: '/api/runs' })).json() as { id: string; status: string }[];
+      expect(list.find((r) => r.id === killed)!.status).toBe('interrupted');
+      expect((await app.inject({ url: `/api/runs/${killed}` })).json().status).toBe('interrupted');
+      const shown = (await app.inject({ url: `/api/runs/${failed}` })).json();
+      expect(shown.status).toBe('failed');
+      expect(shown.error).toContain('hung at episode 7, step 2');
     } finally {
       await app.close();
     }

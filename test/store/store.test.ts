@@ -124,6 +124,10 @@ describe('crash safety', () => {
     expect(row.status).toBe('running'); // nobody could mark it
     expect(row.episodes_done).toBeLessThan(Number(episodes));
     expect(chunked.n).toBe(row.episodes_done);
+    // ...but its process is gone, so every reader sees it as interrupted.
+    expect(json(reckon(['runs', 'show', row.id, '--store', store, '--json'])).status).toBe('interrupted');
+    expect(json(reckon(['runs', 'list', '--store', store, '--json']))[0].status).toBe('interrupted');
+    expect(reckon(['runs', 'list', '--store', store]).stdout).toMatch(new RegExp(`${row.id}.*interrupted`));
 
     const resumed = json(reckon(['runs', 'resume', row.id, '--store', store, '--json']));
     const reference = json(reckon(['estimate', ...slow, '--episodes', episodes, '--seed', '11', '--no-store', '--json']));
@@ -135,7 +139,10 @@ describe('crash safety', () => {
     expect(shown.status).toBe('done');
   });
 
-  it('Ctrl-C marks the run interrupted and says how to resume', async () => {
+  it.each([
+    ['SIGINT', 130],
+    ['SIGTERM', 143],
+  ] as const)('%s ends the run cleanly: episodes committed, status interrupted, how to resume, exit %i', async (signal, exitCode) => {
     const store = storeIn(tempFiles({}));
     const child = spawn(process.execPath, [CLI, 'estimate', ...slow, '--episodes', episodes, '--seed', '12', '--store', store], {
       env: { ...process.env, RECKON_NO_PROGRESS: '1' },
@@ -143,14 +150,38 @@ describe('crash safety', () => {
     let stderr = '';
     child.stderr.on('data', (d) => (stderr += d));
     await waitForEpisodes(store, 200, 30000);
-    child.kill('SIGINT');
+    child.kill(signal);
     const code = await new Promise((r) => child.on('exit', r));
-    expect(code).toBe(130);
+    // 128 + the signal's number: the shell's convention for a process ended by a signal.
+    expect(code).toBe(exitCode);
     expect(stderr).toMatch(/reckon runs resume [a-z2-9]{8}/);
     const db = new Database(store, { readonly: true });
-    const row = db.prepare('SELECT status FROM runs').get() as { status: string };
+    const row = db.prepare('SELECT id, status, episodes_done FROM runs').get() as { id: string; status: string; episodes_done: number };
+    const chunked = db.prepare('SELECT SUM(count) AS n FROM episode_chunks').get() as { n: number };
     db.close();
     expect(row.status).toBe('interrupted');
+    expect(row.episodes_done).toBeGreaterThanOrEqual(200);
+    expect(chunked.n).toBe(row.episodes_done);
+    expect(stderr).toContain(`after ${row.episodes_done} of ${episodes} episodes`);
+  });
+
+  it('a live run cannot be deleted: refused with its process id, and the run goes on untouched', async () => {
+    const store = storeIn(tempFiles({}));
+    const child = spawn(process.execPath, [CLI, 'estimate', ...slow, '--episodes', episodes, '--seed', '13', '--store', store], {
+      env: { ...process.env, RECKON_NO_PROGRESS: '1' },
+    });
+    let stderr = '';
+    child.stderr.on('data', (d) => (stderr += d));
+    await waitForEpisodes(store, 100, 30000);
+    const id = json(reckon(['runs', 'list', '--store', store, '--json']))[0].id;
+    const refused = reckon(['runs', 'delete', id, '--store', store]);
+    expect(refused.code).toBe(2);
+    expect(refused.stderr).toContain(`run ${id}: is still running (process ${child.pid})`);
+    child.kill('SIGINT');
+    expect(await new Promise((r) => child.on('exit', r))).toBe(130);
+    expect(stderr).not.toContain('internal error');
+    expect(json(reckon(['runs', 'show', id, '--store', store, '--json'])).status).toBe('interrupted');
+    expect(reckon(['runs', 'delete', id, '--store', store]).code).toBe(0);
   });
 });
 

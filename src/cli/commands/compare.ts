@@ -11,6 +11,7 @@ import { parseCommandArgs, required } from '../args.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
 import { ProgressLine } from '../progress.js';
+import { StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 
 export const HELP = `reckon compare: is one policy really better than another, and by how much?
@@ -43,6 +44,9 @@ Options:
   --start STATE         start every episode in STATE
   --workers K           worker threads (default: all cores)
   --store PATH | --no-store
+  --step-timeout SECONDS
+                        how long one call into a code environment or policy may take
+                        before the run fails, naming the episode and step (default 10)
   --json                one JSON object: policies[{name, mean, std, ci, episodes}],
                         differences[{a, b, mean, low, high, p_value, correlation,
                         variance_reduction, ...}] with a, b indices into policies
@@ -70,6 +74,7 @@ const OPTIONS = {
   store: { type: 'string' },
   'no-store': { type: 'boolean' },
   json: { type: 'boolean' },
+  'step-timeout': { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -84,7 +89,7 @@ export async function run(args: string[]): Promise<number> {
     throw new InputError('--policy', `give at least two policies to compare (got ${policyPaths.length}), e.g. --policy envs/picker-direct.json --policy envs/picker-careful.json`);
   }
   const { episodes, targetError } = runSize(values);
-  const { seed, workers, level, bounds, sigma, start } = parseRunOptions(values);
+  const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
   const { method, sequence } = differenceMethod(values.ci, targetError);
 
   const request: CompareRequest = {
@@ -101,19 +106,18 @@ export async function run(args: string[]): Promise<number> {
     sigma,
     targetError,
     interquartileMean: Boolean(values.iqm),
+    stepTimeout,
   };
   const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());
   const db = storePath === null ? null : openStore(storePath);
   const progress = new ProgressLine();
-  const controller = new AbortController();
-  const onSigint = () => controller.abort();
-  process.once('SIGINT', onSigint);
+  const stop = new StopSignals();
   let result: ComparisonResult;
   let runId: string | null = null;
   try {
     const withProgress: CompareRequest = {
       ...request,
-      signal: controller.signal,
+      signal: stop.signal,
       onProgress: (p) => progress.update({ ...p, mean: Number.NaN }),
       onAnalysis: (step, done, total) => progress.analysis(step, done, total),
     };
@@ -126,7 +130,7 @@ export async function run(args: string[]): Promise<number> {
     }
   } finally {
     progress.clear();
-    process.off('SIGINT', onSigint);
+    stop.dispose();
     db?.close();
   }
   const labels = { env: envPath, policies: policyPaths };
@@ -140,5 +144,10 @@ export async function run(args: string[]): Promise<number> {
   if (result.target && !result.target.reached) {
     process.stderr.write(`reckon: the target ±${targetError} was not reached on every difference within ${result.episodes} episodes; raise --max-episodes or accept a wider target\n`);
   }
-  return result.interrupted ? 130 : 0;
+  if (result.interrupted) {
+    const kept = runId ? ` Its ${result.episodes} paired episodes are kept as run ${runId}; 'reckon runs show ${runId}' reports them.` : '';
+    process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} after ${result.episodes} episodes.${kept}\n`);
+    return stop.exitCode();
+  }
+  return 0;
 }

@@ -13,6 +13,7 @@ import { parseOption } from '../../options/parse-option.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
 import { ProgressLine } from '../progress.js';
+import { StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 
 export const HELP = `reckon estimate: run seeded episodes and estimate the policy's expected discounted return
@@ -40,6 +41,9 @@ Options:
   --max-episodes N      cap for --target-error runs
   --sigma S             the returns' sub-Gaussian scale, for --ci normal-mixture
   --json                print one JSON object on stdout instead of the report
+  --step-timeout SECONDS
+                        how long one call into a code environment or policy may take
+                        before the run fails, naming the episode and step (default 10)
   --shard K/M           run only the K-th of M disjoint parts of this seeded run (one per
                         machine; 'reckon runs merge' joins them); auto/M reads K from
                         JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID
@@ -71,6 +75,7 @@ const OPTIONS = {
   'no-store': { type: 'boolean' },
   store: { type: 'string' },
   shard: { type: 'string' },
+  'step-timeout': { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -82,7 +87,7 @@ export async function run(args: string[]): Promise<number> {
   const envPath = required('estimate', 'env', values.env, '--env envs/warehouse.json');
   const policyPath = required('estimate', 'policy', values.policy, '--policy envs/picker-direct.json');
   const { episodes, targetError } = runSize(values);
-  const { seed, workers, level, bounds, sigma, start } = parseRunOptions(values);
+  const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
   const method = values.ci === undefined ? null : parseOption('ci', 'interval', values.ci);
 
   const shard = values.shard === undefined ? null : parseShard(values.shard);
@@ -99,13 +104,11 @@ export async function run(args: string[]): Promise<number> {
   const db = storePath === null ? null : openStore(storePath);
 
   const progress = new ProgressLine();
-  const controller = new AbortController();
-  const onSigint = () => controller.abort();
-  process.once('SIGINT', onSigint);
+  const stop = new StopSignals();
   let result: EstimateResult;
   let runId: string | null = null;
   try {
-    const options = { episodes: range.count, method, level, bounds, targetError, sigma, workers };
+    const options = { episodes: range.count, method, level, bounds, targetError, sigma, workers, stepTimeout };
     if (db) {
       const stored = await runStoredEstimate({
         db,
@@ -114,7 +117,7 @@ export async function run(args: string[]): Promise<number> {
         toolVersion: version(),
         shard: shard ? shardInfo(shard, episodes) : null,
         first: range.first,
-        signal: controller.signal,
+        signal: stop.signal,
         onProgress: (p) => progress.update(p),
         onAnalysis: (step, done, total) => progress.analysis(step, done, total),
       });
@@ -125,14 +128,14 @@ export async function run(args: string[]): Promise<number> {
         spec,
         ...options,
         first: range.first,
-        signal: controller.signal,
+        signal: stop.signal,
         onProgress: (p) => progress.update(p),
         onAnalysis: (step, done, total) => progress.analysis(step, done, total),
       });
     }
   } finally {
     progress.clear();
-    process.off('SIGINT', onSigint);
+    stop.dispose();
     db?.close();
   }
   const labels = { env: envPath, policy: policyPath };
@@ -150,8 +153,8 @@ export async function run(args: string[]): Promise<number> {
   }
   if (result.interrupted) {
     const how = runId ? ` Continue it with: reckon runs resume ${runId}${values.store ? ` --store ${storePath}` : ''}` : '';
-    process.stderr.write(`reckon: interrupted after ${result.episodes} of ${range.count} episodes.${how}\n`);
-    return 130;
+    process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} after ${result.episodes} of ${range.count} episodes, all kept.${how}\n`);
+    return stop.exitCode();
   }
   return 0;
 }

@@ -4,17 +4,18 @@ import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-es
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
-import { runListRow, runShowJson } from '../../report/run-json.js';
+import { runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
 import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
 import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
 import { defaultStorePath } from '../../store/location.js';
 import { mergeShards } from '../../store/merge.js';
 import { openStore, type Db } from '../../store/open.js';
-import { deleteRun, getRun, listRuns, loadEpisodes } from '../../store/runs.js';
+import { deleteRun, getRun, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { ProgressLine } from '../progress.js';
+import { StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 
 export const HELP = `reckon runs: review, re-analyse, export, resume and merge stored runs
@@ -24,7 +25,7 @@ Usage:
   reckon runs show ID [--ci METHOD] [--confidence L] [--json]
   reckon runs export ID --format csv|json [--out FILE]
   reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]
-  reckon runs resume ID [--workers K] [--json]
+  reckon runs resume ID [--workers K] [--step-timeout SECONDS] [--json]
   reckon runs delete ID
   reckon runs merge DB... [--into DB]
 
@@ -135,22 +136,43 @@ function show(args: string[]): number {
       }
       return 0;
     }
+    const header = `Run ${run.id} (${run.status}${run.shard ? `, shard ${run.shard.index}/${run.shard.count}` : ''}), started ${run.createdAt}, reckon ${run.toolVersion}\n`;
+    if (run.episodesDone < 2) {
+      // Too few episodes for figures (it failed or stopped at once): say where it stands.
+      if (values.json) process.stdout.write(`${JSON.stringify(runPendingJson(run), null, 2)}\n`);
+      else process.stdout.write(`${header}  ${run.episodesDone} episode(s) stored: too few for an interval.\n${statusNote(run, values.store ?? '')}`);
+      return 0;
+    }
     const result = analyzeStoredRun(db, run, { method, level, onAnalysis });
     progress.clear();
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) {
       process.stdout.write(`${JSON.stringify(runShowJson(run, result), null, 2)}\n`);
     } else {
-      const shard = run.shard ? `, shard ${run.shard.index}/${run.shard.count}` : '';
-      process.stdout.write(`Run ${run.id} (${run.status}${shard}), started ${run.createdAt}, reckon ${run.toolVersion}\n`);
+      process.stdout.write(header);
       process.stdout.write(`  environment hash ${run.env.hash.slice(0, 12)}, policy hash ${run.policy.hash.slice(0, 12)}\n\n`);
       process.stdout.write(estimateText(result, labels));
-      if (run.status !== 'done') process.stdout.write(`\n  Not finished: continue it with 'reckon runs resume ${run.id}'.\n`);
+      process.stdout.write(statusNote(run, values.store ?? ''));
     }
   } finally {
     db.close();
   }
   return 0;
+}
+
+/** What a run that is not done still needs, under its report. */
+function statusNote(run: RunRecord, storeOption: string): string {
+  const store = storeOption ? ` --store ${storeOption}` : '';
+  switch (run.status) {
+    case 'running':
+      return `\n  Still running (process ${run.ownerPid}${run.ownerHost ? ` on ${run.ownerHost}` : ''}): the figures above cover the episodes committed so far.\n`;
+    case 'interrupted':
+      return `\n  Interrupted after ${run.episodesDone} of ${run.episodesRequested} episodes: continue it with 'reckon runs resume ${run.id}${store}'.\n`;
+    case 'failed':
+      return `\n  Failed: ${run.error ?? 'no reason was recorded'}\n  The ${run.episodesDone} episodes committed before the failure are kept; once the cause is fixed, 'reckon runs resume ${run.id}${store}' continues it.\n`;
+    default:
+      return '';
+  }
 }
 
 function exportRun(args: string[]): number {
@@ -180,29 +202,29 @@ function exportRun(args: string[]): number {
 }
 
 async function resume(args: string[]): Promise<number> {
-  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, workers: { type: 'string' } }, true);
+  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, workers: { type: 'string' }, 'step-timeout': { type: 'string' } }, true);
   if (wantsHelp(values)) return 0;
   const id = oneId('resume', positionals);
   const workers = values.workers === undefined ? undefined : parseOption('workers', 'workers', values.workers);
+  const stepTimeout = values['step-timeout'] === undefined ? undefined : parseOption('step-timeout', 'stepTimeout', values['step-timeout']);
   const { db, label } = storeFor(values.store);
   const progress = new ProgressLine();
-  const controller = new AbortController();
-  const onSigint = () => controller.abort();
-  process.once('SIGINT', onSigint);
+  const stop = new StopSignals();
   try {
     const run = getRun(db, id, label);
-    const { result } = await resumeStoredEstimate(db, run, { signal: controller.signal, onProgress: (p) => progress.update(p), workers });
+    const { result } = await resumeStoredEstimate(db, run, { signal: stop.signal, onProgress: (p) => progress.update(p), workers, stepTimeout });
     progress.clear();
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version(), run.id), null, 2)}\n`);
     else process.stdout.write(`Run ${run.id} resumed from episode ${run.firstEpisode + run.episodesDone}.\n\n${estimateText(result, labels)}`);
     if (result.interrupted) {
-      process.stderr.write(`reckon: interrupted again after ${result.episodes} episodes; continue with 'reckon runs resume ${run.id}'\n`);
-      return 130;
+      const store = values.store ? ` --store ${label}` : '';
+      process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} again after ${result.episodes} episodes, all kept. Continue it with: reckon runs resume ${run.id}${store}\n`);
+      return stop.exitCode();
     }
   } finally {
     progress.clear();
-    process.off('SIGINT', onSigint);
+    stop.dispose();
     db.close();
   }
   return 0;
@@ -214,7 +236,7 @@ function remove(args: string[]): number {
   const id = oneId('delete', positionals);
   const { db, label } = storeFor(values.store);
   try {
-    getRun(db, id, label);
+    refuseIfLive(getRun(db, id, label), 'delete it');
     deleteRun(db, id);
     process.stdout.write(`Deleted run ${id} and its episodes from ${label}.\n`);
   } finally {

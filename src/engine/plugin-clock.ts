@@ -1,0 +1,36 @@
+/**
+ * Where a thread's plug-in calls have got to, so that a call that never returns can be named.
+ * The rollout loops write the episode and a position code before every call into plug-in
+ * code (plain stores, no locking: a store per call costs next to nothing against the call).
+ * A worker thread writes into memory shared with the pool, which watches it from the main
+ * thread (step-watch.ts); elsewhere the writes land in a private array no one reads.
+ *
+ * Position codes: -1 the environment's reset, 2t the policy at step t, 2t + 1 the
+ * environment's step t.
+ */
+export const CLOCK_SLOTS = 2;
+
+let clock: Float64Array<ArrayBufferLike> = new Float64Array(CLOCK_SLOTS);
+
+/** This thread's clock: [episode, position]. */
+export function pluginClock(): Float64Array<ArrayBufferLike> {
+  return clock;
+}
+
+/** Makes this thread write its clock into memory the pool can read. */
+export function shareClock(buffer: SharedArrayBuffer): void {
+  clock = new Float64Array(buffer);
+}
+
+export function newClockBuffer(): SharedArrayBuffer {
+  const buffer = new SharedArrayBuffer(CLOCK_SLOTS * Float64Array.BYTES_PER_ELEMENT);
+  new Float64Array(buffer).fill(-2);
+  return buffer;
+}
+
+/** The plug-in call a clock reading points at, as a PluginError names it. */
+export function clockPosition(episode: number, position: number): { plugin: string; episode: number; step: number } {
+  if (position < 0) return { plugin: 'the environment (reset)', episode, step: 0 };
+  const step = Math.floor(position / 2);
+  return { plugin: position % 2 === 0 ? 'the policy' : 'the environment (step)', episode, step };
+}

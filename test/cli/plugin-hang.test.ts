@@ -1,0 +1,82 @@
+import { describe, expect, it } from 'vitest';
+import { spawn } from 'node:child_process';
+import path from 'node:path';
+import Database from 'better-sqlite3';
+import { CLI, reckon, tempFiles } from './run-cli.js';
+
+/**
+ * A plug-in whose step never returns. The environment jams (throws, or spins for ever) at
+ * step 3 of the first episodes whose start draw falls below 0.05, so the throwing variant
+ * names the episode at which the spinning one must be caught.
+ */
+const dir = tempFiles({
+  'throws.json': { kind: 'module', path: './jam.js', options: { spin: false } },
+  'spins.json': { kind: 'module', path: './jam.js', options: { spin: true } },
+  'uniform.json': { kind: 'uniform' },
+  'jam.js': `export default ({ spin }) => ({
+    actions: ['a', 'b'], discount: 0.9, horizon: 10, rewardRange: [0, 1],
+    reset: (rng) => ({ t: 0, jams: rng.uniform() < 0.05 }),
+    step(state, action, rng, out) {
+      if (state.jams && state.t === 3) {
+        if (!spin) throw new Error('the conveyor jammed');
+        for (;;) {}
+      }
+      out.state = { t: state.t + 1, jams: state.jams }; out.reward = rng.uniform(); out.done = false; return out;
+    },
+  });`,
+});
+const policy = ['--policy', path.join(dir, 'uniform.json')];
+
+describe('a plug-in that hangs', () => {
+  it('fails the run after --step-timeout with a PluginError naming the episode and step; finished episodes are kept and the reason is stored', () => {
+    const thrown = reckon(['estimate', '--env', path.join(dir, 'throws.json'), ...policy, '--episodes', '400', '--seed', '5', '--no-store']);
+    expect(thrown.code).toBe(1);
+    const where = /episode (\d+), step 3/.exec(thrown.stderr);
+    expect(where).not.toBeNull();
+    const episode = Number(where![1]);
+
+    const store = path.join(tempFiles({}), 'runs.sqlite');
+    for (const workers of ['1', '2']) {
+      const hung = reckon(['estimate', '--env', path.join(dir, 'spins.json'), ...policy, '--episodes', '400', '--seed', '5', '--workers', workers, '--step-timeout', '0.5', '--store', store]);
+      expect(hung.code).toBe(1);
+      expect(hung.stderr).toContain(`the environment (step) hung at episode ${episode}, step 3`);
+      expect(hung.stderr).toContain('--step-timeout');
+    }
+    const runs = JSON.parse(reckon(['runs', 'list', '--store', store, '--json']).stdout);
+    expect(runs).toHaveLength(2);
+    for (const run of runs) {
+      expect(run.status).toBe('failed');
+      expect(run.episodes).toBeLessThanOrEqual(episode);
+      const shown = reckon(['runs', 'show', run.id, '--store', store]);
+      expect(shown.code).toBe(0);
+      expect(shown.stdout).toContain(`Failed: the environment (step) hung at episode ${episode}, step 3`);
+      if (run.episodes >= 2) {
+        const json = JSON.parse(reckon(['runs', 'show', run.id, '--store', store, '--json']).stdout);
+        expect(json.error).toContain(`hung at episode ${episode}, step 3`);
+        expect(json.episodes).toBe(run.episodes);
+      }
+    }
+  });
+
+  it('Ctrl-C stops a run whose plug-in is stuck, long before the step timeout', async () => {
+    const store = path.join(tempFiles({}), 'runs.sqlite');
+    const child = spawn(process.execPath, [CLI, 'estimate', '--env', path.join(dir, 'spins.json'), ...policy, '--episodes', '400', '--seed', '5', '--step-timeout', '600', '--store', store], {
+      env: { ...process.env, RECKON_NO_PROGRESS: '1' },
+    });
+    let stderr = '';
+    child.stderr.on('data', (d) => (stderr += d));
+    const exited = new Promise<number | null>((r) => child.on('exit', (code) => r(code)));
+    // The jam comes within the first hundred episodes; give the run time to reach it.
+    await new Promise((r) => setTimeout(r, 2500));
+    const sent = Date.now();
+    child.kill('SIGINT');
+    const code = await Promise.race([exited, new Promise<string>((r) => setTimeout(() => r('still running'), 8000))]);
+    if (code === 'still running') child.kill('SIGKILL');
+    expect(code).toBe(130);
+    expect(Date.now() - sent).toBeLessThan(8000);
+    expect(stderr).toMatch(/reckon runs resume [a-z2-9]{8}/);
+    const db = new Database(store, { readonly: true });
+    expect((db.prepare('SELECT status FROM runs').get() as { status: string }).status).toBe('interrupted');
+    db.close();
+  });
+});
