@@ -5,6 +5,8 @@ import type { FiniteMdp, PolicyMatrix } from './finite-mdp.js';
 export interface DefinitionSource {
   readonly label: string;
   readonly baseDir: string;
+  /** The file it was read from (absolute), when it came from a file. */
+  readonly file?: string;
 }
 
 /** An environment ready to run: either compiled to flat arrays, or a user's code. */

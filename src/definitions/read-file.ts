@@ -18,7 +18,7 @@ export interface DefinitionFile {
  * for files found through another file, named relative to where the user stands).
  */
 export function readDefinitionFile(path: string, label: string = path): DefinitionFile {
-  const source: DefinitionSource = { label, baseDir: dirname(resolve(path)) };
+  const source: DefinitionSource = { label, baseDir: dirname(resolve(path)), file: resolve(path) };
   let text: string;
   try {
     text = readFileSync(path, 'utf8');

@@ -1,6 +1,7 @@
 import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';
 import { definitionHash } from '../store/definition-hash.js';
+import { definitionFiles, displayPath, firstChangedFile } from '../store/definition-files.js';
 import { machineFacts } from '../store/machine.js';
 import type { Db } from '../store/open.js';
 import { appendChunk, claimRun, createRun, finishRun, keepHeartbeat, loadEpisodes, refuseIfLive, type RunRecord, type ShardInfo } from '../store/runs.js';
@@ -43,6 +44,14 @@ export interface StoredEstimateRequest {
   readonly onRunId?: (id: string) => void;
 }
 
+/** The files both definitions were read from, with their hashes now. */
+function filesOf(spec: RolloutSpec) {
+  return [
+    ...definitionFiles('environment', spec.env.source.file ?? null, spec.env.json, spec.env.source.baseDir),
+    ...definitionFiles('policy', spec.policy.source.file ?? null, spec.policy.json, spec.policy.source.baseDir),
+  ];
+}
+
 function storedDefinition(part: RolloutSpec['env']) {
   return { label: part.source.label, json: part.json, baseDir: part.source.baseDir, hash: definitionHash(part.json, part.source.baseDir) };
 }
@@ -71,6 +80,7 @@ export async function runStoredEstimate(request: StoredEstimateRequest): Promise
       toolVersion: request.toolVersion,
       machine: machineFacts(),
       shard: request.shard,
+      files: filesOf(spec),
     });
     request.onRunId?.(runId);
     return runId;
@@ -92,9 +102,19 @@ export async function resumeStoredEstimate(
     seed: run.seed,
     start: run.start,
   };
+  const changed = run.files ? firstChangedFile(run.files) : null;
+  if (changed) {
+    const file = displayPath(changed.file.path);
+    const how = { changed: 'has changed', missing: 'is missing', back: 'exists now but was missing' }[changed.now];
+    throw new InputError(
+      `run ${run.id}`,
+      `${file} (part of its ${changed.file.role}) ${how} since the run started, so it cannot be continued exactly; restore the file, or start a new run`,
+    );
+  }
+  // Runs stored before their files were recorded: the hash covers the files they name.
   for (const [what, stored] of [['environment', run.env], ['policy', run.policy]] as const) {
     if (definitionHash(stored.json, stored.baseDir) !== stored.hash) {
-      throw new InputError(`run ${run.id}`, `the ${what} files it used (${stored.label}) have changed since it started, so it cannot be continued exactly; start a new run`);
+      throw new InputError(`run ${run.id}`, `a file named by its ${what} (${stored.label}) has changed since it started, so it cannot be continued exactly; start a new run`);
     }
   }
   const stored = run.options as unknown as StoredOptions;

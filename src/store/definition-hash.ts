@@ -38,7 +38,7 @@ function feed(hash: ReturnType<typeof createHash>, json: unknown, baseDir: strin
   });
 }
 
-function visitPaths(json: unknown, visit: (relative: string) => void): void {
+export function visitPaths(json: unknown, visit: (relative: string) => void): void {
   if (Array.isArray(json)) {
     for (const item of json) visitPaths(item, visit);
   } else if (json !== null && typeof json === 'object') {

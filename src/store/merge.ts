@@ -59,6 +59,7 @@ export function mergeShards(sources: readonly MergeSource[], into: Db, describe:
     options: { ...first.options, episodes: total },
     facts: first.facts,
     toolVersion: first.toolVersion,
+    files: first.files ?? [],
     machine: { merged_from: parts.map(({ run, source }) => ({ run: run.id, store: source.label, machine: run.machine })) },
   });
   let seconds = 0;

@@ -57,9 +57,11 @@ export const MIGRATIONS: readonly string[] = [
   CREATE INDEX runs_by_parent ON runs (parent_id);
   `,
   // 3: when the owning process last said it is alive, so a run whose process died without a
-  // word on another machine (where its process id means nothing) shows as interrupted.
+  // word on another machine (where its process id means nothing) shows as interrupted; and
+  // every file the run was defined by with its hash, so a resume can name the one that changed.
   `
   ALTER TABLE runs ADD COLUMN heartbeat_at TEXT;
+  ALTER TABLE runs ADD COLUMN files_json TEXT;
   `,
 ];
 

@@ -3,6 +3,7 @@ import { hostname } from 'node:os';
 import { InputError, NotFoundError } from '../errors.js';
 import type { Db } from './open.js';
 import { ownerAlive } from './owner.js';
+import type { DefinitionFileHash } from './definition-files.js';
 
 export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
 export type RunKind = 'estimate' | 'comparison';
@@ -36,6 +37,8 @@ export interface NewRun {
   readonly machine: Record<string, unknown>;
   readonly shard?: ShardInfo | null;
   readonly parentId?: string | null;
+  /** The files the definitions were read from, with their hashes (empty for inline definitions). */
+  readonly files?: readonly DefinitionFileHash[];
 }
 
 export interface RunRecord {
@@ -68,6 +71,8 @@ export interface RunRecord {
   readonly ownerHost: string | null;
   readonly heartbeatAt: string | null;
   readonly parentId: string | null;
+  /** Null for runs stored before files were recorded. */
+  readonly files: readonly DefinitionFileHash[] | null;
 }
 
 interface RunRow {
@@ -104,6 +109,7 @@ interface RunRow {
   owner_host: string | null;
   heartbeat_at: string | null;
   parent_id: string | null;
+  files_json: string | null;
 }
 
 const ID_ALPHABET = 'abcdefghijkmnpqrstuvwxyz23456789';
@@ -121,11 +127,11 @@ export function createRun(db: Db, run: NewRun): string {
     INSERT INTO runs (id, kind, status, created_at, env_label, env_json, env_hash, env_base_dir,
       policy_label, policy_json, policy_hash, policy_base_dir, seed, start_state, first_episode,
       episodes_requested, options_json, facts_json, tool_version, machine_json,
-      shard_index, shard_count, total_episodes, owner_pid, owner_host, heartbeat_at, parent_id)
+      shard_index, shard_count, total_episodes, owner_pid, owner_host, heartbeat_at, parent_id, files_json)
     VALUES (@id, @kind, 'running', @created_at, @env_label, @env_json, @env_hash, @env_base_dir,
       @policy_label, @policy_json, @policy_hash, @policy_base_dir, @seed, @start_state, @first_episode,
       @episodes_requested, @options_json, @facts_json, @tool_version, @machine_json,
-      @shard_index, @shard_count, @total_episodes, @owner_pid, @owner_host, @created_at, @parent_id)`);
+      @shard_index, @shard_count, @total_episodes, @owner_pid, @owner_host, @created_at, @parent_id, @files_json)`);
   for (let attempt = 0; ; attempt++) {
     const id = newRunId();
     try {
@@ -155,6 +161,7 @@ export function createRun(db: Db, run: NewRun): string {
         owner_pid: process.pid,
         owner_host: hostname(),
         parent_id: run.parentId ?? null,
+        files_json: JSON.stringify(run.files ?? []),
       });
       return id;
     } catch (e) {
@@ -257,6 +264,7 @@ function toRecord(row: RunRow): RunRecord {
     ownerHost: row.owner_host,
     heartbeatAt: row.heartbeat_at,
     parentId: row.parent_id,
+    files: row.files_json === null ? null : JSON.parse(row.files_json),
   };
 }
 

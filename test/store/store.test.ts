@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { spawn } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import Database from 'better-sqlite3';
 import { CLI, FIXTURES, reckon, tempFiles } from '../cli/run-cli.js';
@@ -182,6 +182,41 @@ describe('crash safety', () => {
     expect(stderr).not.toContain('internal error');
     expect(json(reckon(['runs', 'show', id, '--store', store, '--json'])).status).toBe('interrupted');
     expect(reckon(['runs', 'delete', id, '--store', store]).code).toBe(0);
+  });
+});
+
+describe('resume checks every file the run was defined by', () => {
+  it('an edit to the environment file, to the module it names, or to a base policy is refused, naming that file', async () => {
+    const code = readFileSync(path.join(slowDir, 'slow.js'), 'utf8');
+    const dir = tempFiles({
+      'env.json': { kind: 'module', path: './slow.js', options: {} },
+      'slow.js': code,
+      'base.json': { kind: 'uniform' },
+      'noisy.json': { kind: 'epsilon', epsilon: 0.1, base: { path: 'base.json' } },
+    });
+    const store = storeIn(dir);
+    const child = spawn(process.execPath, [CLI, 'estimate', '--env', path.join(dir, 'env.json'), '--policy', path.join(dir, 'noisy.json'), '--episodes', '30000', '--seed', '4', '--store', store], {
+      env: { ...process.env, RECKON_NO_PROGRESS: '1' },
+      stdio: 'ignore',
+    });
+    await waitForEpisodes(store, 100, 30000);
+    child.kill('SIGINT');
+    expect(await new Promise((r) => child.on('exit', r))).toBe(130);
+    const id = json(reckon(['runs', 'list', '--store', store, '--json']))[0].id;
+    const edits: [string, string][] = [
+      ['env.json', JSON.stringify({ kind: 'module', path: './slow.js', options: { unused: 1 } })],
+      ['slow.js', code.replace('0.05', '0.06')],
+      ['base.json', JSON.stringify({ kind: 'uniform', description: 'the same policy, reworded' })],
+    ];
+    for (const [file, edited] of edits) {
+      const original = readFileSync(path.join(dir, file), 'utf8');
+      writeFileSync(path.join(dir, file), edited);
+      const refused = reckon(['runs', 'resume', id, '--store', store], { cwd: dir });
+      expect(refused.code).toBe(2);
+      expect(refused.stderr).toContain(`run ${id}: ${file} (part of its ${file === 'base.json' || file === 'noisy.json' ? 'policy' : 'environment'}) has changed since the run started`);
+      writeFileSync(path.join(dir, file), original);
+    }
+    expect(json(reckon(['runs', 'resume', id, '--store', store, '--json'], { cwd: dir })).episodes).toBe(30000);
   });
 });
 
