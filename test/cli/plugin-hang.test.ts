@@ -14,7 +14,7 @@ const dir = tempFiles({
   'spins.json': { kind: 'module', path: './jam.js', options: { spin: true } },
   'uniform.json': { kind: 'uniform' },
   'jam.js': `export default ({ spin }) => ({
-    actions: ['a', 'b'], discount: 0.9, horizon: 10, rewardRange: [0, 1],
+    actions: ['a', 'b'], discount: 0.9, horizon: 10, rewardBounds: [0, 1],
     reset: (rng) => ({ t: 0, jams: rng.uniform() < 0.05 }),
     step(state, action, rng, out) {
       if (state.jams && state.t === 3) {
