@@ -201,6 +201,7 @@ export function summarizeComparison(
         seed: request.seed,
         start: request.start,
         onAnalysis: request.onAnalysis,
+        plannedEpisodes: false,
       },
       { steps: buffer.lengthSum, seconds: seconds / buffers.length, workers: request.workers },
       request.episodes,

@@ -113,10 +113,11 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
     method = choice;
   } else {
     const fixed = request.method ?? 't';
-    if (isSequenceMethod(fixed)) {
-      throw new InputError('--ci', `${fixed} is for runs that stop at a target error: add --target-error E (or choose t, normal, bootstrap, bootstrap-percentile, hoeffding or bernstein)`);
+    if (isSequenceMethod(fixed) && fixed !== 'betting') {
+      throw new InputError('--ci', `${fixed} is for runs that stop at a target error: add --target-error E (or choose t, normal, bootstrap, bootstrap-percentile, hoeffding, bernstein or betting)`);
     }
-    checkIntervalPossible(fixed, bounds, request.level);
+    if (fixed === 'betting' && !bounds) throw new InputError('--ci betting', 'needs return bounds: give --bounds LOW,HIGH (none are known for this environment)');
+    if (fixed !== 'betting') checkIntervalPossible(fixed, bounds, request.level);
     method = fixed;
   }
   request.onFacts?.(facts, method);

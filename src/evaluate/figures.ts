@@ -17,6 +17,8 @@ export interface FigureSettings {
   readonly seed: number;
   readonly start: string | null;
   readonly onAnalysis?: AnalysisProgress;
+  /** False when a sequence is read without a planned size (a comparison's members); default: the requested episodes. */
+  readonly plannedEpisodes?: false;
 }
 
 export interface RunTiming {
@@ -102,6 +104,8 @@ export function computeFigures(
       bounds,
       sigma: settings.sigma,
       targetError: settings.targetError ?? Number.NaN,
+      // A fixed-size betting run tunes its bets to its planned size.
+      plannedEpisodes: settings.targetError === null && settings.plannedEpisodes !== false ? requestedEpisodes : null,
     };
     // A fresh run hands over the sequence it fed while running; a re-analysis replays it.
     const sequence = live ?? makeRunningInterval(sequenceSettings);

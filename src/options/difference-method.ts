@@ -1,5 +1,5 @@
 import { InputError } from '../errors.js';
-import { isSequenceMethod, type SequenceChoice } from '../evaluate/sequence.js';
+import { isSequenceMethod, SEQUENCE_METHODS, type SequenceChoice } from '../evaluate/sequence.js';
 import type { DifferenceMethod } from '../stats/index.js';
 import { parseOption } from './parse-option.js';
 
@@ -17,7 +17,7 @@ export function differenceMethod(ci: string | undefined, targetError: number | n
   }
   if (choice === 't' || choice === 'bootstrap' || choice === 'bootstrap-percentile') {
     if (targetError !== null) {
-      throw new InputError('--ci', `"${choice}" is a fixed-sample interval, which loses its coverage when the run stops on the data; with --target-error use empirical-bernstein, normal-mixture or chow-robbins`);
+      throw new InputError('--ci', `"${choice}" is a fixed-sample interval, which loses its coverage when the run stops on the data; with --target-error use ${SEQUENCE_METHODS.join(', ')}`);
     }
     return { method: choice, sequence: null };
   }

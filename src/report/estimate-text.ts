@@ -1,5 +1,5 @@
 import type { EstimateResult } from '../evaluate/estimate.js';
-import { columns, count, decimalsFor, duration, fixed, rate, sig, timeSplit } from './format.js';
+import { columns, count, decimalsFor, duration, fixed, meanWithInterval, rate, sig, timeSplit } from './format.js';
 
 const METHOD_NAMES: Record<string, string> = {
   t: 'Student t',
@@ -8,6 +8,7 @@ const METHOD_NAMES: Record<string, string> = {
   'bootstrap-percentile': 'bootstrap percentile',
   hoeffding: 'Hoeffding',
   bernstein: 'empirical Bernstein',
+  betting: 'anytime-valid betting',
   'empirical-bernstein': 'anytime-valid empirical-Bernstein',
   'normal-mixture': 'anytime-valid normal-mixture',
   'normal-mixture-asymptotic': 'normal-mixture (plug-in σ, asymptotic)',
@@ -24,12 +25,16 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
   const lines: string[] = [];
   lines.push(`Policy ${labels.policy} in ${labels.env}${result.start ? `, every episode from state ${result.start}` : ''}`);
   lines.push('');
-  lines.push(`  expected return  ${fixed(result.mean, d)}  ± ${fixed(ci.halfWidth, d)}   (${level} ${METHOD_NAMES[ci.method] ?? ci.method} interval ${fixed(ci.low, d)} … ${fixed(ci.high, d)})`);
+  lines.push(`  expected return  ${meanWithInterval(result.mean, ci.low, ci.high, d)}   (${level} ${METHOD_NAMES[ci.method] ?? ci.method} interval ${fixed(ci.low, d)} … ${fixed(ci.high, d)})`);
   if (result.target) {
     const t = result.target;
     lines.push(
       t.reached
-        ? `  target           ±${fixed(t.error, decimalsFor(t.error))} reached after ${count(result.episodes)} episodes (the interval stays valid although the run stopped on the data)`
+        ? `  target           ±${fixed(t.error, decimalsFor(t.error))} reached after ${count(result.episodes)} episodes ${
+            ci.anytimeValid
+              ? '(the interval stays valid although the run stopped on the data)'
+              : '(an asymptotic rule: its coverage at a stop chosen by the data holds only in the limit of small targets)'
+          }`
         : `  target           ±${fixed(t.error, decimalsFor(t.error))} NOT reached within ${count(t.maxEpisodes)} episodes; reached ±${fixed(ci.halfWidth, d)}`,
     );
   }

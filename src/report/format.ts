@@ -55,3 +55,15 @@ export function columns(rows: string[][], indent = '  '): string[] {
   for (const row of rows) row.forEach((cell, i) => (widths[i] = Math.max(widths[i] ?? 0, cell.length)));
   return rows.map((row) => indent + row.map((cell, i) => (i === row.length - 1 ? cell : cell.padEnd(widths[i]))).join('  '));
 }
+
+/**
+ * A mean and its interval as a reader should see them: `mean ± h` only when the interval is
+ * centred on the mean, else `mean (low … high)`, so that no ± range suggests values the
+ * interval excludes.
+ */
+export function meanWithInterval(mean: number, low: number, high: number, decimals: number): string {
+  const halfWidth = (high - low) / 2;
+  const centre = (low + high) / 2;
+  const centred = Math.abs(centre - mean) <= 1e-9 * Math.max(1, Math.abs(mean)) + 1e-3 * halfWidth;
+  return centred ? `${fixed(mean, decimals)} ± ${fixed(halfWidth, decimals)}` : `${fixed(mean, decimals)} (${fixed(low, decimals)} … ${fixed(high, decimals)})`;
+}

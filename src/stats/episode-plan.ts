@@ -1,3 +1,4 @@
+import { episodesNeededBetting } from './betting-projection.js';
 import { episodesNeededEmpiricalBernstein } from './empirical-bernstein-sequence.js';
 import { episodesNeededNormalMixture, type NormalMixturePlan, type SigmaSource } from './normal-mixture-sequence.js';
 import { episodesNeeded } from './projection.js';
@@ -24,6 +25,8 @@ export interface EpisodePlan {
   normalMixture: NormalMixturePlan & { sigma: number; sigmaSource: SigmaSource };
   /** Empirical-Bernstein sequence at the pilot's variance (deterministic path); null without bounds. */
   empiricalBernstein: number | null;
+  /** Betting sequence with bets aimed at ε, at the pilot's mean and variance; null without bounds. */
+  betting: number | null;
   /** Hoeffding's fixed n (Hoeffding 1963, Thm 2); null without bounds. */
   hoeffding: number | null;
 }
@@ -45,6 +48,9 @@ export function planEpisodes(request: EpisodePlanRequest): EpisodePlan {
     fixedT,
     normalMixture,
     empiricalBernstein: bounds ? episodesNeededEmpiricalBernstein({ epsilon, variance: pilot.variance, bounds, level }) : null,
+    betting: bounds
+      ? episodesNeededBetting({ epsilon, mean: pilot.mean, variance: pilot.variance, bounds, level, schedule: { kind: 'target', halfWidth: epsilon } })
+      : null,
     hoeffding: bounds ? episodesNeeded('hoeffding', pilot, epsilon, level, bounds) : null,
   };
 }

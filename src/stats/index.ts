@@ -25,6 +25,8 @@ export { comparePolicies, type CompareOptions, type PolicyComparison, type PairR
 export { comparePair, DIFFERENCE_METHODS, type DifferenceMethod, type PairedComparison } from './paired-comparison.js';
 export { holmAdjust } from './holm.js';
 export { EmpiricalBernsteinSequence, episodesNeededEmpiricalBernstein } from './empirical-bernstein-sequence.js';
+export { BettingSequence, type BetSchedule, type BettingOptions } from './betting-sequence.js';
+export { episodesNeededBetting } from './betting-projection.js';
 export { NormalMixtureSequence, episodesNeededNormalMixture } from './normal-mixture-sequence.js';
 export { ChowRobbinsRule } from './chow-robbins.js';
 export { differenceBounds, type RunningInterval, type SequentialInterval, type SequenceMethod } from './sequential-interval.js';

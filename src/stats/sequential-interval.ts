@@ -6,7 +6,7 @@ import type { ReturnBounds } from './return-bounds.js';
  * chooses from the data. Methods labelled `-asymptotic` are not anytime-valid: their coverage
  * at a data-dependent stop holds only in a limit (small target error, many episodes).
  */
-export type SequenceMethod = 'normal-mixture' | 'normal-mixture-asymptotic' | 'empirical-bernstein' | 'chow-robbins-asymptotic';
+export type SequenceMethod = 'betting' | 'normal-mixture' | 'normal-mixture-asymptotic' | 'empirical-bernstein' | 'chow-robbins-asymptotic';
 
 export interface SequentialInterval {
   method: SequenceMethod;

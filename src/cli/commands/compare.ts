@@ -36,8 +36,8 @@ Options:
   --confidence L        two-sided level (default 0.95)
   --ci METHOD           difference intervals: t (paired t, default), bootstrap (BCa of the
                         paired differences), bootstrap-percentile; with --target-error:
-                        empirical-bernstein (default when bounds are known), normal-mixture,
-                        chow-robbins (asymptotic)
+                        betting (default when bounds are known, bets aimed at the target),
+                        empirical-bernstein, normal-mixture, chow-robbins (asymptotic)
   --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
   --sigma S             one return's sub-Gaussian scale, for normal-mixture
   --iqm                 also the interquartile mean of each policy (stratified bootstrap)

@@ -31,10 +31,11 @@ Options:
   --start STATE         start every episode in STATE (e.g. "2,0"): the value of that state
   --confidence L        two-sided confidence level (default 0.95)
   --ci METHOD           t (default), normal, bootstrap (BCa), bootstrap-percentile,
-                        hoeffding, bernstein (the last two need return bounds);
-                        with --target-error: empirical-bernstein (default when bounds are
-                        known), normal-mixture (needs --sigma or bounds), chow-robbins
-                        (asymptotic only)
+                        hoeffding, bernstein, betting (the last three need return bounds;
+                        betting tunes its bets to --episodes and stays valid at every n);
+                        with --target-error: betting (default when bounds are known, bets
+                        aimed at the target), empirical-bernstein, normal-mixture (needs
+                        --sigma or bounds), chow-robbins (asymptotic only)
   --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
   --target-error E      run until the interval's half-width is at most E, with an interval
                         that stays valid although the run stops on the data

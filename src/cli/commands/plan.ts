@@ -157,8 +157,8 @@ export async function run(args: string[]): Promise<number> {
   const summary = summarize(result.returns);
   const bounds = userBounds ?? result.facts.returnBounds;
   const plan = planEpisodes({ pilot: summary, epsilon, level, bounds, sigma });
-  const sequentialMethod = bounds ? 'empirical-bernstein' : sigma !== undefined ? 'normal-mixture' : null;
-  const sequential = sequentialMethod === 'empirical-bernstein' ? plan.empiricalBernstein : sequentialMethod === 'normal-mixture' ? plan.normalMixture.episodes : null;
+  const sequentialMethod = bounds ? 'betting' : sigma !== undefined ? 'normal-mixture' : null;
+  const sequential = sequentialMethod === 'betting' ? plan.betting : sequentialMethod === 'normal-mixture' ? plan.normalMixture.episodes : null;
   const rate = result.episodesPerSecond;
   const pilotAnalysis = timed(() => tInterval(summarize(result.returns), level));
   const total = (episodes: number | null) => runSeconds(episodes, rate, pilotAnalysis, summary.n);
@@ -171,6 +171,7 @@ export async function run(args: string[]): Promise<number> {
     episodes_needed: plan.fixedT,
     episodes_needed_sequential: sequential,
     sequential_method: sequentialMethod,
+    episodes_needed_empirical_bernstein: plan.empiricalBernstein,
     episodes_needed_normal_mixture: plan.normalMixture.sigmaSource === 'estimated' ? null : plan.normalMixture.episodes,
     episodes_needed_hoeffding: plan.hoeffding,
     seconds: { fixed: total(plan.fixedT).total, sequential: total(sequential).total, hoeffding: total(plan.hoeffding).total },
@@ -186,6 +187,9 @@ export async function run(args: string[]): Promise<number> {
   const rows = [['run', 'episodes', 'time at this machine\'s rate (sampling + analysis)']];
   rows.push(['fixed n, Student t', count(plan.fixedT), duration(out.seconds.fixed)]);
   if (sequential !== null) rows.push([`until ±${epsilon} (--target-error, ${sequentialMethod})`, Number.isFinite(sequential) ? count(sequential) : 'over 10⁹', duration(out.seconds.sequential)]);
+  if (plan.empiricalBernstein !== null) {
+    rows.push([`until ±${epsilon} (--target-error --ci empirical-bernstein)`, Number.isFinite(plan.empiricalBernstein) ? count(plan.empiricalBernstein) : 'over 10⁹', duration(seconds(plan.empiricalBernstein, rate))]);
+  }
   if (out.episodes_needed_normal_mixture !== null && sequentialMethod !== 'normal-mixture') {
     rows.push([`until ±${epsilon} (--target-error --ci normal-mixture)`, count(plan.normalMixture.episodes), duration(total(plan.normalMixture.episodes).total)]);
   }
