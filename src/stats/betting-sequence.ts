@@ -1,4 +1,5 @@
 import { InputError } from '../errors.js';
+import { defaultTruncation } from './betting-projection.js';
 import { requireLevel } from './interval.js';
 import type { ReturnBounds } from './return-bounds.js';
 import { makeSequentialInterval, requireValidBounds, unitScaled, type RunningInterval, type SequentialInterval } from './sequential-interval.js';
@@ -25,7 +26,11 @@ export interface BettingOptions {
   /** Limits [a, b] of every value; returns are mapped to [0, 1] by them. */
   readonly bounds: ReturnBounds;
   readonly schedule: BetSchedule;
-  /** c in λ⁺(m) = min(λ, c/m), λ⁻(m) = min(λ, c/(1 − m)); the paper's default 1/2. */
+  /**
+   * c in λ⁺(m) = min(λ, c/m), λ⁻(m) = min(λ, c/(1 − m)), in (0, 1): the paper recommends 1/2
+   * or 3/4. Default 1/2, and 3/4 for bets aimed at a target, which are moderate already and
+   * otherwise lose to the cap on returns near a bound (docs/methods.md, "Targeted bets").
+   */
   readonly truncation?: number;
   /** Hedging weight θ between the two capitals; default 1/2. */
   readonly hedge?: number;
@@ -95,7 +100,7 @@ export class BettingSequence implements RunningInterval {
     this.level = options.level;
     this.bounds = requireValidBounds(options.bounds);
     this.schedule = options.schedule;
-    this.truncation = options.truncation ?? Number(process.env.RECKON_C ?? 0.5);
+    this.truncation = options.truncation ?? defaultTruncation(options.schedule);
     if (!(this.truncation > 0 && this.truncation < 1)) throw new RangeError(`BettingSequence: truncation must be in (0, 1) (got ${this.truncation})`);
     const hedge = options.hedge ?? 0.5;
     if (!(hedge > 0 && hedge < 1)) throw new RangeError(`BettingSequence: hedge must be in (0, 1) (got ${hedge})`);
@@ -107,7 +112,7 @@ export class BettingSequence implements RunningInterval {
     if (schedule.kind === 'planned' && !(schedule.episodes >= 1)) throw new RangeError(`BettingSequence: planned episodes must be ≥ 1 (got ${schedule.episodes})`);
     if (schedule.kind === 'target' && !(schedule.halfWidth > 0)) throw new RangeError(`BettingSequence: target half-width must be > 0 (got ${schedule.halfWidth})`);
     this.unitTarget = schedule.kind === 'target' ? schedule.halfWidth / (this.bounds[1] - this.bounds[0]) : Number.NaN;
-    this.gridSize = options.gridSize ?? Number(process.env.RECKON_GRID ?? 128);
+    this.gridSize = options.gridSize ?? 128;
     if (!(Number.isInteger(this.gridSize) && this.gridSize >= 8)) throw new RangeError(`BettingSequence: gridSize must be an integer ≥ 8 (got ${this.gridSize})`);
     const size = this.gridSize;
     this.grid = new Float64Array(size);

@@ -71,11 +71,12 @@ describe('paired comparisons on common random numbers', () => {
 });
 
 describe('running until a target error', () => {
-  it('stops with half-width ≤ E and covers the exact value at ≥ the nominal level over 200 replications', async () => {
+  it('stops with half-width ≤ E on the default betting sequence, covers the exact value at the nominal level over 200 replications, and lands within E', async () => {
     const truth = (await exact(policyA)).value;
     const replications = 200;
     const target = 0.05;
     let covered = 0;
+    let within = 0;
     let stoppedEarly = 0;
     for (let r = 0; r < replications; r++) {
       const result = await runEstimate({
@@ -87,15 +88,19 @@ describe('running until a target error', () => {
         bounds: null,
         targetError: target,
       });
-      expect(result.ci.method).toBe('empirical-bernstein');
+      expect(result.ci.method).toBe('betting');
       expect(result.target?.reached).toBe(true);
       expect(result.ci.halfWidth).toBeLessThanOrEqual(target);
       if (result.episodes < 200_000) stoppedEarly++;
       if (result.ci.low <= truth && truth <= result.ci.high) covered++;
+      if (Math.abs(result.mean - truth) <= target) within++;
     }
     expect(stoppedEarly).toBe(replications);
-    // Anytime-valid (Waudby-Smith & Ramdas 2024): coverage ≥ 95% at any stopping time.
-    expect(covered / replications).toBeGreaterThanOrEqual(0.95);
+    // Anytime-valid (Waudby-Smith & Ramdas 2024, Theorem 3): coverage ≥ 95% at any stopping
+    // time. The betting sequence spends most of its α, so 200 replications may show a little
+    // less: the bound is 95% less 2.33 binomial sd (√(0.95·0.05/200) = 1.5%), i.e. 91.5%.
+    expect(covered / replications).toBeGreaterThanOrEqual(0.915);
+    expect(within / replications).toBeGreaterThanOrEqual(0.95);
   });
 
   it('the stopping episode is the same whatever the workers (a pure function of the returns)', async () => {
