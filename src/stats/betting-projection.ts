@@ -9,7 +9,7 @@ const MAX_PLANNED_EPISODES = 1e9;
 const EXACT_STEPS = 2000;
 /**
  * The expected-path model below ignores that the running intersection keeps the best endpoint
- * seen so far; simulated stops come at 0.83 of the modelled count (docs/methods.md, "Planning a
+ * seen so far; simulated stops come at 0.83 of the modelled count (docs/methods.md §7.1, "planning a
  * betting run", recomputed by scripts/betting-projection-factor.mjs).
  */
 export const RUNNING_INTERSECTION_FACTOR = 0.83;
@@ -31,7 +31,7 @@ export interface BettingProjectionRequest {
  * log-capital, to second order Σ λ_i d − λ_i²(σ² + d²)/2 with λ_i truncated at that candidate,
  * reaches its threshold ln(2/α); the run stops when the two distances add up to 2ε. For bets
  * aimed at ε that is about 2 ln(2/α)σ²/ε², 1.92 times the fixed-n normal count (zσ/ε)² at
- * α = 0.05 (docs/methods.md), scaled by {@link RUNNING_INTERSECTION_FACTOR}.
+ * α = 0.05 (docs/methods.md §6.6), scaled by {@link RUNNING_INTERSECTION_FACTOR}.
  */
 export function episodesNeededBetting(request: BettingProjectionRequest): number {
   const modelled = modelledEpisodes(request);

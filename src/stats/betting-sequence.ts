@@ -13,7 +13,7 @@ import { makeSequentialInterval, requireValidBounds, unitScaled, type RunningInt
  *   "betting CI", Section 4.3), still valid at every t;
  * - `target`: aimed at a target half-width E (in return units), tuned to the horizon at which
  *   a tuned sequence reaches E: n*_t = max(t, 2 ln(2/α) σ̂²_{t−1}/e²), e = E/(b − a)
- *   (docs/methods.md, "Targeted bets").
+ *   (docs/methods.md §6.6).
  */
 export type BetSchedule =
   | { readonly kind: 'anytime' }
@@ -29,7 +29,7 @@ export interface BettingOptions {
   /**
    * c in λ⁺(m) = min(λ, c/m), λ⁻(m) = min(λ, c/(1 − m)), in (0, 1): the paper recommends 1/2
    * or 3/4. Default 1/2, and 3/4 for bets aimed at a target, which are moderate already and
-   * otherwise lose to the cap on returns near a bound (docs/methods.md, "Targeted bets").
+   * otherwise lose to the cap on returns near a bound (docs/methods.md §6.6).
    */
   readonly truncation?: number;
   /** Hedging weight θ between the two capitals; default 1/2. */
