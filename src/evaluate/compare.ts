@@ -6,6 +6,7 @@ import { InputError } from '../errors.js';
 import { comparePolicies, differenceBounds, type DifferenceMethod, type PolicyComparison, type RunningInterval } from '../stats/index.js';
 import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
 import type { EstimateResult } from './estimate.js';
+import { differenceWarnings } from './interval-advice.js';
 import { computeFigures, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import { chooseSequence, makeRunningInterval, sequenceInterval, targetReached, type SequenceChoice, type SequenceSettings } from './sequence.js';
@@ -59,6 +60,8 @@ export interface ComparisonResult {
   readonly analysisSeconds: number;
   readonly target: TargetOutcome | null;
   readonly interrupted: boolean;
+  /** Advice about the difference intervals at this sample size and share of ties. */
+  readonly warnings: readonly string[];
 }
 
 /**
@@ -232,6 +235,16 @@ export function summarizeComparison(
       return sequenceInterval(running, settings, targetReached(running, settings), pair.meanDifference);
     });
   }
+  const warnings: string[] = [];
+  if (sequence === null && request.method !== 't') {
+    for (const pair of comparison.pairs) {
+      const a = buffers[pair.first].view();
+      const b = buffers[pair.second].view();
+      const differences = new Float64Array(a.length);
+      for (let e = 0; e < a.length; e++) differences[e] = a[e] - b[e];
+      for (const w of differenceWarnings(request.method, differences)) warnings.push(`[${pair.first}] − [${pair.second}]: ${w}`);
+    }
+  }
   const target = request.targetError === null ? null : { error: request.targetError, reached, maxEpisodes: request.episodes };
   const analysisSeconds = (performance.now() - analysisStarted) / 1000;
   return {
@@ -246,6 +259,7 @@ export function summarizeComparison(
     analysisSeconds,
     target,
     interrupted: target ? !reached && episodes < request.episodes : episodes < request.episodes,
+    warnings,
   };
 }
 

@@ -87,6 +87,8 @@ export interface EstimateResult {
   readonly interrupted: boolean;
   /** Set for a run until a target error. */
   readonly target: TargetOutcome | null;
+  /** Advice about the interval method at this sample size; printed under the estimate. */
+  readonly warnings: readonly string[];
 }
 
 /**

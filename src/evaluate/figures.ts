@@ -1,6 +1,7 @@
 import { confidenceInterval, projectionTable, summarize, type CiMethod, type ProjectionRow, type RunningInterval } from '../stats/index.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import type { EstimateResult, IntervalChoice } from './estimate.js';
+import { intervalWarnings } from './interval-advice.js';
 import type { ReturnsBuffer } from './returns-buffer.js';
 import { isSequenceMethod, makeRunningInterval, sequenceEpisodesNeeded, sequenceInterval, targetReached, type SequenceSettings } from './sequence.js';
 
@@ -173,5 +174,6 @@ export function computeFigures(
     workers: timing.workers,
     interrupted: target ? !target.reached && buffer.count < requestedEpisodes : buffer.count < requestedEpisodes,
     target,
+    warnings: intervalWarnings(ci.method, summary.n, bounds !== null),
   };
 }

@@ -12,6 +12,8 @@ import type { EnvironmentFacts } from './environment-facts.js';
 import { runEstimate, type EstimateProgress, type EstimateResult } from './estimate.js';
 import { computeFigures, type AnalysisProgress } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
+import { isSequenceMethod, makeRunningInterval, SEQUENCE_METHODS, type SequenceSettings } from './sequence.js';
+import type { RunningInterval } from '../stats/index.js';
 
 /** The options a stored estimate keeps, to resume it and to re-analyse it the same way. */
 export interface StoredOptions {
@@ -173,18 +175,30 @@ function summaryOf(result: EstimateResult): Record<string, unknown> {
   return { episodes: result.episodes, mean: result.mean, std: result.std, ci: result.ci };
 }
 
+export interface AnalysisOverrides {
+  readonly method?: IntervalChoice;
+  readonly level?: number;
+  /** Allow a fixed-sample interval on a target-error run, as a what-if. */
+  readonly ignoreStop?: boolean;
+  readonly onAnalysis?: AnalysisProgress;
+}
+
 /**
  * The figures of a stored run recomputed from its stored returns: a different interval method
  * or level is a re-analysis, with no new episodes.
  */
-export function analyzeStoredRun(
-  db: Db,
-  run: RunRecord,
-  overrides: { method?: CiMethod; level?: number; onAnalysis?: AnalysisProgress } = {},
-): EstimateResult {
-  // A target-error run re-analysed with a fixed-sample method is a what-if: the interval then
-  // ignores that the run stopped on the data, and no target is reported.
+export function analyzeStoredRun(db: Db, run: RunRecord, overrides: AnalysisOverrides = {}): EstimateResult {
   const stored = run.options as unknown as StoredOptions;
+  // A target-error run stopped when its sequence was narrow enough, so a fixed-sample interval
+  // of its returns loses its coverage: refused, unless asked for as a what-if (then no target
+  // is reported). Another sequence is valid at any stop and keeps the target.
+  const fixedOverride = overrides.method !== undefined && !isSequenceMethod(overrides.method);
+  if (fixedOverride && stored.targetError !== null && stored.targetError !== undefined && !overrides.ignoreStop) {
+    throw new InputError(
+      '--ci',
+      `run ${run.id} stopped when its interval reached ±${stored.targetError}, and "${overrides.method}" is a fixed-sample interval, which loses its coverage at a stop chosen by the data; use ${SEQUENCE_METHODS.join(', ')}, or add --ignore-stop for a what-if that ignores how the run stopped`,
+    );
+  }
   const facts = run.facts as EnvironmentFacts;
   const episodes = loadEpisodes(db, run);
   if (episodes.returns.length < 2) {
@@ -199,7 +213,7 @@ export function analyzeStoredRun(
       method: overrides.method ?? stored.method ?? 't',
       level: overrides.level ?? stored.level,
       bounds: stored.bounds,
-      targetError: overrides.method ? null : stored.targetError,
+      targetError: fixedOverride ? null : stored.targetError,
       sigma: stored.sigma ?? null,
       seed: run.seed,
       start: run.start,
@@ -208,4 +222,25 @@ export function analyzeStoredRun(
     { steps: run.steps, seconds: run.seconds, workers: stored.workers },
     run.episodesRequested,
   );
+}
+
+/**
+ * The confidence sequence a stored run stopped on (or, for `--ci betting`, the one it reported),
+ * as a factory for a fresh copy: what its convergence plot draws, so that the band is the run's
+ * own interval at every n rather than a fixed-n band. Null for a fixed-sample run.
+ */
+export function storedRunSequence(run: RunRecord, level?: number): { method: string; make: () => RunningInterval } | null {
+  const stored = run.options as unknown as StoredOptions;
+  const facts = run.facts as EnvironmentFacts;
+  const method = stored.method ?? (stored.targetError !== null ? (run.summary as { ci?: { method?: string } } | null)?.ci?.method : undefined);
+  if (method === undefined || !isSequenceMethod(method)) return null;
+  const settings: SequenceSettings = {
+    method,
+    level: level ?? stored.level,
+    bounds: stored.bounds ?? facts.returnBounds,
+    sigma: stored.sigma ?? null,
+    targetError: stored.targetError ?? Number.NaN,
+    plannedEpisodes: stored.targetError === null ? run.episodesRequested : null,
+  };
+  return { method, make: () => makeRunningInterval(settings) };
 }

@@ -59,6 +59,7 @@ export function compareJson(result: ComparisonResult, labels: { env: string; pol
     analysis_seconds: result.analysisSeconds,
     workers: result.request.workers,
     interrupted: result.interrupted,
+    warnings: result.warnings,
     reckon_version: version,
   };
 }

@@ -60,6 +60,7 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
           : `pairing bought little here (${sig(pair.varianceReduction, 3)}×: the policies' returns hardly move together)`),
     );
   });
+  if (result.warnings.length > 0) lines.push('', ...result.warnings.map((w) => `  warning: ${w}`));
   if (multiple) lines.push('', `  With ${comparison.pairs.length} pairs, p-values are Holm-adjusted (Holm 1979) to keep the chance of any false difference at ${(100 - result.request.level * 100).toFixed(0)}%.`);
   lines.push('', `  time ${timeSplit(result.samplingSeconds, result.analysisSeconds)} on ${result.request.workers} worker${result.request.workers === 1 ? '' : 's'}`);
   if (result.interrupted) lines.push(`  Stopped early after ${count(result.episodes)} episodes; the figures above use those.`);

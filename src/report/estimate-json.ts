@@ -46,6 +46,7 @@ export function estimateJson(result: EstimateResult, labels: { env: string; poli
     episodes_per_second: result.samplingSeconds > 0 ? result.episodes / result.samplingSeconds : null,
     workers: result.workers,
     interrupted: result.interrupted,
+    warnings: result.warnings,
     reckon_version: version,
   };
 }

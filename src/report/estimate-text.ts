@@ -38,6 +38,7 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
         : `  target           ±${fixed(t.error, decimalsFor(t.error))} NOT reached within ${count(t.maxEpisodes)} episodes; reached ±${fixed(ci.halfWidth, d)}`,
     );
   }
+  for (const warning of result.warnings) lines.push(`  warning          ${warning}`);
   lines.push(`  spread           std ${sig(result.std)}, standard error ${sig(result.stderr)}, returns from ${sig(result.min)} to ${sig(result.max)}`);
   lines.push(`  episodes         ${count(result.episodes)} with seed ${result.seed}; mean length ${sig(result.meanLength, 3)} steps, longest ${count(result.longestEpisode)}`);
   lines.push(`  horizon          ${count(facts.horizon)} steps, discount ${facts.discount}`);

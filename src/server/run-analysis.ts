@@ -1,5 +1,5 @@
 import type { EstimateResult } from '../evaluate/estimate.js';
-import { analyzeStoredRun } from '../evaluate/stored-estimate.js';
+import { analyzeStoredRun, type AnalysisOverrides } from '../evaluate/stored-estimate.js';
 import { exactForRun, type RunExactValues } from '../report/plots/exact-for-run.js';
 import type { CiMethod } from '../stats/index.js';
 import type { Db } from '../store/open.js';
@@ -20,8 +20,8 @@ export class RunAnalysisCache {
 
   constructor(private readonly db: Db) {}
 
-  figures(run: RunRecord, overrides: { method?: CiMethod; level?: number }, stable: boolean): EstimateResult {
-    return this.get(`figures|${run.id}|${overrides.method ?? ''}|${overrides.level ?? ''}`, stable, () => analyzeStoredRun(this.db, run, overrides));
+  figures(run: RunRecord, overrides: AnalysisOverrides, stable: boolean): EstimateResult {
+    return this.get(`figures|${run.id}|${overrides.method ?? ''}|${overrides.level ?? ''}|${overrides.ignoreStop ? 1 : 0}`, stable, () => analyzeStoredRun(this.db, run, overrides));
   }
 
   episodes(run: RunRecord, stable: boolean): { returns: Float64Array; lengths: Uint32Array } {

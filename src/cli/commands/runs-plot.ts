@@ -1,5 +1,6 @@
 import { writeFileSync } from 'node:fs';
 import { InputError } from '../../errors.js';
+import { storedRunSequence } from '../../evaluate/stored-estimate.js';
 import { exactForRun } from '../../report/plots/exact-for-run.js';
 import { RUN_PLOT_KINDS, runPlotSpec, type RunPlotKind } from '../../report/plots/run-plots.js';
 import { renderSvg } from '../../report/plots/svg.js';
@@ -45,7 +46,8 @@ export async function plot(args: string[], help: string): Promise<number> {
             run.start,
           )
         : null;
-    const spec = runPlotSpec(kind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact });
+    const sequence = kind === 'convergence' ? storedRunSequence(run, level) : null;
+    const spec = runPlotSpec(kind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact, sequence });
     if (spec === null) throw new InputError('--kind', `value-map needs a gridworld run whose policy has known probabilities (run ${run.id} has none)`);
     svg = await renderSvg(spec);
   } finally {

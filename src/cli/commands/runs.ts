@@ -22,7 +22,7 @@ export const HELP = `reckon runs: review, re-analyse, export, resume and merge s
 
 Usage:
   reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--json]
-  reckon runs show ID [--ci METHOD] [--confidence L] [--json]
+  reckon runs show ID [--ci METHOD] [--confidence L] [--ignore-stop] [--json]
   reckon runs export ID --format csv|json [--out FILE]
   reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]
   reckon runs resume ID [--workers K] [--step-timeout SECONDS] [--json]
@@ -34,7 +34,9 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
 
   list     newest first: id, start time, environment, policy, episodes, mean ± half-width, status
   show     the estimate's report recomputed from the stored returns; --ci and --confidence
-           re-analyse them without new episodes
+           re-analyse them without new episodes. A run that stopped at a target error keeps
+           an anytime-valid sequence (betting, empirical-bernstein, ...); --ignore-stop allows
+           a fixed-sample interval as a what-if
   export   every episode's return and length, for a notebook or a spreadsheet
   plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
            returns, lengths, or value-map (gridworlds)
@@ -116,10 +118,10 @@ function list(args: string[]): number {
 }
 
 function show(args: string[]): number {
-  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, ci: { type: 'string' }, confidence: { type: 'string' } }, true);
+  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, ci: { type: 'string' }, confidence: { type: 'string' }, 'ignore-stop': { type: 'boolean' } }, true);
   if (wantsHelp(values)) return 0;
   const id = oneId('show', positionals);
-  const method = values.ci === undefined ? undefined : parseOption('ci', 'ci', values.ci);
+  const method = values.ci === undefined ? undefined : parseOption('ci', 'interval', values.ci);
   const level = values.confidence === undefined ? undefined : parseOption('confidence', 'confidence', values.confidence);
   const { db, label } = storeFor(values.store);
   try {
@@ -143,7 +145,7 @@ function show(args: string[]): number {
       else process.stdout.write(`${header}  ${run.episodesDone} episode(s) stored: too few for an interval.\n${statusNote(run, values.store ?? '')}`);
       return 0;
     }
-    const result = analyzeStoredRun(db, run, { method, level, onAnalysis });
+    const result = analyzeStoredRun(db, run, { method, level, onAnalysis, ignoreStop: values['ignore-stop'] === true });
     progress.clear();
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) {

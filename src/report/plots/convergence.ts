@@ -1,4 +1,4 @@
-import { tQuantile } from '../../stats/index.js';
+import { tQuantile, type RunningInterval } from '../../stats/index.js';
 import { COLOURS, PLOT_CONFIG, VEGA_LITE_SCHEMA, type PlotSpec } from './palette.js';
 
 export interface ConvergencePoint {
@@ -39,6 +39,27 @@ export function convergenceSeries(returns: Float64Array, level: number, points =
   return out;
 }
 
+/**
+ * Running mean and the run's own confidence sequence after n episodes, at the same log-spaced
+ * n as {@link convergenceSeries}: for a run that stopped at a target error this is the
+ * interval it stopped on, valid at every n at once, not a fixed-n band.
+ */
+export function sequenceSeries(returns: Float64Array, sequence: RunningInterval, points = 160): ConvergencePoint[] {
+  const out: ConvergencePoint[] = [];
+  const checkpoints = logCheckpoints(returns.length, points);
+  let done = 0;
+  let sum = 0;
+  for (const n of checkpoints) {
+    const chunk = returns.subarray(done, n);
+    sequence.add(chunk);
+    for (let i = 0; i < chunk.length; i++) sum += chunk[i];
+    done = n;
+    const interval = sequence.interval();
+    out.push({ episodes: n, mean: sum / n, low: interval.low, high: interval.high });
+  }
+  return out;
+}
+
 /** Distinct integers from 2 to n, about `points` of them, evenly spaced in log n. */
 export function logCheckpoints(n: number, points: number): number[] {
   const result: number[] = [];
@@ -63,6 +84,8 @@ export interface ConvergenceLabels {
   readonly exact?: number | null;
   readonly width?: number;
   readonly height?: number;
+  /** The band's name when it is the run's confidence sequence; absent: a pointwise t band. */
+  readonly sequence?: string;
 }
 
 /** Running mean against episodes (log axis) with its interval band, and the exact value if known. */
@@ -102,7 +125,9 @@ export function convergenceSpec(series: readonly ConvergencePoint[], labels: Con
     $schema: VEGA_LITE_SCHEMA,
     title: {
       text: labels.title,
-      subtitle: `line: mean of the first n returns; band: ${percent} t-interval at each n` + (labels.exact != null ? '; dashed: exact value' : ''),
+      subtitle:
+        `line: mean of the first n returns; band: ${labels.sequence ? `the run's ${percent} ${labels.sequence} confidence sequence (valid at every n at once)` : `${percent} t-interval at each n`}` +
+        (labels.exact != null ? '; dashed: exact value' : ''),
     },
     width: labels.width ?? 560,
     height: labels.height ?? 280,

@@ -1,4 +1,5 @@
-import { convergenceSeries, convergenceSpec } from './convergence.js';
+import type { RunningInterval } from '../../stats/index.js';
+import { convergenceSeries, convergenceSpec, sequenceSeries } from './convergence.js';
 import type { RunExactValues } from './exact-for-run.js';
 import { histogramBins, histogramSpec } from './histogram.js';
 import { COLOURS, type PlotSpec } from './palette.js';
@@ -15,6 +16,8 @@ export interface RunPlotInput {
   readonly returns: Float64Array;
   readonly lengths: Uint32Array;
   readonly exact: RunExactValues | null;
+  /** The confidence sequence the run stopped on, drawn instead of a t band. */
+  readonly sequence?: { readonly method: string; readonly make: () => RunningInterval } | null;
 }
 
 /** The plot of one kind for a stored run, or null when it does not apply (a value map of a code environment). */
@@ -22,9 +25,10 @@ export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { widt
   const what = `${input.policyLabel} on ${input.envLabel} (run ${input.runId}, ${input.returns.length.toLocaleString('en-US')} episodes)`;
   switch (kind) {
     case 'convergence':
-      return convergenceSpec(convergenceSeries(input.returns, input.level), {
+      return convergenceSpec(input.sequence ? sequenceSeries(input.returns, input.sequence.make()) : convergenceSeries(input.returns, input.level), {
         title: `Convergence: ${what}`,
         level: input.level,
+        sequence: input.sequence?.method,
         exact: input.exact?.value ?? null,
         ...size,
       });

@@ -1,6 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import { z } from 'zod';
 import { InputError, NotFoundError } from '../../errors.js';
+import { storedRunSequence } from '../../evaluate/stored-estimate.js';
 import { RUN_PLOT_KINDS, runPlotSpec, type RunPlotKind } from '../../report/plots/run-plots.js';
 import type { ServerContext } from '../context.js';
 import { queryOptions } from '../query.js';
@@ -68,7 +69,8 @@ export function runDataRoutes(app: FastifyInstance, ctx: ServerContext): void {
     const level = q.confidence === undefined ? (stored.level ?? 0.95) : z.coerce.number().gt(0).lt(1).parse(q.confidence);
     const { returns, lengths } = ctx.analysis.episodes(run, isSettled(ctx, run));
     const exact = kind === 'convergence' || kind === 'value-map' ? await ctx.analysis.exact(run) : null;
-    const spec = runPlotSpec(kind as RunPlotKind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact });
+    const sequence = kind === 'convergence' ? storedRunSequence(run, level) : null;
+    const spec = runPlotSpec(kind as RunPlotKind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact, sequence });
     if (spec === null) throw new NotFoundError(`plot "${kind}"`, `does not apply to run ${run.id} (a value map needs a gridworld and a policy with known probabilities)`);
     return spec;
   });

@@ -44,8 +44,12 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
   });
 
   app.get<{ Params: { id: string } }>('/api/runs/:id', async (request) => {
-    const q = queryOptions(request.query, ['ci', 'confidence']);
-    const method = q.ci === undefined ? undefined : parseOption('ci', 'ci', q.ci);
+    const q = queryOptions(request.query, ['ci', 'confidence', 'ignore_stop']);
+    const method = q.ci === undefined ? undefined : parseOption('ci', 'interval', q.ci);
+    if (q.ignore_stop !== undefined && q.ignore_stop !== 'true' && q.ignore_stop !== 'false') {
+      throw new InputError('ignore_stop', `must be true or false (got "${q.ignore_stop}")`);
+    }
+    const ignoreStop = q.ignore_stop === 'true';
     const level = q.confidence === undefined ? undefined : parseOption('confidence', 'confidence', q.confidence);
     const run = findStoredRun(ctx, request.params.id);
     const live = liveState(ctx, run);
@@ -56,7 +60,7 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
     // engine): recomputing every figure from millions of stored returns on each request would
     // hold up every other request. The full figures come once it has ended.
     if (run.episodesDone < 2 || !isSettled(ctx, run)) return { ...runPendingJson(run), status: live.status, progress: live.progress };
-    const result = ctx.analysis.figures(run, { method, level }, true);
+    const result = ctx.analysis.figures(run, { method, level, ignoreStop }, true);
     return { ...runShowJson(run, result), status: live.status, progress: live.progress };
   });
 
