@@ -141,6 +141,13 @@ export function summarise(trials, prepared, machine) {
       : { error: storeTrial.runs[0]?.error }
     : null;
 
+  const sequences = trials
+    .filter((t) => t.group === 'sequence')
+    .map((t) => {
+      const runs = ok(t.runs);
+      return { method: t.runnerLabel, episodes: t.size, seconds: median(runs.map((r) => r.seconds)), cpuSeconds: median(runs.map((r) => r.cpuSeconds)), halfWidth: runs[0]?.halfWidth, rebuilds: runs[0]?.rebuilds };
+    });
+
   const startupMs = (label) => {
     const t = find(trials, { group: 'startup', runnerLabel: label });
     return t ? median(ok(t.runs).map((r) => r.seconds * 1000)) : NaN;
@@ -160,8 +167,10 @@ export function summarise(trials, prepared, machine) {
   const kept = memory.find((m) => m.label.startsWith('engine, returns kept'));
   goal('memory per kept episode (engine)', '<= 12 bytes', kept?.bytesPerEpisode, kept?.bytesPerEpisode <= 12);
   goal('reckon --help', '< 150 ms', startup.helpMs, startup.helpMs < 150);
+  const betting = sequences.find((q) => q.method === 'betting');
+  goal('betting sequence, 10⁶ episodes, one core (CPU time)', '<= 2 s', betting?.cpuSeconds, betting?.cpuSeconds <= 2);
 
-  return { machine, workloads, throughputScaling, costs, states, horizons, memory, store, startup, goals };
+  return { machine, workloads, throughputScaling, costs, states, horizons, memory, store, sequences, startup, goals };
 }
 
 const fmt = (x, digits = 1) => (Number.isFinite(x) ? x.toFixed(digits) : '–');
@@ -244,6 +253,15 @@ export function render(s) {
             `(${fmt(s.store.bytes / s.store.episodes, 1)} bytes an episode), ${fmt(s.store.readSeconds, 2)} s to read back${s.store.roundTrip ? ' (identical)' : ' (**not identical**)'}.`,
     );
   }
+  if (s.sequences?.length) {
+    lines.push('');
+    lines.push(`A target-error run's confidence sequence over ${s.sequences[0].episodes.toLocaleString('en')} returns (Bernoulli(0.1)), each added and checked in turn, one core:`);
+    lines.push('');
+    lines.push('| sequence | wall seconds | CPU seconds | half-width at the end | grid rebuilds |');
+    lines.push('|---|---:|---:|---:|---:|');
+    for (const q of s.sequences) lines.push(`| ${q.method} | ${fmt(q.seconds, 2)} | ${fmt(q.cpuSeconds, 2)} | ${Number.isFinite(q.halfWidth) ? q.halfWidth.toPrecision(3) : '–'} | ${q.rebuilds ?? '–'} |`);
+    lines.push('');
+  }
   if (Number.isFinite(s.startup.helpMs)) {
     lines.push(`Start-up: \`reckon --help\` ${fmt(s.startup.helpMs, 0)} ms (median); Node alone (\`node -e 0\`) ${fmt(s.startup.nodeMs, 0)} ms.`);
   }
@@ -253,7 +271,7 @@ export function render(s) {
   lines.push('| design target | threshold | measured | met |');
   lines.push('|---|---|---:|:---:|');
   for (const g of s.goals) {
-    const measured = g.name.includes('identical') ? (g.met === null ? '–' : g.met ? 'same' : 'differ') : g.name.includes('overhead') ? `${fmt(100 * g.measured, 1)}%` : g.name.includes('help') ? `${fmt(g.measured, 0)} ms` : g.name.includes('memory') ? `${fmt(g.measured, 1)} B` : ratio(g.measured);
+    const measured = g.name.includes('identical') ? (g.met === null ? '–' : g.met ? 'same' : 'differ') : g.name.includes('overhead') ? `${fmt(100 * g.measured, 1)}%` : g.name.includes('help') ? `${fmt(g.measured, 0)} ms` : g.name.includes('memory') ? `${fmt(g.measured, 1)} B` : g.name.includes('sequence') ? `${fmt(g.measured, 2)} s` : ratio(g.measured);
     lines.push(`| ${g.name} | ${g.target} | ${measured} | ${yesNo(g.met)} |`);
   }
   lines.push('');

@@ -197,6 +197,32 @@ const RUNNERS = {
     return { seconds: Object.values(steps).reduce((x, y) => x + y, 0), steps, episodes, distinct };
   },
 
+  /**
+   * One target-error sequence over `episodes` returns made up front (not timed; Bernoulli(0.1)
+   * on the engine's streams): add one return, check the half-width, as runEstimate does, then
+   * the final report (the betting sequence's refined endpoints).
+   */
+  async sequence({ method, episodes, seed }) {
+    const { makeRunningInterval, sequenceInterval } = await import('../../dist/evaluate/sequence.js');
+    const { streamFor } = await import('../../dist/engine/streams.js');
+    const rng = streamFor(seed, 11, 0);
+    const returns = Float64Array.from({ length: episodes }, () => (rng.uniform() < 0.1 ? 1 : 0));
+    // a target reached near the end: bets tuned to about this many episodes; every episode is fed and checked
+    const settings = { method, level: 0.95, bounds: [0, 1], sigma: null, targetError: 7e-4 };
+    const { result, seconds, cpuSeconds } = await timed(() => {
+      const sequence = makeRunningInterval(settings);
+      const one = new Float64Array(1);
+      let narrowest = Infinity;
+      for (let i = 0; i < episodes; i++) {
+        one[0] = returns[i];
+        sequence.add(one);
+        narrowest = Math.min(narrowest, sequence.interval().halfWidth);
+      }
+      return { narrowest, final: sequenceInterval(sequence, settings, false, 0).halfWidth, rebuilds: sequence.rebuilds ?? null };
+    });
+    return { seconds, cpuSeconds, episodes, halfWidth: result.final, rebuilds: result.rebuilds };
+  },
+
   /** Wall time of a command started from scratch (e.g. `reckon --help`). */
   async command({ argv }) {
     const { seconds, cpuSeconds } = await timed(() => execFileSync(argv[0], argv.slice(1), { stdio: ['ignore', 'ignore', 'inherit'] }));

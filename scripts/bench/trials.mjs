@@ -58,6 +58,10 @@ export function buildTrials({ prepared, scaling, cores, binary, root }) {
     trials.push({ group: 'memory', size: episodes, runnerLabel: 'engine, returns kept', run: { runner: 'episodes', ...base, keep: true } });
     trials.push({ group: 'memory', size: episodes, runnerLabel: 'estimate (runEstimate, t)', run: { runner: 'estimate', ...base } });
   }
+  // A target-error run's sequence, fed one return at a time and checked after each, as the run does.
+  for (const method of ['betting', 'empirical-bernstein']) {
+    trials.push({ group: 'sequence', size: 1_000_000, runnerLabel: method, run: { runner: 'sequence', method, episodes: 1_000_000, seed } });
+  }
   trials.push({ group: 'store', size: 1_000_000, runnerLabel: 'store', run: { runner: 'store', episodes: 1_000_000, chunk: 16_384, seed } });
   const main = path.join(root, 'dist', 'cli', 'main.js');
   trials.push({ group: 'startup', runnerLabel: 'reckon --help', run: { runner: 'command', argv: [process.execPath, main, '--help'] } });

@@ -96,7 +96,7 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
       // A user's σ is for one return; a difference of two such returns is at most 2σ-sub-Gaussian.
       const sigma = request.sigma === null ? null : 2 * request.sigma;
       const method = chooseSequence(request.sequence, bounds, sigma);
-      return { method, level: request.level, bounds, sigma, targetError: request.targetError! };
+      return { method, level: request.level, bounds, sigma, targetError: request.targetError!, plannedEpisodes: request.episodes };
     });
     sequence = pairSettings[0].method;
     sequences = pairSettings.map(makeRunningInterval);
@@ -225,6 +225,7 @@ export function summarizeComparison(
         bounds: boundsA && boundsB ? differenceBounds(boundsA, boundsB) : null,
         sigma: request.sigma === null ? null : 2 * request.sigma,
         targetError: request.targetError!,
+        plannedEpisodes: request.episodes,
       };
       const running = makeRunningInterval(settings);
       const a = buffers[pair.first].view();

@@ -111,7 +111,7 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   let sequenceSettings: SequenceSettings | null = null;
   if (request.targetError !== null) {
     const choice = chooseSequence(request.method, bounds, sigma);
-    sequenceSettings = { method: choice, level: request.level, bounds, sigma, targetError: request.targetError };
+    sequenceSettings = { method: choice, level: request.level, bounds, sigma, targetError: request.targetError, plannedEpisodes: request.episodes };
     method = choice;
   } else {
     const fixed = request.method ?? 't';

@@ -18,7 +18,7 @@ export interface FigureSettings {
   readonly seed: number;
   readonly start: string | null;
   readonly onAnalysis?: AnalysisProgress;
-  /** False when a sequence is read without a planned size (a comparison's members); default: the requested episodes. */
+  /** False when a sequence is read without a planned size or cap (a comparison's members); default: the requested episodes. */
   readonly plannedEpisodes?: false;
 }
 
@@ -106,7 +106,7 @@ export function computeFigures(
       sigma: settings.sigma,
       targetError: settings.targetError ?? Number.NaN,
       // A fixed-size betting run tunes its bets to its planned size.
-      plannedEpisodes: settings.targetError === null && settings.plannedEpisodes !== false ? requestedEpisodes : null,
+      plannedEpisodes: settings.plannedEpisodes !== false ? requestedEpisodes : null,
     };
     // A fresh run hands over the sequence it fed while running; a re-analysis replays it.
     const sequence = live ?? makeRunningInterval(sequenceSettings);

@@ -34,7 +34,8 @@ export interface SequenceSettings {
   readonly targetError: number;
   /**
    * A fixed-size run's planned episodes, to which the betting sequence tunes its bets when there
-   * is no target; null (and no target) bets for open-ended monitoring.
+   * is no target, or a target-error run's cap, beyond which its bets are never tuned; null (and
+   * no target) bets for open-ended monitoring.
    */
   readonly plannedEpisodes?: number | null;
 }
@@ -89,7 +90,9 @@ export function makeRunningInterval(settings: SequenceSettings): RunningInterval
 
 /** Bets aimed at the target when there is one, else tuned to the planned size, else open-ended. */
 function betSchedule(settings: SequenceSettings): BetSchedule {
-  if (Number.isFinite(settings.targetError) && settings.targetError > 0) return { kind: 'target', halfWidth: settings.targetError };
+  if (Number.isFinite(settings.targetError) && settings.targetError > 0) {
+    return { kind: 'target', halfWidth: settings.targetError, maxEpisodes: settings.plannedEpisodes ?? undefined };
+  }
   if (settings.plannedEpisodes != null) return { kind: 'planned', episodes: settings.plannedEpisodes };
   return { kind: 'anytime' };
 }

@@ -240,7 +240,7 @@ export function storedRunSequence(run: RunRecord, level?: number): { method: str
     bounds: stored.bounds ?? facts.returnBounds,
     sigma: stored.sigma ?? null,
     targetError: stored.targetError ?? Number.NaN,
-    plannedEpisodes: stored.targetError === null ? run.episodesRequested : null,
+    plannedEpisodes: run.episodesRequested,
   };
   return { method, make: () => makeRunningInterval(settings) };
 }

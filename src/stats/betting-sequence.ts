@@ -13,12 +13,13 @@ import { makeSequentialInterval, requireValidBounds, unitScaled, type RunningInt
  *   "betting CI", Section 4.3), still valid at every t;
  * - `target`: aimed at a target half-width E (in return units), tuned to the horizon at which
  *   a tuned sequence reaches E: n*_t = max(t, 2 ln(2/α) σ̂²_{t−1}/e²), e = E/(b − a)
- *   (docs/methods.md §6.6).
+ *   (docs/methods.md §6.6). A run's cap bounds the horizon: bets are never tuned beyond the
+ *   episodes the run may take.
  */
 export type BetSchedule =
   | { readonly kind: 'anytime' }
   | { readonly kind: 'planned'; readonly episodes: number }
-  | { readonly kind: 'target'; readonly halfWidth: number };
+  | { readonly kind: 'target'; readonly halfWidth: number; readonly maxEpisodes?: number };
 
 export interface BettingOptions {
   /** Two-sided confidence level, e.g. 0.95. */
@@ -210,7 +211,7 @@ export class BettingSequence implements RunningInterval {
     let horizon: number;
     if (schedule.kind === 'anytime') horizon = t * Math.log1p(t);
     else if (schedule.kind === 'planned') horizon = schedule.episodes;
-    else horizon = Math.max(t, (2 * this.logTerm * variance) / (this.unitTarget * this.unitTarget));
+    else horizon = Math.max(t, Math.min((2 * this.logTerm * variance) / (this.unitTarget * this.unitTarget), schedule.maxEpisodes ?? Infinity));
     return Math.sqrt((2 * this.logTerm) / (variance * horizon));
   }
 
