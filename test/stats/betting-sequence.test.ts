@@ -111,3 +111,35 @@ describe('betting confidence sequence (Waudby-Smith & Ramdas 2024, Theorem 3)', 
     }
   });
 });
+
+describe('report helpers for sequences', () => {
+  it('prints mean ± h only for an interval centred on the mean, else mean (low … high)', async () => {
+    const { meanWithInterval } = await import('../../src/report/format.js');
+    expect(meanWithInterval(1, 0.9, 1.1, 2)).toBe('1.00 ± 0.10');
+    // the off-centre example of a 60-state MDP run: 4.221 with interval 4.132 … 4.232
+    expect(meanWithInterval(4.221, 4.132, 4.232, 3)).toBe('4.221 (4.132 … 4.232)');
+  });
+
+  it('the convergence plot of a sequence run draws the sequence itself, which only narrows', async () => {
+    const { sequenceSeries } = await import('../../src/report/plots/convergence.js');
+    const data = seqB(5000);
+    const series = sequenceSeries(data, new BettingSequence({ level: 0.95, bounds: [0, 1], schedule: { kind: 'anytime' } }), 40);
+    const direct = new BettingSequence({ level: 0.95, bounds: [0, 1], schedule: { kind: 'anytime' } });
+    direct.add(data);
+    expect(series.at(-1)!.low).toBe(direct.interval().low);
+    expect(series.at(-1)!.high).toBe(direct.interval().high);
+    for (let k = 1; k < series.length; k++) {
+      expect(series[k].low).toBeGreaterThanOrEqual(series[k - 1].low);
+      expect(series[k].high).toBeLessThanOrEqual(series[k - 1].high);
+    }
+  });
+
+  it('warns about bootstrap differences with many ties below 200 pairs, not above', async () => {
+    const { differenceWarnings } = await import('../../src/evaluate/interval-advice.js');
+    const tied = Float64Array.from({ length: 100 }, (_, i) => (i % 2 === 0 ? 0 : i % 7));
+    expect(differenceWarnings('bootstrap', tied).join(' ')).toMatch(/57% of the 100 pairs.*prefer --ci t/);
+    expect(differenceWarnings('t', tied)).toEqual([]);
+    const many = Float64Array.from({ length: 400 }, (_, i) => (i % 2 === 0 ? 0 : i % 7));
+    expect(differenceWarnings('bootstrap', many)).toEqual([]);
+  });
+});
