@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { definitionHash } from '../store/definition-hash.js';
 import { machineFacts } from '../store/machine.js';
 import type { Db } from '../store/open.js';
-import { appendChunk, createRun, finishRun, keepHeartbeat, listRuns, loadEpisodes, type RunRecord } from '../store/runs.js';
+import { appendChunk, createRun, finishRun, keepHeartbeat, listMembers, loadEpisodes, type RunRecord } from '../store/runs.js';
 import { HEARTBEAT_SECONDS } from '../store/owner.js';
 import { InputError } from '../errors.js';
 import type { DifferenceMethod } from '../stats/index.js';
@@ -143,9 +143,7 @@ function comparisonSummary(result: ComparisonResult): Record<string, unknown> {
 /** A stored comparison recomputed from its member runs' stored returns. */
 export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: AnalysisProgress): { result: ComparisonResult; labels: { env: string; policies: string[] } } {
   const options = run.options as unknown as ComparisonOptions;
-  const members = listRuns(db, { parentId: run.id, limit: 1000 }).sort(
-    (x, y) => (x.options.policyIndex as number) - (y.options.policyIndex as number),
-  );
+  const members = listMembers(db, run.id);
   if (members.length < 2) throw new InputError(`run ${run.id}`, 'is a comparison whose member runs are missing');
   const facts = members.map((m) => m.facts as EnvironmentFacts);
   const buffers = members.map((m, p) => {

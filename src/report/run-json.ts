@@ -1,9 +1,15 @@
 import type { EstimateResult } from '../evaluate/estimate.js';
 import { estimateJson } from '../report/estimate-json.js';
 import type { RunRecord } from '../store/runs.js';
+import type { ComparisonResult } from '../evaluate/compare.js';
+import { compareJson } from './compare-json.js';
+import { withSnakeCaseKeys } from './snake-case.js';
 
-/** A row of `GET /api/runs`: the fields of `reckon runs list --json`. */
-export function runListRow(r: RunRecord) {
+/**
+ * A row of `GET /api/runs`: the fields of `reckon runs list --json`. A comparison lists its
+ * member runs' ids; a member names its comparison in `parent_id`.
+ */
+export function runListRow(r: RunRecord, members: readonly RunRecord[] | null = null) {
   return {
     id: r.id,
     kind: r.kind,
@@ -18,8 +24,20 @@ export function runListRow(r: RunRecord) {
     episodes: r.kind === 'comparison' ? Number((r.summary as { episodes?: number } | null)?.episodes ?? 0) : r.episodesDone,
     episodes_requested: r.episodesRequested,
     shard: r.shard,
-    summary: r.summary,
+    // Summaries were first stored with camelCase interval keys: both spellings are given.
+    summary: withSnakeCaseKeys(r.summary),
+    ci_method: intervalMethod(r),
+    parent_id: r.parentId,
+    ...(r.kind === 'comparison' && members ? { members: members.map((m) => m.id) } : {}),
   };
+}
+
+/** The interval method a run reports with (as chosen, or as stored in its summary). */
+export function intervalMethod(r: RunRecord): string | null {
+  const summary = r.summary as { ci?: { method?: string } } | null;
+  if (summary?.ci?.method) return summary.ci.method;
+  const options = r.options as { method?: string | null; sequence?: string | null };
+  return options.sequence ?? options.method ?? null;
 }
 
 /**
@@ -40,6 +58,22 @@ function provenance(run: RunRecord) {
     machine: run.machine,
     /** Why a failed run failed (null otherwise). */
     error: run.error,
+  };
+}
+
+/**
+ * What `runs show ID --json` and `GET /api/comparisons/:id` print for a comparison: the
+ * `compare --json` object, each policy with its member run's id, the ids in `members`, and
+ * the run's provenance.
+ */
+export function comparisonShowJson(run: RunRecord, result: ComparisonResult, labels: { env: string; policies: string[] }, members: readonly RunRecord[]) {
+  const json = compareJson(result, labels, run.toolVersion, run.id);
+  return {
+    ...json,
+    policies: json.policies.map((p, i) => ({ ...p, run_id: members[i]?.id ?? null })),
+    kind: 'comparison' as const,
+    members: members.map((m) => m.id),
+    ...provenance(run),
   };
 }
 

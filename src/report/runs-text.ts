@@ -9,31 +9,47 @@ function clip(text: string, width: number): string {
   return text.length <= width ? text : `…${text.slice(text.length - width + 1)}`;
 }
 
-/** One line a run, newest first: what `reckon runs list` prints. */
-export function runsListText(runs: readonly RunRecord[]): string {
+/** The interval method a run's figures use, short enough for a column. */
+function methodOf(run: RunRecord): string {
+  const summary = run.summary as { ci?: { method?: string } } | null;
+  const options = run.options as { method?: string | null; sequence?: string | null };
+  return summary?.ci?.method ?? options.sequence ?? options.method ?? '';
+}
+
+function rowOf(run: RunRecord, id: string): string[] {
+  const summary = run.summary as {
+    mean?: number;
+    ci?: { halfWidth?: number; half_width?: number; level?: number; method?: string };
+    differences?: { a: number; b: number; mean: number; half_width: number }[];
+  } | null;
+  let estimate = '';
+  const halfWidth = summary?.ci?.half_width ?? summary?.ci?.halfWidth;
+  if (run.kind === 'comparison' && summary?.differences?.length) {
+    const first = summary.differences[0];
+    const d = decimalsFor(first.half_width);
+    const more = summary.differences.length > 1 ? ` (+${summary.differences.length - 1} pairs)` : '';
+    estimate = `Δ[${first.a}−${first.b}] ${first.mean >= 0 ? '+' : ''}${fixed(first.mean, d)} ± ${fixed(first.half_width, d)}${more}`;
+  } else if (summary?.mean !== undefined && halfWidth !== undefined) {
+    const d = decimalsFor(halfWidth);
+    estimate = `${fixed(summary.mean, d)} ± ${fixed(halfWidth, d)}`;
+  }
+  const done = run.kind === 'comparison' ? Number((summary as { episodes?: number } | null)?.episodes ?? 0) : run.episodesDone;
+  const episodes = run.status === 'done' ? count(done) : `${count(done)}/${count(run.episodesRequested)}`;
+  const policy = run.kind === 'comparison' ? run.policy.label.split(' vs ').map((p) => p.split('/').pop()).join(' vs ') : run.policy.label;
+  const shard = run.shard ? ` [${run.shard.index}/${run.shard.count}]` : '';
+  return [id, shortTime(run.createdAt), clip(run.env.label, 28), clip(policy, 40), episodes + shard, estimate, methodOf(run), run.status];
+}
+
+/**
+ * One line a run, newest first: what `reckon runs list` prints. A comparison's member runs
+ * (one a policy), when given, follow it, indented.
+ */
+export function runsListText(runs: readonly RunRecord[], members: ReadonlyMap<string, readonly RunRecord[]> = new Map()): string {
   if (runs.length === 0) return "No runs stored yet. Start one with 'reckon estimate --env F --policy F'.\n";
-  const rows = [['id', 'started (UTC)', 'environment', 'policy', 'episodes', 'mean ± half-width', 'status']];
+  const rows = [['id', 'started (UTC)', 'environment', 'policy', 'episodes', 'mean ± half-width', 'interval', 'status']];
   for (const run of runs) {
-    const summary = run.summary as {
-      mean?: number;
-      ci?: { halfWidth?: number; level?: number; method?: string };
-      differences?: { a: number; b: number; mean: number; half_width: number }[];
-    } | null;
-    let estimate = '';
-    if (run.kind === 'comparison' && summary?.differences?.length) {
-      const first = summary.differences[0];
-      const d = decimalsFor(first.half_width);
-      const more = summary.differences.length > 1 ? ` (+${summary.differences.length - 1} pairs)` : '';
-      estimate = `Δ[${first.a}−${first.b}] ${first.mean >= 0 ? '+' : ''}${fixed(first.mean, d)} ± ${fixed(first.half_width, d)}${more}`;
-    } else if (summary?.mean !== undefined && summary.ci?.halfWidth !== undefined) {
-      const d = decimalsFor(summary.ci.halfWidth);
-      estimate = `${fixed(summary.mean, d)} ± ${fixed(summary.ci.halfWidth, d)}`;
-    }
-    const done = run.kind === 'comparison' ? Number((summary as { episodes?: number } | null)?.episodes ?? 0) : run.episodesDone;
-    const episodes = run.status === 'done' ? count(done) : `${count(done)}/${count(run.episodesRequested)}`;
-    const policy = run.kind === 'comparison' ? run.policy.label.split(' vs ').map((p) => p.split('/').pop()).join(' vs ') : run.policy.label;
-    const shard = run.shard ? ` [${run.shard.index}/${run.shard.count}]` : '';
-    rows.push([run.id, shortTime(run.createdAt), clip(run.env.label, 28), clip(policy, 40), episodes + shard, estimate, run.status]);
+    rows.push(rowOf(run, run.id));
+    for (const member of members.get(run.id) ?? []) rows.push(rowOf(member, `  └ ${member.id}`));
   }
   return columns(rows, '').join('\n') + '\n';
 }

@@ -317,6 +317,13 @@ export function refuseIfLive(run: RunRecord, what: string): void {
   throw new InputError(`run ${run.id}`, `is still running (process ${run.ownerPid}${where}); stop it first (Ctrl-C, or kill ${run.ownerPid}), or wait for it, then ${what}`);
 }
 
+/** A comparison's member runs (one estimate run per policy), in the order of its policies. */
+export function listMembers(db: Db, parentId: string): RunRecord[] {
+  return (db.prepare('SELECT * FROM runs WHERE parent_id = ?').all(parentId) as RunRow[])
+    .map(toRecord)
+    .sort((x, y) => Number(x.options.policyIndex) - Number(y.options.policyIndex));
+}
+
 export function deleteRun(db: Db, id: string): boolean {
   return db.prepare('DELETE FROM runs WHERE id = ?').run(id).changes > 0;
 }

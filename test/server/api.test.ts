@@ -220,10 +220,12 @@ describe('comparisons over HTTP', () => {
       const done = (await waitForRun(async () => (await app.inject({ url: `/api/comparisons/${id}` })).json())) as Record<string, any>;
       expect(done.status).toBe('done');
       const cli = JSON.parse(reckon(['runs', 'show', id, '--json', '--store', storePath]).stdout);
-      const { progress, members, ...rest } = done;
+      const { progress, ...rest } = done;
       expect(progress).toBeNull();
       expect(withoutAnalysisTime(rest)).toEqual(withoutAnalysisTime(cli));
+      const members = cli.members as string[];
       expect(members).toHaveLength(2);
+      expect(cli.policies.map((p: { run_id: string }) => p.run_id)).toEqual(members);
       // Russell & Norvig's optimal policy (0.705 from the start, AIMA Fig. 17.3) beats moving at random.
       expect(done.ranking).toEqual([0, 1]);
       expect(done.differences[0].low).toBeGreaterThan(0);

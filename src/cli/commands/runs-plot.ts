@@ -1,4 +1,3 @@
-import { writeFileSync } from 'node:fs';
 import { InputError } from '../../errors.js';
 import { storedRunSequence } from '../../evaluate/stored-estimate.js';
 import { exactForRun } from '../../report/plots/exact-for-run.js';
@@ -6,7 +5,8 @@ import { RUN_PLOT_KINDS, runPlotSpec, type RunPlotKind } from '../../report/plot
 import { renderSvg } from '../../report/plots/svg.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
-import { getRun, loadEpisodes } from '../../store/runs.js';
+import { getRun, listMembers, loadEpisodes } from '../../store/runs.js';
+import { writeOutputFile } from '../output-file.js';
 import { parseCommandArgs } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 
@@ -34,7 +34,10 @@ export async function plot(args: string[], help: string): Promise<number> {
   let svg: string;
   try {
     const run = getRun(db, positionals[0], storePath);
-    if (run.kind !== 'estimate') throw new InputError(`run ${run.id}`, `is a ${run.kind} run; plot one of its member runs (reckon runs list --json shows them)`);
+    if (run.kind !== 'estimate') {
+      const members = listMembers(db, run.id).map((m) => m.id);
+      throw new InputError(`run ${run.id}`, `is a ${run.kind} run; plot one of its member runs (${members.join(', ')}), e.g. 'reckon runs plot ${members[0]} --out ${values.out}'`);
+    }
     const level = values.confidence === undefined ? ((run.options as { level?: number }).level ?? 0.95) : parseOption('confidence', 'confidence', values.confidence);
     const { returns, lengths } = loadEpisodes(db, run);
     if (returns.length < 2) throw new InputError(`run ${run.id}`, `has ${returns.length} stored episode(s), too few to plot`);
@@ -53,7 +56,7 @@ export async function plot(args: string[], help: string): Promise<number> {
   } finally {
     db.close();
   }
-  writeFileSync(values.out, svg);
+  writeOutputFile('--out', values.out, svg);
   process.stdout.write(`Wrote the ${kind} plot of run ${positionals[0]} to ${values.out}.\n`);
   return 0;
 }

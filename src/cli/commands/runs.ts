@@ -1,17 +1,16 @@
-import { writeFileSync } from 'node:fs';
 import { InputError } from '../../errors.js';
 import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-estimate.js';
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
-import { runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
+import { comparisonShowJson, runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
 import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
-import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
 import { defaultStorePath } from '../../store/location.js';
 import { mergeShards } from '../../store/merge.js';
 import { openStore, type Db } from '../../store/open.js';
-import { deleteRun, getRun, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
+import { deleteRun, getRun, listMembers, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
+import { writeOutputFile } from '../output-file.js';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { ProgressLine } from '../progress.js';
@@ -21,7 +20,7 @@ import { version } from '../version.js';
 export const HELP = `reckon runs: review, re-analyse, export, resume and merge stored runs
 
 Usage:
-  reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--json]
+  reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--all] [--json]
   reckon runs show ID [--ci METHOD] [--confidence L] [--ignore-stop] [--json]
   reckon runs export ID --format csv|json [--out FILE]
   reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]
@@ -32,12 +31,15 @@ Usage:
 Every subcommand takes --store PATH (default: $RECKON_STORE, else
 ~/.local/share/reckon/runs.sqlite).
 
-  list     newest first: id, start time, environment, policy, episodes, mean ± half-width, status
+  list     newest first: id, start time, environment, policy, episodes, mean ± half-width,
+           interval method, status; a comparison's member runs (one a policy) under it, or
+           with --all as runs of their own
   show     the estimate's report recomputed from the stored returns; --ci and --confidence
            re-analyse them without new episodes. A run that stopped at a target error keeps
            an anytime-valid sequence (betting, empirical-bernstein, ...); --ignore-stop allows
            a fixed-sample interval as a what-if
-  export   every episode's return and length, for a notebook or a spreadsheet
+  export   every episode's return and length, for a notebook or a spreadsheet; for a
+           comparison, the paired returns: one row an episode, one column a policy
   plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
            returns, lengths, or value-map (gridworlds)
   resume   continue an interrupted run (Ctrl-C, a crash, a killed job) from its last
@@ -99,17 +101,25 @@ function wantsHelp(values: { help?: boolean }): boolean {
 }
 
 function list(args: string[]): number {
-  const { values } = parseCommandArgs('runs', args, { ...COMMON, 'env-hash': { type: 'string' }, policy: { type: 'string' }, limit: { type: 'string' } });
+  const { values } = parseCommandArgs('runs', args, {
+    ...COMMON,
+    'env-hash': { type: 'string' },
+    policy: { type: 'string' },
+    limit: { type: 'string' },
+    all: { type: 'boolean' },
+  });
   if (wantsHelp(values)) return 0;
   const limit = values.limit === undefined ? 20 : parseOption('limit', 'limit', values.limit);
   const { db } = storeFor(values.store);
   try {
-    const runs = listRuns(db, { envHash: values['env-hash'], policy: values.policy, limit, parentId: null });
+    // Comparisons' member runs are listed under their comparison, or (--all) as runs of their own.
+    const runs = listRuns(db, { envHash: values['env-hash'], policy: values.policy, limit, parentId: values.all ? undefined : null });
+    const members = new Map(runs.filter((r) => r.kind === 'comparison').map((r) => [r.id, listMembers(db, r.id)]));
     if (values.json) {
-      const rows = runs.map(runListRow);
+      const rows = runs.map((r) => runListRow(r, members.get(r.id) ?? null));
       process.stdout.write(`${JSON.stringify(rows, null, 2)}\n`);
     } else {
-      process.stdout.write(runsListText(runs));
+      process.stdout.write(runsListText(runs, values.all ? new Map() : members));
     }
   } finally {
     db.close();
@@ -131,10 +141,12 @@ function show(args: string[]): number {
     if (run.kind === 'comparison') {
       const { result, labels } = analyzeStoredComparison(db, run, onAnalysis);
       progress.clear();
+      const members = listMembers(db, run.id);
       if (values.json) {
-        process.stdout.write(`${JSON.stringify({ ...compareJson(result, labels, run.toolVersion, run.id), kind: 'comparison', status: run.status, created_at: run.createdAt, env_hash: run.env.hash }, null, 2)}\n`);
+        process.stdout.write(`${JSON.stringify(comparisonShowJson(run, result, labels, members), null, 2)}\n`);
       } else {
-        process.stdout.write(`Run ${run.id} (comparison, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n\n${compareText(result, labels)}`);
+        const parts = members.map((m, p) => `[${p}] ${m.id}`).join(', ');
+        process.stdout.write(`Run ${run.id} (comparison, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n  member runs, one a policy: ${parts}\n\n${compareText(result, labels)}`);
       }
       return 0;
     }
@@ -187,6 +199,10 @@ function exportRun(args: string[]): number {
   let text: string;
   try {
     const run = getRun(db, id, label);
+    if (run.kind === 'comparison') {
+      text = comparisonExport(db, run, format);
+      return finishExport(values.out, text);
+    }
     const { returns, lengths } = loadEpisodes(db, run);
     if (format === 'csv') {
       const lines = ['episode,return,length'];
@@ -198,9 +214,44 @@ function exportRun(args: string[]): number {
   } finally {
     db.close();
   }
-  if (values.out) writeFileSync(values.out, text);
+  return finishExport(values.out, text);
+}
+
+function finishExport(out: string | undefined, text: string): number {
+  if (out) writeOutputFile('--out', out, text);
   else process.stdout.write(text);
   return 0;
+}
+
+/** A CSV field, quoted when it holds a comma, a quote or a line break (RFC 4180). */
+function csvField(text: string): string {
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+/**
+ * A comparison's paired returns: one row an episode, one column a policy, in episode order,
+ * so row i holds what every policy returned facing the same environment noise.
+ */
+function comparisonExport(db: Db, run: RunRecord, format: 'csv' | 'json'): string {
+  const members = listMembers(db, run.id);
+  const names = ((run.options as { policies?: string[] }).policies ?? members.map((m) => m.policy.label));
+  const episodes = members.map((m) => loadEpisodes(db, m));
+  const paired = Math.min(...episodes.map((e) => e.returns.length));
+  if (format === 'json') {
+    return `${JSON.stringify({
+      run_id: run.id,
+      kind: 'comparison',
+      seed: run.seed,
+      first_episode: 0,
+      policies: names,
+      members: members.map((m) => m.id),
+      returns: episodes.map((e) => Array.from(e.returns.subarray(0, paired))),
+      lengths: episodes.map((e) => Array.from(e.lengths.subarray(0, paired))),
+    })}\n`;
+  }
+  const lines = [['episode', ...names].map(csvField).join(',')];
+  for (let i = 0; i < paired; i++) lines.push(`${i},${episodes.map((e) => e.returns[i]).join(',')}`);
+  return lines.join('\n') + '\n';
 }
 
 async function resume(args: string[]): Promise<number> {

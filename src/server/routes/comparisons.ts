@@ -2,8 +2,8 @@ import { randomInt } from 'node:crypto';
 import type { FastifyInstance } from 'fastify';
 import { InputError } from '../../errors.js';
 import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
-import { compareJson } from '../../report/compare-json.js';
-import { listRuns } from '../../store/runs.js';
+import { listMembers } from '../../store/runs.js';
+import { comparisonShowJson } from '../../report/run-json.js';
 import { differencesSpec } from '../../report/plots/differences.js';
 import type { ServerContext } from '../context.js';
 import { comparisonLabels, parseComparisonBody, planComparison } from '../comparison-request.js';
@@ -45,15 +45,8 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
       return { run_id: run.id, kind: 'comparison', env: run.env.label, seed: run.seed, status: live.status, progress: live.progress, created_at: run.createdAt };
     }
     const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
-    return {
-      ...compareJson(result, labels, run.toolVersion, run.id),
-      kind: 'comparison',
-      status: live.status,
-      created_at: run.createdAt,
-      env_hash: run.env.hash,
-      progress: null,
-      members: ctx.analysis.remember(`members|${run.id}`, () => memberIds(ctx, run.id)),
-    };
+    const members = ctx.analysis.remember(`members|${run.id}`, () => listMembers(ctx.db, run.id));
+    return { ...comparisonShowJson(run, result, labels, members), status: live.status, progress: null };
   });
 
   app.get<{ Params: { id: string } }>('/api/comparisons/:id/plot', async (request) => {
@@ -75,9 +68,3 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
   });
 }
 
-/** The member runs (one per policy, in the comparison's order), each a run page of its own. */
-function memberIds(ctx: ServerContext, parentId: string): string[] {
-  return listRuns(ctx.db, { parentId, limit: 1000 })
-    .sort((x, y) => (x.options.policyIndex as number) - (y.options.policyIndex as number))
-    .map((r) => r.id);
-}

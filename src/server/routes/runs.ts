@@ -1,7 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import { parseOption } from '../../options/parse-option.js';
 import { InputError } from '../../errors.js';
-import { getRun, listRuns, type RunRecord } from '../../store/runs.js';
+import { getRun, listMembers, listRuns, type RunRecord } from '../../store/runs.js';
 import type { ServerContext } from '../context.js';
 import { queryOptions } from '../query.js';
 import { runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
@@ -39,7 +39,7 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
     const runs = listRuns(ctx.db, { envHash: q.env_hash, policy: q.policy, limit, parentId: q.parent ?? null });
     return runs.map((r) => {
       const live = liveState(ctx, r);
-      return { ...runListRow(r), status: live.status, progress: live.progress };
+      return { ...runListRow(r, r.kind === 'comparison' ? listMembers(ctx.db, r.id) : null), status: live.status, progress: live.progress };
     });
   });
 
