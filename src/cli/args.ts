@@ -18,7 +18,7 @@ export function parseCommandArgs<T extends OptionSpec>(
   allowPositionals = false,
 ): { values: OptionValues<T>; positionals: string[] } {
   try {
-    const parsed = parseArgs({ args, options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals });
+    const parsed = parseArgs({ args: joinNegativeValues(args, options), options: { ...options, help: { type: 'boolean', short: 'h' } }, strict: true, allowPositionals });
     return { values: parsed.values as OptionValues<T>, positionals: parsed.positionals };
   } catch (e) {
     const message = (e as Error).message
@@ -27,6 +27,28 @@ export function parseCommandArgs<T extends OptionSpec>(
       .replace(/\.$/, '');
     throw new InputError('', `${message}; see 'reckon ${command} --help'`);
   }
+}
+
+/**
+ * `--bounds -10,5` and `--seed -3`: a value that starts with a minus sign and a digit is the
+ * option's value, not another option (negative lower bounds are the common case). Joined
+ * into `--bounds=-10,5` so the parser takes it as the value; the option's own check then
+ * judges it.
+ */
+export function joinNegativeValues(args: readonly string[], options: OptionSpec): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < args.length; i++) {
+    const arg = args[i];
+    const name = arg.startsWith('--') && !arg.includes('=') ? arg.slice(2) : null;
+    const next = args[i + 1];
+    if (name !== null && options[name]?.type === 'string' && next !== undefined && /^-(\d|\.\d)/.test(next)) {
+      out.push(`${arg}=${next}`);
+      i++;
+    } else {
+      out.push(arg);
+    }
+  }
+  return out;
 }
 
 /** Requires an option, with a message that says what to give. */

@@ -12,7 +12,7 @@ import { SEQUENCE_METHODS } from '../evaluate/sequence.js';
 const integerText = (min: number, max: number, what: string) =>
   z
     .string()
-    .regex(/^\s*\d+\s*$/, { message: `must be a whole number (${what})` })
+    .regex(/^\s*-?\d+\s*$/, { message: `must be a whole number (${what})` })
     .transform((s) => Number(s))
     .refine((n) => n >= min && n <= max, { message: `must be between ${min} and ${max} (${what})` });
 

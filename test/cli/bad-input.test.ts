@@ -100,6 +100,25 @@ describe('bad options', () => {
     expectBadInput(reckon([...base, ...extra], { cwd: dir }), name);
   });
 
+  it('values that start with a minus sign are values: --bounds -10,5 works; --seed, --episodes, --target-error get their range message', () => {
+    const ok = reckon([...base, '--episodes', '200', '--seed', '1', '--ci', 'hoeffding', '--bounds', '-10,5', '--no-store', '--json'], { cwd: dir });
+    expect(ok.code).toBe(0);
+    expect(JSON.parse(ok.stdout).return_bounds).toEqual({ low: -10, high: 5, source: 'user' });
+    expectBadInput(reckon([...base, '--seed', '-3'], { cwd: dir }), '--seed: must be between 0 and');
+    expectBadInput(reckon([...base, '--episodes', '-5'], { cwd: dir }), '--episodes: must be between 2 and');
+    expectBadInput(reckon([...base, '--target-error', '-0.1'], { cwd: dir }), '--target-error: must be a positive number');
+    expect(reckon([...base, '--seed', '-3'], { cwd: dir }).stderr).not.toContain('ambiguous');
+  });
+
+  it('an output path that cannot be written exits 2 naming the path', () => {
+    const store = `${dir}/runs.sqlite`;
+    const run = JSON.parse(reckon([...base, '--episodes', '100', '--seed', '1', '--store', store, '--json'], { cwd: dir }).stdout);
+    const missing = `${dir}/no/such/folder/x.svg`;
+    expectBadInput(reckon(['runs', 'plot', run.run_id, '--store', store, '--out', missing]), `--out: cannot write ${missing}: the folder ${dir}/no/such/folder does not exist`);
+    expectBadInput(reckon(['runs', 'export', run.run_id, '--store', store, '--out', `${dir}/no/x.csv`]), `--out: cannot write ${dir}/no/x.csv`);
+    expectBadInput(reckon(['runs', 'export', run.run_id, '--store', store, '--out', dir]), 'it is a folder');
+  });
+
   it('a missing --env says what to give', () => {
     expectBadInput(reckon(['estimate', '--policy', 'uniform.json'], { cwd: dir }), '--env');
   });
