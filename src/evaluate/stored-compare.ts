@@ -36,7 +36,7 @@ export async function runStoredComparison(
   toolVersion: string,
   /** `onRunId`: told the comparison's id once it and its member runs exist, before any episode. */
   hooks: { onRunId?: (id: string) => void } = {},
-): Promise<{ runId: string; result: ComparisonResult }> {
+): Promise<{ runId: string; result: ComparisonResult; memberIds: string[] }> {
   let parentId = '';
   const children: string[] = [];
   const labels = request.policies.map((p) => p.source.label);
@@ -115,7 +115,7 @@ export async function runStoredComparison(
     const status = result.interrupted ? 'interrupted' : 'done';
     result.estimates.forEach((e, p) => finishRun(db, children[p], status, { episodes: e.episodes, mean: e.mean, std: e.std, ci: e.ci }));
     finishRun(db, parentId, status, comparisonSummary(result));
-    return { runId: parentId, result };
+    return { runId: parentId, result, memberIds: children };
   } catch (e) {
     const message = e instanceof Error ? e.message : String(e);
     for (const id of children) finishRun(db, id, 'failed', null, message);

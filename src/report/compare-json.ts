@@ -4,7 +4,14 @@ import type { ComparisonResult } from '../evaluate/compare.js';
  * The `compare --json` object. `policies` and `differences` (with a, b indices into
  * `policies`, differences a − b) are a contract that scripts rely on: add keys, never rename.
  */
-export function compareJson(result: ComparisonResult, labels: { env: string; policies: readonly string[] }, version: string, runId: string | null = null) {
+export function compareJson(
+  result: ComparisonResult,
+  labels: { env: string; policies: readonly string[] },
+  version: string,
+  runId: string | null = null,
+  /** The stored member run of each policy, when the comparison was stored. */
+  memberIds: readonly string[] | null = null,
+) {
   const { comparison } = result;
   const holm = comparison.pairs.length > 1;
   return {
@@ -16,6 +23,7 @@ export function compareJson(result: ComparisonResult, labels: { env: string; pol
     level: result.request.level,
     policies: result.estimates.map((estimate, p) => ({
       name: labels.policies[p],
+      run_id: memberIds?.[p] ?? null,
       mean: estimate.mean,
       std: estimate.std,
       ci: { low: estimate.ci.low, high: estimate.ci.high, method: estimate.ci.method, level: estimate.ci.level },

@@ -67,10 +67,8 @@ function provenance(run: RunRecord) {
  * the run's provenance.
  */
 export function comparisonShowJson(run: RunRecord, result: ComparisonResult, labels: { env: string; policies: string[] }, members: readonly RunRecord[]) {
-  const json = compareJson(result, labels, run.toolVersion, run.id);
   return {
-    ...json,
-    policies: json.policies.map((p, i) => ({ ...p, run_id: members[i]?.id ?? null })),
+    ...compareJson(result, labels, run.toolVersion, run.id, members.map((m) => m.id)),
     kind: 'comparison' as const,
     members: members.map((m) => m.id),
     ...provenance(run),

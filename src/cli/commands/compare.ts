@@ -114,6 +114,7 @@ export async function run(args: string[]): Promise<number> {
   const stop = new StopSignals();
   let result: ComparisonResult;
   let runId: string | null = null;
+  let memberIds: string[] | null = null;
   try {
     const withProgress: CompareRequest = {
       ...request,
@@ -125,6 +126,7 @@ export async function run(args: string[]): Promise<number> {
       const stored = await runStoredComparison(db, withProgress, version());
       result = stored.result;
       runId = stored.runId;
+      memberIds = stored.memberIds;
     } else {
       result = await runComparison(withProgress);
     }
@@ -135,7 +137,7 @@ export async function run(args: string[]): Promise<number> {
   }
   const labels = { env: envPath, policies: policyPaths };
   if (values.json) {
-    process.stdout.write(`${JSON.stringify(compareJson(result, labels, version(), runId), null, 2)}\n`);
+    process.stdout.write(`${JSON.stringify(compareJson(result, labels, version(), runId, memberIds), null, 2)}\n`);
   } else {
     process.stdout.write(compareText(result, labels));
     if (runId) process.stdout.write(`  Stored as run ${runId} in ${storePath}.\n`);
