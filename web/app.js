@@ -171,6 +171,11 @@ async function renderRunList() {
 
 // ---- one run -----------------------------------------------------------------------------
 
+/** A run's noise mode in words; runs stored before the mode was recorded are step-keyed. */
+function noiseWords(mode) {
+  return mode === 'visit' ? 'keyed by state visit (--noise visit)' : 'keyed by step (--noise step)';
+}
+
 function figureRows(run) {
   const rows = [
     ['mean return', num(run.mean)],
@@ -178,6 +183,7 @@ function figureRows(run) {
     ['standard deviation', num(run.std)],
     ['episodes', `${count(run.episodes)} of ${count(run.episodes_requested)}`],
     ['seed', String(run.seed)],
+    ['noise', noiseWords(run.noise)],
     ['start', run.start ?? 'start distribution'],
     ['discount, horizon', `${run.discount}, ${count(run.horizon)} steps${run.horizon_derived ? ' (derived)' : ''}`],
     ['truncation bound', run.truncation_bound === null ? 'none' : num(run.truncation_bound, 2)],
@@ -273,7 +279,7 @@ async function renderComparison(id) {
   show(
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
-    el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers).`),
+    el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers), ${noiseWords(c.noise)}.`),
     el('p', {}, 'Each policy\'s own run: ', c.members.map((m, p) => [el('a', { href: `#/runs/${m}` }, names[p] ?? m), ' '])),
     el('h2', {}, 'Ranking'),
     el('ol', { class: 'ranking' }, c.ranking.map((p) => el('li', {}, `${names[p]}: ${num(c.policies[p].mean)} (${num(c.policies[p].ci.low)} to ${num(c.policies[p].ci.high)})`))),
@@ -320,6 +326,7 @@ async function renderForm() {
   const seed = el('input', { id: 'seed', type: 'number', min: 0, placeholder: 'random' });
   const confidence = el('input', { id: 'confidence', type: 'number', step: 'any', value: 0.95 });
   const ci = el('select', { id: 'ci' }, ['t', 'normal', 'bootstrap', 'bootstrap-percentile', 'hoeffding', 'bernstein'].map((m) => el('option', { value: m }, m)));
+  const noise = el('select', { id: 'noise' }, ['step', 'visit'].map((m) => el('option', { value: m }, m)));
   const targetError = el('input', { id: 'target_error', type: 'number', step: 'any', min: 0, placeholder: 'none' });
   const submit = el('button', { type: 'submit', id: 'submit' }, 'Start');
   const status = el('p', { id: 'form-status', role: 'status' });
@@ -332,6 +339,7 @@ async function renderForm() {
       field('seed', 'Seed', seed, 'empty: chosen at random and shown'),
       field('confidence', 'Confidence', confidence),
       field('ci', 'Interval', ci),
+      field('noise', 'Noise', noise, 'visit: the same draws at the same state visit'),
       field('target_error', 'Target half-width', targetError, 'run until the interval is this narrow')),
     submit, status);
   form.addEventListener('submit', async (event) => {
@@ -351,6 +359,7 @@ async function renderForm() {
     for (const [name, input] of Object.entries(numbers)) if (input.value.trim() !== '') body[name] = Number(input.value);
     if (body.target_error !== undefined) delete body.episodes;
     if (ci.value !== 't') body.ci = ci.value;
+    if (noise.value !== 'step') body.noise = noise.value;
     submit.disabled = true;
     try {
       const started = await api('/api/evaluations', { method: 'POST', body: JSON.stringify(body) });

@@ -149,7 +149,7 @@ export function rolloutFinite(
  * for u's bucket floor(u·G), an index below which every running sum is at most u (see
  * {@link startSupport}), and the scan goes on from there.
  */
-function firstAbove(cumulative: Float64Array, guide: Int32Array, u: number, last: number): number {
+export function firstAbove(cumulative: Float64Array, guide: Int32Array, u: number, last: number): number {
   let k = guide[Math.min(guide.length - 1, Math.floor(u * guide.length))];
   while (k < last && u >= cumulative[k]) k++;
   return k;

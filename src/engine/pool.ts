@@ -138,6 +138,7 @@ function workerEntry(spec: RolloutSpec, prepared: PreparedRollout | null): { url
       policy: prepared.policy.matrix,
       seed: spec.seed,
       start: prepared.startIndex,
+      noise: spec.noise,
     };
     return { url: workerUrl('table-worker.js'), data, watched: false };
   }

@@ -4,6 +4,7 @@ import { InputError } from '../errors.js';
 import type { EpisodeBlock } from './episode-block.js';
 import { rolloutFinite, rolloutFiniteActing } from './finite-rollout.js';
 import { rolloutModule } from './module-rollout.js';
+import { rolloutFiniteActingVisit, rolloutFiniteVisit } from './visit-rollout.js';
 import type { RolloutSpec } from './spec.js';
 
 /** A spec turned into something that runs blocks of episodes (in this thread). */
@@ -17,6 +18,7 @@ export interface PreparedRollout {
 }
 
 export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout> {
+  refuseVisitNoiseOnModule(spec);
   const envDefinition = parseEnvironment(spec.env.json, spec.env.source);
   const env = await buildEnvironment(envDefinition, spec.env.source);
   const policyDefinition = parsePolicy(spec.policy.json, spec.policy.source);
@@ -34,12 +36,15 @@ export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout
       }
       startIndex = found;
     }
+    const visit = spec.noise === 'visit';
     if (policy.kind === 'matrix') {
       const matrix = policy.matrix;
-      return { env, policy, startIndex, runBlock: (block) => rolloutFinite(mdp, matrix, seed, startIndex, block) };
+      const rollout = visit ? rolloutFiniteVisit : rolloutFinite;
+      return { env, policy, startIndex, runBlock: (block) => rollout(mdp, matrix, seed, startIndex, block) };
     }
     const acting = policy.acting;
-    return { env, policy, startIndex, runBlock: (block) => rolloutFiniteActing(mdp, acting, seed, startIndex, block) };
+    const rollout = visit ? rolloutFiniteActingVisit : rolloutFiniteActing;
+    return { env, policy, startIndex, runBlock: (block) => rollout(mdp, acting, seed, startIndex, block) };
   }
 
   if (policy.kind !== 'code') throw new Error('a policy on a code environment must act through code');
@@ -56,4 +61,14 @@ export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout
   }
   const acting = policy.acting;
   return { env, policy, startIndex: -1, runBlock: (block) => rolloutModule(env, acting, seed, startName, block) };
+}
+
+/**
+ * Visit-keyed noise addresses draws by state index, which only a finite environment has; a
+ * module environment's states are its own values. Refused before its code is loaded.
+ */
+export function refuseVisitNoiseOnModule(spec: Pick<RolloutSpec, 'env' | 'noise'>): void {
+  if (spec.noise === 'visit' && (spec.env.json as { kind?: unknown } | null)?.kind === 'module') {
+    throw new InputError('--noise', `visit needs a finite environment (gridworld or tabular), and ${spec.env.source.label} is a module environment; use --noise step`);
+  }
 }

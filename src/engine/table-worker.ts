@@ -8,6 +8,8 @@ import { parentPort, workerData } from 'node:worker_threads';
 import type { PolicyMatrix } from '../definitions/finite-mdp.js';
 import { rolloutFinite, type RolloutTables } from './finite-rollout.js';
 import { serveBlocks } from './worker-loop.js';
+import type { NoiseMode } from './noise.js';
+import { rolloutFiniteVisit } from './visit-rollout.js';
 
 /** What the pool sends a table worker (structured-cloned: typed arrays and numbers only). */
 export interface TableWorkerData {
@@ -16,10 +18,12 @@ export interface TableWorkerData {
   readonly seed: number;
   /** A fixed start state's index, or -1 for the start distribution. */
   readonly start: number;
+  readonly noise: NoiseMode;
 }
 
 const port = parentPort;
 if (!port) throw new Error('table-worker.js must run as a worker thread');
-const { mdp, policy, seed, start } = workerData as TableWorkerData;
+const { mdp, policy, seed, start, noise } = workerData as TableWorkerData;
+const rollout = noise === 'visit' ? rolloutFiniteVisit : rolloutFinite;
 
-serveBlocks(port, (block) => rolloutFinite(mdp, policy, seed, start, block));
+serveBlocks(port, (block) => rollout(mdp, policy, seed, start, block));

@@ -2,6 +2,7 @@ import { runEpisodes } from '../engine/pool.js';
 import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
 import type { RolloutSpec } from '../engine/spec.js';
+import type { NoiseMode } from '../engine/noise.js';
 import { InputError } from '../errors.js';
 import { comparePolicies, differenceBounds, type DifferenceMethod, type PolicyComparison, type RunningInterval } from '../stats/index.js';
 import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
@@ -18,6 +19,8 @@ export interface CompareRequest {
   readonly policies: readonly Definition[];
   readonly seed: number;
   readonly start: string | null;
+  /** How draws are keyed for every policy (engine/noise.ts): the same mode gives each policy the figures `estimate` gives it. */
+  readonly noise: NoiseMode;
   /** Episodes per policy; with `targetError`, the cap. */
   readonly episodes: number;
   readonly workers: number;
@@ -74,7 +77,7 @@ export interface ComparisonResult {
  */
 export async function runComparison(request: CompareRequest): Promise<ComparisonResult> {
   if (request.policies.length < 2) throw new InputError('--policy', 'a comparison needs at least two policies: give --policy twice or more');
-  const specs: RolloutSpec[] = request.policies.map((policy) => ({ env: request.env, policy, seed: request.seed, start: request.start }));
+  const specs: RolloutSpec[] = request.policies.map((policy) => ({ env: request.env, policy, seed: request.seed, start: request.start, noise: request.noise }));
   const facts: EnvironmentFacts[] = [];
   const prepared: PreparedRollout[] = [];
   for (const spec of specs) {
@@ -205,6 +208,7 @@ export function summarizeComparison(
         start: request.start,
         onAnalysis: request.onAnalysis,
         plannedEpisodes: false,
+        noise: request.noise,
       },
       { steps: buffer.lengthSum, seconds: seconds / buffers.length, workers: request.workers },
       request.episodes,

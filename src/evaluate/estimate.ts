@@ -1,6 +1,7 @@
 import { runEpisodes } from '../engine/pool.js';
 import { prepareRollout } from '../engine/prepare.js';
 import type { RolloutSpec } from '../engine/spec.js';
+import type { NoiseMode } from '../engine/noise.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
 import type { CiMethod, ProjectionRow } from '../stats/index.js';
 import { computeFigures, checkIntervalPossible, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
@@ -62,6 +63,8 @@ export interface EstimateResult {
   readonly facts: EnvironmentFacts;
   readonly seed: number;
   readonly start: string | null;
+  /** How the draws were keyed: by step or by state visit (engine/noise.ts). */
+  readonly noise: NoiseMode;
   readonly episodes: number;
   readonly requestedEpisodes: number;
   readonly mean: number;
@@ -193,7 +196,7 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   return computeFigures(
     buffer,
     facts,
-    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start, onAnalysis: request.onAnalysis },
+    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start, noise: spec.noise, onAnalysis: request.onAnalysis },
     timing,
     request.episodes,
     sequence,

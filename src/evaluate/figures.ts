@@ -1,5 +1,6 @@
 import { confidenceInterval, projectionTable, summarize, type CiMethod, type ProjectionRow, type RunningInterval } from '../stats/index.js';
 import type { EnvironmentFacts } from './environment-facts.js';
+import type { NoiseMode } from '../engine/noise.js';
 import type { EstimateResult, IntervalChoice } from './estimate.js';
 import { intervalWarnings } from './interval-advice.js';
 import type { ReturnsBuffer } from './returns-buffer.js';
@@ -20,6 +21,8 @@ export interface FigureSettings {
   readonly onAnalysis?: AnalysisProgress;
   /** False when a sequence is read without a planned size or cap (a comparison's members); default: the requested episodes. */
   readonly plannedEpisodes?: false;
+  /** How the episodes' draws were keyed (engine/noise.ts). */
+  readonly noise: NoiseMode;
 }
 
 export interface RunTiming {
@@ -153,6 +156,7 @@ export function computeFigures(
     facts,
     seed: settings.seed,
     start: settings.start,
+    noise: settings.noise,
     episodes: summary.n,
     requestedEpisodes,
     mean: summary.mean,

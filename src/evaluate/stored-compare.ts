@@ -71,6 +71,7 @@ export async function runStoredComparison(
           },
           seed: request.seed,
           start: request.start,
+          noise: request.noise,
           firstEpisode: 0,
           episodesRequested: request.episodes,
           options: { ...options },
@@ -86,6 +87,7 @@ export async function runStoredComparison(
               policy: { label: policy.source.label, json: policy.json, baseDir: policy.source.baseDir, hash: policyHashes[p] },
               seed: request.seed,
               start: request.start,
+              noise: request.noise,
               firstEpisode: 0,
               episodesRequested: request.episodes,
               options: {
@@ -159,6 +161,7 @@ export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: Ana
     policies: members.map((m) => ({ json: m.policy.json, source: { label: m.policy.label, baseDir: m.policy.baseDir } })),
     seed: run.seed,
     start: run.start,
+    noise: run.noise,
     episodes: options.episodes,
     workers: options.workers,
     method: options.method,

@@ -75,6 +75,7 @@ export async function runStoredEstimate(request: StoredEstimateRequest): Promise
       policy,
       seed: spec.seed,
       start: spec.start,
+      noise: spec.noise,
       firstEpisode: request.first,
       episodesRequested: options.episodes,
       options: { ...options, method },
@@ -103,6 +104,7 @@ export async function resumeStoredEstimate(
     policy: { json: run.policy.json, source: { label: run.policy.label, baseDir: run.policy.baseDir } },
     seed: run.seed,
     start: run.start,
+    noise: run.noise,
   };
   const changed = run.files ? firstChangedFile(run.files) : null;
   if (changed) {
@@ -218,6 +220,7 @@ export function analyzeStoredRun(db: Db, run: RunRecord, overrides: AnalysisOver
       seed: run.seed,
       start: run.start,
       onAnalysis: overrides.onAnalysis,
+      noise: run.noise,
     },
     { steps: run.steps, seconds: run.seconds, workers: stored.workers },
     run.episodesRequested,

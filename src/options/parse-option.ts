@@ -3,6 +3,7 @@ import { InputError } from '../errors.js';
 import { MAX_SEED } from '../engine/streams.js';
 import { CI_METHODS } from '../stats/interval.js';
 import { SEQUENCE_METHODS } from '../evaluate/sequence.js';
+import { NOISE_MODES } from '../engine/noise.js';
 
 /**
  * Zod schemas for command-line option values: the same rules will validate the HTTP API's
@@ -44,6 +45,7 @@ export const optionSchemas = {
   start: z.string().min(1, { message: 'must name a state' }),
   stepTimeout: positiveNumberText('seconds one plug-in call may take'),
   limit: integerText(1, 1e6, 'how many runs to list'),
+  noise: z.enum(NOISE_MODES, { message: `must be one of ${NOISE_MODES.join(', ')} (how draws are keyed: by step, or by state visit)` }),
 } as const;
 
 /** Parses one option's text with its schema; a bad value is an InputError naming the option. */

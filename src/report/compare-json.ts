@@ -19,6 +19,7 @@ export function compareJson(
     env: labels.env,
     seed: result.request.seed,
     start: result.request.start,
+    noise: result.request.noise,
     episodes: result.episodes,
     level: result.request.level,
     policies: result.estimates.map((estimate, p) => ({

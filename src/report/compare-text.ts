@@ -1,5 +1,6 @@
 import type { ComparisonResult } from '../evaluate/compare.js';
 import { columns, count, decimalsFor, fixed, sig, timeSplit } from './format.js';
+import { NOISE_WORDS } from './noise-words.js';
 
 function pText(p: number): string {
   return p < 1e-4 ? '< 0.0001' : p.toFixed(4);
@@ -11,7 +12,7 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
   const level = `${+(result.request.level * 100).toFixed(4)}%`;
   const lines: string[] = [];
   lines.push(`Comparing ${labels.policies.length} policies in ${labels.env}${result.request.start ? ` from state ${result.request.start}` : ''}`);
-  lines.push(`  ${count(result.episodes)} episodes each, the same seed (${result.request.seed}) and environment noise for every policy (common random numbers)`);
+  lines.push(`  ${count(result.episodes)} episodes each, the same seed (${result.request.seed}) and environment noise for every policy (common random numbers), ${NOISE_WORDS[result.request.noise]}`);
   if (result.target) {
     lines.push(
       result.target.reached

@@ -30,6 +30,7 @@ export function estimateJson(result: EstimateResult, labels: { env: string; poli
     projection: result.projection,
     seed: result.seed,
     start: result.start,
+    noise: result.noise,
     discount: facts.discount,
     horizon: facts.horizon,
     horizon_derived: facts.horizonDerived,

@@ -1,5 +1,6 @@
 import type { EstimateResult } from '../evaluate/estimate.js';
 import { columns, count, decimalsFor, duration, fixed, meanWithInterval, rate, sig, timeSplit } from './format.js';
+import { NOISE_WORDS } from './noise-words.js';
 
 const METHOD_NAMES: Record<string, string> = {
   t: 'Student t',
@@ -40,7 +41,7 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
   }
   for (const warning of result.warnings) lines.push(`  warning          ${warning}`);
   lines.push(`  spread           std ${sig(result.std)}, standard error ${sig(result.stderr)}, returns from ${sig(result.min)} to ${sig(result.max)}`);
-  lines.push(`  episodes         ${count(result.episodes)} with seed ${result.seed}; mean length ${sig(result.meanLength, 3)} steps, longest ${count(result.longestEpisode)}`);
+  lines.push(`  episodes         ${count(result.episodes)} with seed ${result.seed}, ${NOISE_WORDS[result.noise]}; mean length ${sig(result.meanLength, 3)} steps, longest ${count(result.longestEpisode)}`);
   lines.push(`  horizon          ${count(facts.horizon)} steps, discount ${facts.discount}`);
   if (facts.truncationBound !== null) {
     lines.push(

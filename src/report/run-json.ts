@@ -20,6 +20,7 @@ export function runListRow(r: RunRecord, members: readonly RunRecord[] | null = 
     policy: r.policy.label,
     policy_hash: r.policy.hash,
     seed: r.seed,
+    noise: r.noise,
     // A comparison keeps its episodes in its member runs; its summary counts them.
     episodes: r.kind === 'comparison' ? Number((r.summary as { episodes?: number } | null)?.episodes ?? 0) : r.episodesDone,
     episodes_requested: r.episodesRequested,
@@ -91,6 +92,7 @@ export function runPendingJson(run: RunRecord) {
     episodes: run.episodesDone,
     seed: run.seed,
     start: run.start,
+    noise: run.noise,
     ...provenance(run),
   };
 }

@@ -5,6 +5,7 @@ import type { CompareRequest } from '../evaluate/compare.js';
 import { differenceMethod } from '../options/difference-method.js';
 import { nameSchema, runOptionFields, serverRunSize, type ServerLimits } from './evaluation-request.js';
 import { refuseCodeAndPaths } from './inline-definitions.js';
+import { noiseMode } from '../options/noise-option.js';
 
 /** `POST /api/comparisons`: one environment, two to eight policies inline, and the options of `reckon compare`. */
 export const comparisonBodySchema = z
@@ -46,6 +47,7 @@ export function planComparison(body: ComparisonBody, seed: number, limits: Serve
     policies: body.policies.map((p, i) => ({ json: p.definition, source: { label: labels.policies[i], baseDir: limits.baseDir } })),
     seed: body.seed === undefined ? seed : parseOption('seed', 'seed', text(body.seed)),
     start: body.start === undefined ? null : parseOption('start', 'start', body.start),
+    noise: noiseMode(body.noise, 'compare', body.env),
     episodes,
     workers: limits.workers,
     method,

@@ -6,6 +6,7 @@ import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';
 import type { StoredOptions } from '../evaluate/stored-estimate.js';
 import { refuseCodeAndPaths } from './inline-definitions.js';
+import { noiseMode } from '../options/noise-option.js';
 
 /** A definition's display name: what `runs list` shows and what error messages start with. */
 export const nameSchema = z
@@ -22,6 +23,7 @@ export const runOptionFields = {
   ci: z.string().optional(),
   bounds: z.tuple([z.number(), z.number()]).optional(),
   sigma: z.number().optional(),
+  noise: z.string().optional(),
 };
 
 /**
@@ -103,6 +105,7 @@ export function planEvaluation(body: EvaluationBody, seed: number, limits: Serve
     policy: { json: body.policy, source: { label: body.policy_name ?? 'policy', baseDir: limits.baseDir } },
     seed: body.seed === undefined ? seed : parseOption('seed', 'seed', text(body.seed)),
     start,
+    noise: noiseMode(body.noise, 'estimate', body.env),
   };
   return { spec, options };
 }

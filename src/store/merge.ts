@@ -15,6 +15,7 @@ const SAME_FIELDS: readonly [string, (r: RunRecord) => unknown][] = [
   ['shard count M', (r) => r.shard?.count],
   ['total episodes', (r) => r.shard?.total],
   ['start state', (r) => r.start],
+  ['noise mode', (r) => r.noise],
 ];
 
 /**
@@ -54,6 +55,7 @@ export function mergeShards(sources: readonly MergeSource[], into: Db, describe:
     policy: first.policy,
     seed: first.seed,
     start: first.start,
+    noise: first.noise,
     firstEpisode: 0,
     episodesRequested: total,
     options: { ...first.options, episodes: total },

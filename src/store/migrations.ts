@@ -63,6 +63,10 @@ export const MIGRATIONS: readonly string[] = [
   ALTER TABLE runs ADD COLUMN heartbeat_at TEXT;
   ALTER TABLE runs ADD COLUMN files_json TEXT;
   `,
+  // 4: how a run's draws are keyed (engine/noise.ts); every earlier run keyed them by step.
+  `
+  ALTER TABLE runs ADD COLUMN noise TEXT NOT NULL DEFAULT 'step' CHECK (noise IN ('step', 'visit'));
+  `,
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS.length;

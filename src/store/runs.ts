@@ -4,6 +4,7 @@ import { InputError, NotFoundError } from '../errors.js';
 import type { Db } from './open.js';
 import { ownerAlive } from './owner.js';
 import type { DefinitionFileHash } from './definition-files.js';
+import { LEGACY_NOISE, NOISE_MODES, type NoiseMode } from '../engine/noise.js';
 
 export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
 export type RunKind = 'estimate' | 'comparison';
@@ -29,6 +30,8 @@ export interface NewRun {
   readonly policy: StoredDefinition;
   readonly seed: number;
   readonly start: string | null;
+  /** How the run's draws are keyed (engine/noise.ts). */
+  readonly noise: NoiseMode;
   readonly firstEpisode: number;
   readonly episodesRequested: number;
   readonly options: Record<string, unknown>;
@@ -55,6 +58,8 @@ export interface RunRecord {
   readonly policy: StoredDefinition;
   readonly seed: number;
   readonly start: string | null;
+  /** Runs stored before the mode was recorded used step-keyed noise. */
+  readonly noise: NoiseMode;
   readonly firstEpisode: number;
   readonly episodesRequested: number;
   readonly options: Record<string, unknown>;
@@ -110,6 +115,7 @@ interface RunRow {
   heartbeat_at: string | null;
   parent_id: string | null;
   files_json: string | null;
+  noise: string;
 }
 
 const ID_ALPHABET = 'abcdefghijkmnpqrstuvwxyz23456789';
@@ -127,11 +133,11 @@ export function createRun(db: Db, run: NewRun): string {
     INSERT INTO runs (id, kind, status, created_at, env_label, env_json, env_hash, env_base_dir,
       policy_label, policy_json, policy_hash, policy_base_dir, seed, start_state, first_episode,
       episodes_requested, options_json, facts_json, tool_version, machine_json,
-      shard_index, shard_count, total_episodes, owner_pid, owner_host, heartbeat_at, parent_id, files_json)
+      shard_index, shard_count, total_episodes, owner_pid, owner_host, heartbeat_at, parent_id, files_json, noise)
     VALUES (@id, @kind, 'running', @created_at, @env_label, @env_json, @env_hash, @env_base_dir,
       @policy_label, @policy_json, @policy_hash, @policy_base_dir, @seed, @start_state, @first_episode,
       @episodes_requested, @options_json, @facts_json, @tool_version, @machine_json,
-      @shard_index, @shard_count, @total_episodes, @owner_pid, @owner_host, @created_at, @parent_id, @files_json)`);
+      @shard_index, @shard_count, @total_episodes, @owner_pid, @owner_host, @created_at, @parent_id, @files_json, @noise)`);
   for (let attempt = 0; ; attempt++) {
     const id = newRunId();
     try {
@@ -162,6 +168,7 @@ export function createRun(db: Db, run: NewRun): string {
         owner_host: hostname(),
         parent_id: run.parentId ?? null,
         files_json: JSON.stringify(run.files ?? []),
+        noise: run.noise,
       });
       return id;
     } catch (e) {
@@ -265,7 +272,13 @@ function toRecord(row: RunRow): RunRecord {
     heartbeatAt: row.heartbeat_at,
     parentId: row.parent_id,
     files: row.files_json === null ? null : JSON.parse(row.files_json),
+    noise: storedNoise(row.noise),
   };
+}
+
+/** The stored mode, read defensively: anything unknown (a hand-edited store) counts as the legacy mode. */
+function storedNoise(value: string | null | undefined): NoiseMode {
+  return (NOISE_MODES as readonly string[]).includes(value ?? '') ? (value as NoiseMode) : LEGACY_NOISE;
 }
 
 export function findRun(db: Db, id: string): RunRecord | null {

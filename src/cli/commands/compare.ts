@@ -10,6 +10,7 @@ import { openStore } from '../../store/open.js';
 import { parseCommandArgs, required } from '../args.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
+import { noiseMode } from '../../options/noise-option.js';
 import { ProgressLine } from '../progress.js';
 import { StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
@@ -42,6 +43,10 @@ Options:
   --sigma S             one return's sub-Gaussian scale, for normal-mixture
   --iqm                 also the interquartile mean of each policy (stratified bootstrap)
   --start STATE         start every episode in STATE
+  --noise MODE          how the random draws are keyed: step (the draw of step t of episode
+                        i, default) or visit (the draw of the k-th visit of state s: close
+                        policies see the same noise in the same states; gridworld and tabular
+                        environments only). 'estimate --noise MODE' gives each policy's figures
   --workers K           worker threads (default: all cores)
   --store PATH | --no-store
   --step-timeout SECONDS
@@ -75,6 +80,7 @@ const OPTIONS = {
   'no-store': { type: 'boolean' },
   json: { type: 'boolean' },
   'step-timeout': { type: 'string' },
+  noise: { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -92,11 +98,13 @@ export async function run(args: string[]): Promise<number> {
   const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
   const { method, sequence } = differenceMethod(values.ci, targetError);
 
+  const env = readDefinitionFile(envPath);
   const request: CompareRequest = {
-    env: readDefinitionFile(envPath),
+    env,
     policies: policyPaths.map((p) => readDefinitionFile(p)),
     seed,
     start,
+    noise: noiseMode(values.noise, 'compare', env.json),
     episodes,
     workers,
     method,

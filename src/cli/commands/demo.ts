@@ -50,7 +50,7 @@ export async function run(args: string[]): Promise<number> {
     const progress = new ProgressLine();
     const { result, runId } = await runStoredEstimate({
       db,
-      spec: { env: readDefinitionFile(envPath), policy: readDefinitionFile(policyPath), seed: 1, start: null },
+      spec: { env: readDefinitionFile(envPath), policy: readDefinitionFile(policyPath), seed: 1, start: null, noise: 'step' },
       options: { episodes: 50000, workers: defaultWorkers(), method: 't', level: 0.95, bounds: null, targetError: null, sigma: null },
       toolVersion: version(),
       shard: null,

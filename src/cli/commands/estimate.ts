@@ -12,6 +12,7 @@ import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
+import { noiseMode } from '../../options/noise-option.js';
 import { ProgressLine } from '../progress.js';
 import { StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
@@ -29,6 +30,10 @@ Options:
                         (default: a random seed, printed so the run can be repeated)
   --workers K           worker threads (default: all cores); never changes the result
   --start STATE         start every episode in STATE (e.g. "2,0"): the value of that state
+  --noise MODE          how the random draws are keyed: step (default; the draw of step t
+                        of episode i) or visit (the draw of the k-th visit of state s in
+                        episode i: what 'compare --noise visit' gives each policy; gridworld
+                        and tabular environments only)
   --confidence L        two-sided confidence level (default 0.95)
   --ci METHOD           t (default), normal, bootstrap (BCa), bootstrap-percentile,
                         hoeffding, bernstein, betting (the last three need return bounds;
@@ -77,6 +82,7 @@ const OPTIONS = {
   store: { type: 'string' },
   shard: { type: 'string' },
   'step-timeout': { type: 'string' },
+  noise: { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -100,7 +106,7 @@ export async function run(args: string[]): Promise<number> {
 
   const envFile = readDefinitionFile(envPath);
   const policyFile = readDefinitionFile(policyPath);
-  const spec: RolloutSpec = { env: envFile, policy: policyFile, seed, start };
+  const spec: RolloutSpec = { env: envFile, policy: policyFile, seed, start, noise: noiseMode(values.noise, 'estimate', envFile.json) };
   const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());
   const db = storePath === null ? null : openStore(storePath);
 

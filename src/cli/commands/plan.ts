@@ -8,6 +8,7 @@ import { pairingGain } from '../../stats/pairing-gain.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { parseRunOptions } from '../../options/run-options.js';
+import { noiseMode } from '../../options/noise-option.js';
 
 export const HELP = `reckon plan: how many episodes, and how long, before running them
 
@@ -33,6 +34,8 @@ Options:
   --sigma S             the returns' sub-Gaussian scale for the normal-mixture sequence
   --seed S              pilot seed (default: random)
   --workers K           worker threads the real run will use (default: all cores)
+  --noise MODE          step or visit, as the real run will use (default: estimate's for one
+                        policy, compare's for two)
   --json                one JSON object
 
 Examples:
@@ -54,6 +57,7 @@ const OPTIONS = {
   workers: { type: 'string' },
   json: { type: 'boolean' },
   start: { type: 'string' },
+  noise: { type: 'string' },
 } as const;
 
 function seconds(episodes: number | null, rate: number): number | null {
@@ -97,7 +101,8 @@ export async function run(args: string[]): Promise<number> {
   const pilotEpisodes = values.pilot === undefined ? null : parseOption('pilot', 'episodes', values.pilot);
   const env = readDefinitionFile(envPath);
   const pilotOptions = { episodes: pilotEpisodes, seconds: 2, minEpisodes: 100, maxEpisodes: 200_000, workers };
-  const pilot = (policyPath: string) => runPilot({ env, policy: readDefinitionFile(policyPath), seed, start }, pilotOptions);
+  const noise = noiseMode(values.noise, policyPaths.length === 2 ? 'compare' : 'estimate', env.json);
+  const pilot = (policyPath: string) => runPilot({ env, policy: readDefinitionFile(policyPath), seed, start, noise }, pilotOptions);
 
   if (policyPaths.length === 2) {
     if (values.difference === undefined) throw new InputError('--difference', 'is required with two policies: the smallest true difference worth detecting, e.g. --difference 0.05');
