@@ -168,7 +168,8 @@ export function createRun(db: Db, run: NewRun): string {
         owner_host: hostname(),
         parent_id: run.parentId ?? null,
         files_json: JSON.stringify(run.files ?? []),
-        noise: run.noise,
+        // A caller from plain JavaScript may leave the mode out: it then ran step-keyed.
+        noise: run.noise ?? LEGACY_NOISE,
       });
       return id;
     } catch (e) {

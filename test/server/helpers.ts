@@ -19,7 +19,7 @@ export async function storeTextbookRun(storePath: string, seed: number, episodes
   try {
     const { runId } = await runStoredEstimate({
       db,
-      spec: { env: readDefinitionFile(envPath('textbook/grid-4x3.json')), policy: readDefinitionFile(envPath('textbook/grid-4x3-optimal.json')), seed, start: null },
+      spec: { env: readDefinitionFile(envPath('textbook/grid-4x3.json')), policy: readDefinitionFile(envPath('textbook/grid-4x3-optimal.json')), seed, start: null, noise: 'step' },
       options: { episodes, method: 't', sigma: null, level: 0.95, bounds: null, targetError: null, workers: 1 },
       toolVersion: 'test',
       shard: null,
