@@ -13,6 +13,7 @@ const COMMANDS: Record<string, { summary: string; load: () => Promise<Command> }
   estimate: { summary: 'Monte Carlo estimate of a policy\'s expected return, with an interval and projections', load: () => import('./commands/estimate.js') },
   exact: { summary: 'exact value and return std of a policy on a finite environment (the oracle)', load: () => import('./commands/exact.js') },
   compare: { summary: 'compare policies on the same episodes (common random numbers): differences, p-values, ranking', load: () => import('./commands/compare.js') },
+  offpolicy: { summary: 'estimate a target policy\'s return from episodes logged under another (importance sampling)', load: () => import('./commands/offpolicy.js') },
   plan: { summary: 'project the episodes and time a target error or a comparison needs, from a short pilot', load: () => import('./commands/plan.js') },
   check: { summary: 'validate definition files and summarise the environment', load: () => import('./commands/check.js') },
   runs: { summary: 'list, show (re-analyse), export, resume, delete and merge stored runs', load: () => import('./commands/runs.js') },

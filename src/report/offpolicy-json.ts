@@ -1,0 +1,65 @@
+/** The `offpolicy --json` object (snake_case keys), also what a stored off-policy run shows. */
+import { ESTIMATOR_TITLES } from '../offpolicy/evaluate-log.js';
+import type { OffPolicyRun } from '../offpolicy/run-offpolicy.js';
+
+export interface OffPolicyLabels {
+  readonly log: string;
+  readonly policy: string;
+  readonly env: string | null;
+  readonly seed: number;
+}
+
+const pair = (p: readonly [number, number] | null) => (p ? { low: finite(p[0]), high: finite(p[1]) } : null);
+const finite = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? null : x);
+
+export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'horizon' | 'rewardBounds' | 'returnBounds' | 'result' | 'seconds'>, labels: OffPolicyLabels, runId: string | null = null) {
+  const { result, log } = run;
+  const d = result.diagnostics;
+  return {
+    kind: 'offpolicy',
+    run_id: runId,
+    log: { path: labels.log, sha256: log.sha256, bytes: log.bytes, episodes: result.episodes, steps: result.steps },
+    policy: labels.policy,
+    env: labels.env,
+    discount: run.discount,
+    horizon: run.horizon,
+    reward_bounds: run.rewardBounds,
+    return_bounds: run.returnBounds,
+    level: result.level,
+    seed: labels.seed,
+    resamples: result.resamples,
+    folds: result.folds,
+    estimates: result.estimators.map((e) => ({
+      name: e.name,
+      title: ESTIMATOR_TITLES[e.name],
+      estimate: finite(e.estimate),
+      intervals: {
+        bootstrap: pair(e.intervals.bootstrap),
+        bootstrap_percentile: pair(e.intervals.bootstrapPercentile),
+        t: pair(e.intervals.t),
+      },
+    })),
+    bounds: result.bounds.map((b) => ({
+      method: b.method,
+      low: finite(b.low),
+      high: finite(b.high),
+      ...(b.threshold !== undefined ? { threshold: finite(b.threshold), held_out: b.heldOut } : {}),
+      ...(b.note ? { note: b.note } : {}),
+    })),
+    diagnostics: {
+      ess: d.ess,
+      ess_fraction: d.essFraction,
+      step_ess: Array.from(d.stepEss),
+      step_mean_weight: Array.from(d.stepMeanWeight),
+      mean_weight: d.meanWeight,
+      mean_weight_interval: pair(d.meanWeightInterval),
+      max_weight: d.maxWeight,
+      max_weight_share: finite(d.maxWeightShare),
+      zero_weight_fraction: d.zeroWeightFraction,
+      unlogged_action_states: d.unloggedActionStates,
+      warnings: d.warnings,
+      verdict: d.verdict,
+    },
+    seconds: run.seconds,
+  };
+}
