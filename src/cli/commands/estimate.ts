@@ -16,6 +16,7 @@ import { noiseMode } from '../../options/noise-option.js';
 import { ProgressLine } from '../progress.js';
 import { StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
+import { prepareRecorder } from '../../evaluate/record-log.js';
 
 export const HELP = `reckon estimate: run seeded episodes and estimate the policy's expected discounted return
 
@@ -56,6 +57,8 @@ Options:
   --store PATH          the run store (default: $RECKON_STORE, else
                         ~/.local/share/reckon/runs.sqlite)
   --no-store            do not keep this run
+  --record FILE         also write the run's episodes as a log (JSON Lines, with the policy's
+                        probabilities) for 'reckon offpolicy'; finite environments only
   -h, --help            this help
 
 Examples:
@@ -83,6 +86,7 @@ const OPTIONS = {
   shard: { type: 'string' },
   'step-timeout': { type: 'string' },
   noise: { type: 'string' },
+  record: { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -104,6 +108,7 @@ export async function run(args: string[]): Promise<number> {
   const range = shard ? shardRange(shard, episodes) : { first: 0, count: episodes };
   if (range.count < 2) throw new InputError('--shard', `leaves ${range.count} episode(s) for shard ${shard?.index}; give more --episodes or fewer shards`);
 
+  const recorder = values.record === undefined ? null : await prepareRecorder(values.record, envPath, policyPath, start);
   const envFile = readDefinitionFile(envPath);
   const policyFile = readDefinitionFile(policyPath);
   const spec: RolloutSpec = { env: envFile, policy: policyFile, seed, start, noise: noiseMode(values.noise, 'estimate', envFile.json) };
@@ -146,6 +151,7 @@ export async function run(args: string[]): Promise<number> {
     db?.close();
   }
   const labels = { env: envPath, policy: policyPath };
+  if (recorder && !result.interrupted) recorder.write(seed, range.first, result.episodes);
   if (values.json) {
     process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version(), runId), null, 2)}\n`);
   } else {
