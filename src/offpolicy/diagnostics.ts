@@ -37,8 +37,8 @@ export interface OffPolicyDiagnostics {
   readonly weights: Float64Array;
 }
 
+/** The diagnostics of a log whose support {@link checkSupport} has passed. */
 export function offPolicyDiagnostics(log: EpisodeLog, target: TargetOnLog, episodes: WeightedEpisodes, level: number): OffPolicyDiagnostics {
-  checkSupport(log, target);
   const weights = finalWeights(episodes);
   const n = weights.length;
   const ess = kishEffectiveSampleSize(weights);
@@ -118,7 +118,7 @@ export function offPolicyDiagnostics(log: EpisodeLog, target: TargetOnLog, episo
  * (probability 0 in the logged distribution, or an action outside the header's list) makes
  * every importance-sampling estimate biased: refused.
  */
-function checkSupport(log: EpisodeLog, target: TargetOnLog): void {
+export function checkSupport(log: EpisodeLog, target: TargetOnLog): void {
   const width = target.actionNames.length;
   const logged = log.actionNames.length;
   const fixedActions = log.header?.actions !== undefined;

@@ -17,7 +17,7 @@ import { perDecisionValues } from '../stats/off-policy/per-decision-importance-s
 import { weightedDoublyRobust, weightedDoublyRobustInfluence } from '../stats/off-policy/weighted-doubly-robust.js';
 import { discountedReturns, finalWeights, type WeightedEpisodes } from '../stats/off-policy/weighted-episodes.js';
 import { crossFittedModelValues } from './cross-fitted-model.js';
-import { offPolicyDiagnostics, type OffPolicyDiagnostics } from './diagnostics.js';
+import { checkSupport, offPolicyDiagnostics, type OffPolicyDiagnostics } from './diagnostics.js';
 import type { TargetOnLog } from './target-on-log.js';
 import { weightedEpisodes } from './weights-on-log.js';
 
@@ -84,6 +84,7 @@ export interface OffPolicyResult {
 }
 
 export function evaluateLog(log: EpisodeLog, target: TargetOnLog, options: OffPolicyOptions): OffPolicyResult {
+  checkSupport(log, target);
   const episodes = weightedEpisodes(log, target, options.discount);
   const n = log.episodeIds.length;
   if (n < 2) throw new InputError(log.label, `has ${n} episode; intervals and diagnostics need at least 2`);
