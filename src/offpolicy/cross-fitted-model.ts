@@ -6,7 +6,7 @@
  * model fitted on the other folds, so Q̂ never depends on the episode it corrects and the
  * doubly robust estimate keeps its unbiasedness (Jiang & Li 2016 assume Q̂ independent of the
  * data; fitting it on the same episodes pulls the estimate toward the model's own, see
- * docs/methods.md §12). Pairs never logged get reward 0 and uniform next states.
+ * docs/methods.md §13). Pairs never logged get reward 0 and uniform next states.
  */
 import { NEXT_TERMINAL, NEXT_UNKNOWN, type EpisodeLog } from '../definitions/episode-log.js';
 import type { StepModelValues } from '../stats/off-policy/doubly-robust.js';

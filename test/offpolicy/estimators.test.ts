@@ -1,7 +1,7 @@
 /**
  * The off-policy estimators against values computed outside reckon: scripts/methods/off_policy.py
  * evaluates the published formulas (Precup, Sutton & Singh 2000; Thomas 2015; Jiang & Li 2016;
- * Thomas & Brunskill 2016; Kish 1965) with numpy on the 2-state example of docs/methods.md §12.
+ * Thomas & Brunskill 2016; Kish 1965) with numpy on the 2-state example of docs/methods.md §13.
  */
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';

@@ -1,5 +1,5 @@
 /**
- * The 2-state example of docs/methods.md §12 written out for tests (the same numbers as
+ * The 2-state example of docs/methods.md §13 written out for tests (the same numbers as
  * test/fixtures/off-policy/two-state-env.json and scripts/methods/off_policy.py).
  */
 export const TWO_STATE = {

@@ -1,6 +1,6 @@
 /**
  * The lower bounds against scripts/methods/off_policy.py, which evaluates Thomas, Theocharous &
- * Ghavamzadeh (AAAI 2015) Theorem 1 and the one-sided betting bound of docs/methods.md §12.4 with
+ * Ghavamzadeh (AAAI 2015) Theorem 1 and the one-sided betting bound of docs/methods.md §13.4 with
  * numpy on fixed samples.
  */
 import { describe, expect, it } from 'vitest';

@@ -3,7 +3,7 @@ import { requireLevel } from '../interval.js';
 /**
  * A one-sided lower confidence bound for the mean of independent X_i ≥ 0 with no upper bound,
  * by betting (the capital process of Waudby-Smith & Ramdas, JRSS-B 86(1), 2024, with bets
- * truncated for an unbounded right tail; derivation in docs/methods.md §12.4): for a candidate
+ * truncated for an unbounded right tail; derivation in docs/methods.md §13.4): for a candidate
  * mean m the capital K_t(m) = Π_{i≤t} (1 + λ_i(m)(X_i − m)), λ_i(m) = min(λ_i, c/m), is a
  * nonnegative martingale when m is the mean, since every factor is at least 1 − c > 0. By
  * Ville's inequality P(sup_t K_t(μ) ≥ 1/α) ≤ α, so the m whose capital ever reaches 1/α are
