@@ -8,6 +8,8 @@ import { checkRewardBounds, readEpisodeLog, type EpisodeLog } from '../definitio
 import { formatNumber } from '../definitions/describe-value.js';
 import { loadEnvironmentFile, type LoadedEnvironment } from '../definitions/load.js';
 import { InputError } from '../errors.js';
+import type { FiniteMdp } from '../definitions/finite-mdp.js';
+import { returnBounds } from '../exact/return-bounds.js';
 import { evaluateLog, type EstimatorName, type OffPolicyResult } from './evaluate-log.js';
 import { targetOnLog } from './target-on-log.js';
 
@@ -53,7 +55,7 @@ export async function runOffPolicy(request: OffPolicyRequest): Promise<OffPolicy
     throw new InputError(request.envPath!, 'is a code (module) environment: give a log with a header instead of --env (the target is matched to the log\'s states by name)');
   }
   const target = await targetOnLog(log, request.policyPath, env && env.built.kind === 'finite' ? env.built : null, request.envPath);
-  const returnBounds = rewardBounds ? returnBoundsOf(rewardBounds, discount, horizon) : null;
+  const returnBounds = (env && env.built.kind === 'finite' ? exactReturnBounds(log, env.built.mdp) : null) ?? (rewardBounds ? returnBoundsOf(rewardBounds, discount, horizon) : null);
   const result = evaluateLog(log, target, {
     estimators: request.estimators,
     level: request.level,
@@ -66,6 +68,28 @@ export async function runOffPolicy(request: OffPolicyRequest): Promise<OffPolicy
     maxWeight: null,
   });
   return { log, env, discount, horizon, rewardBounds, returnBounds, result, seconds: (performance.now() - started) / 1000 };
+}
+
+/** Fewest start states for which the exact bounds are worth their dynamic programme each. */
+const MAX_EXACT_STARTS = 32;
+
+/**
+ * The exact smallest and largest return of any policy from the log's first states, by dynamic
+ * programming over the environment (exact/return-bounds.ts): much tighter than the reward
+ * bounds times the horizon. Null when the log starts in too many states.
+ */
+function exactReturnBounds(log: EpisodeLog, mdp: FiniteMdp): readonly [number, number] | null {
+  const starts = new Set<number>();
+  for (let i = 0; i < log.episodeIds.length; i++) starts.add(mdp.stateIndex.get(log.stateNames[log.state[log.episodeStart[i]]])!);
+  if (starts.size > MAX_EXACT_STARTS) return null;
+  let low = Number.POSITIVE_INFINITY;
+  let high = Number.NEGATIVE_INFINITY;
+  for (const s of starts) {
+    const [l, h] = returnBounds(mdp, null, s);
+    low = Math.min(low, l);
+    high = Math.max(high, h);
+  }
+  return [low, high];
 }
 
 function environmentFacts(env: BuiltEnvironment | null): { discount?: number; horizon?: number; rewardBounds?: readonly [number, number] } {

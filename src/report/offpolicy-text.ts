@@ -44,7 +44,7 @@ export function offPolicyText(run: Pick<OffPolicyRun, 'log' | 'discount' | 'hori
       [
         ['effective sample size (Kish)', `${sig(d.ess)} of ${count(result.episodes)} episodes (${sig(100 * d.essFraction, 3)}%)`],
         ['  per step', d.stepEss.length > 0 ? `${sig(d.stepEss[0])} at t = 0, smallest ${sig(d.stepEss[smallest])} at t = ${smallest}` : '–'],
-        ['largest weight', `${sig(d.maxWeight)} (${sig(100 * d.maxWeightShare, 3)}% of all weight); ${sig(100 * d.zeroWeightFraction, 3)}% of episodes weigh 0`],
+        ['largest weight', `${sig(d.maxWeight)}${Number.isFinite(d.maxWeightShare) ? ` (${sig(100 * d.maxWeightShare, 3)}% of all weight)` : ''}; ${sig(100 * d.zeroWeightFraction, 3)}% of episodes weigh 0`],
         ['mean weight', `${sig(d.meanWeight)} (${percent}: ${sig(d.meanWeightInterval[0])} … ${sig(d.meanWeightInterval[1])}); 1 when the logged probabilities are right`],
       ],
       '    ',
