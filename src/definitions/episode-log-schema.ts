@@ -68,3 +68,36 @@ export type LogStep = z.output<typeof logStepSchema>;
 export function labelName(value: unknown): string {
   return typeof value === 'string' ? value : JSON.stringify(value);
 }
+
+const STEP_KEYS = new Set(['kind', 'episode', 't', 'state', 'action', 'reward', 'behaviour_prob', 'end', 'behaviour_probs', 'next_state']);
+const isName = (v: unknown) => typeof v === 'string' || (typeof v === 'number' && Number.isFinite(v));
+
+/**
+ * The common case of a step line, recognised without zod: names and numbers where
+ * {@link logStepSchema} allows them, nothing exotic. Accepts only lines that schema accepts
+ * (a test checks this), and returns null for anything else, which then goes through the
+ * schema for its verdict and message. Parsing a million lines through zod costs about a second
+ * more than this check.
+ */
+export function plainStep(json: Record<string, unknown>): LogStep | null {
+  let keys = 0;
+  for (const key in json) {
+    if (!STEP_KEYS.has(key)) return null;
+    keys++;
+  }
+  const { kind, episode, t, state, action, reward, behaviour_prob: p, end, behaviour_probs: probs, next_state: next } = json;
+  if (kind !== undefined && kind !== 'step') return null;
+  if (!((typeof episode === 'string' && episode.length > 0) || (typeof episode === 'number' && Number.isInteger(episode)))) return null;
+  if (!(typeof t === 'number' && Number.isInteger(t) && t >= 0)) return null;
+  if (!isName(state) || !isName(action)) return null;
+  if (!(typeof reward === 'number' && Number.isFinite(reward))) return null;
+  if (!(typeof p === 'number' && p > 0 && p <= 1)) return null;
+  if (!(end === null || end === 'terminal' || end === 'truncated')) return null;
+  if (probs !== undefined) {
+    if (!Array.isArray(probs)) return null;
+    for (const q of probs) if (!(typeof q === 'number' && q >= 0 && q <= 1)) return null;
+  }
+  if (next !== undefined && !isName(next)) return null;
+  if (keys < 7) return null;
+  return json as unknown as LogStep;
+}

@@ -9,7 +9,7 @@ import { createReadStream, statSync } from 'node:fs';
 import { createInterface } from 'node:readline';
 import { InputError } from '../errors.js';
 import { describeValue, formatNumber } from './describe-value.js';
-import { labelName, logHeaderSchema, logStepSchema, type LogHeader, type LogStep } from './episode-log-schema.js';
+import { labelName, logHeaderSchema, logStepSchema, plainStep, type LogHeader, type LogStep } from './episode-log-schema.js';
 import { describeIssues } from './issues.js';
 import { findJsonSyntaxError } from './json-syntax.js';
 
@@ -155,6 +155,8 @@ class LogBuilder {
     }
     const kind = (json as { kind?: unknown }).kind;
     if (kind === 'header') return this.addHeader(json, line);
+    const plain = plainStep(json as Record<string, unknown>);
+    if (plain) return this.addStep(plain, line);
     const parsed = logStepSchema.safeParse(json);
     if (!parsed.success) this.fail(line, describeIssues(parsed.error.issues, json));
     this.addStep(parsed.data, line);
@@ -238,7 +240,7 @@ class LogBuilder {
       if (given.length !== this.actionNames.length) {
         this.fail(line, `behaviour_probs has ${given.length} numbers for the header's ${this.actionNames.length} actions`);
       }
-      given.forEach((p, a) => entries.push([a, p]));
+      for (let a = 0; a < given.length; a++) entries.push([a, given[a]]);
     } else {
       for (const [name, p] of Object.entries(given)) entries.push([this.actionOf(name, line, 'behaviour_probs names action'), p]);
     }
@@ -254,7 +256,8 @@ class LogBuilder {
       this.distributions.set(state, row);
     }
     // rows grow as actions are discovered; keep the smallest positive probability seen
-    const width = Math.max(row.length, ...entries.map(([a]) => a + 1));
+    let width = row.length;
+    for (const [a] of entries) if (a + 1 > width) width = a + 1;
     if (width > row.length) {
       const wider = new Float64Array(width).fill(Number.POSITIVE_INFINITY);
       wider.set(row);

@@ -7,14 +7,15 @@ import type { EpisodeLog } from '../definitions/episode-log.js';
 import { InputError } from '../errors.js';
 import { summarize } from '../stats/summary.js';
 import { tInterval } from '../stats/t-interval.js';
-import { consistentWeightedPerDecision, consistentWeightedPerDecisionInfluence } from '../stats/off-policy/consistent-weighted-per-decision.js';
+import { consistentWeightedPerDecisionInfluence, consistentWeightedPerDecisionSums } from '../stats/off-policy/consistent-weighted-per-decision.js';
 import { doublyRobustValues, type StepModelValues } from '../stats/off-policy/doubly-robust.js';
-import { countedMean, episodeBootstrap } from '../stats/off-policy/episode-bootstrap.js';
+import { episodeBootstrap, meanBootstrap } from '../stats/off-policy/episode-bootstrap.js';
+import { MIN_RESAMPLES } from '../stats/bootstrap-resample.js';
 import { heldOutLowerBound } from '../stats/off-policy/high-confidence-lower-bound.js';
 import { importanceSamplingValues } from '../stats/off-policy/importance-sampling.js';
 import { nonnegativeBettingLowerBound } from '../stats/off-policy/nonnegative-betting-lower-bound.js';
 import { perDecisionValues } from '../stats/off-policy/per-decision-importance-sampling.js';
-import { weightedDoublyRobust, weightedDoublyRobustInfluence } from '../stats/off-policy/weighted-doubly-robust.js';
+import { weightedDoublyRobustInfluence, weightedDoublyRobustSums } from '../stats/off-policy/weighted-doubly-robust.js';
 import { discountedReturns, finalWeights, type WeightedEpisodes } from '../stats/off-policy/weighted-episodes.js';
 import { crossFittedModelValues } from './cross-fitted-model.js';
 import { checkSupport, offPolicyDiagnostics, type OffPolicyDiagnostics } from './diagnostics.js';
@@ -51,9 +52,18 @@ export interface OffPolicyOptions {
   readonly maxWeight: number | null;
 }
 
+/**
+ * Steps × resamples allowed for the bootstrap of CWPDIS and WDR, whose replicates pass over
+ * every step: about a second on one core. Fewer resamples are used on longer logs (never fewer
+ * than the minimum), and the report says how many.
+ */
+export const STEP_REPLICATE_BUDGET = 2e8;
+
 export interface EstimatorResult {
   readonly name: EstimatorName;
   readonly estimate: number;
+  /** Bootstrap resamples used for this estimator. */
+  readonly resamples: number;
   /** Approximate: BCa and percentile bootstrap over episodes; t for the means of per-episode values. */
   readonly intervals: {
     readonly bootstrap: readonly [number, number];
@@ -113,10 +123,9 @@ function estimateWithIntervals(name: EstimatorName, episodes: WeightedEpisodes, 
   if (MEAN_TYPE.has(name)) {
     const values = name === 'is' ? importanceSamplingValues(episodes) : name === 'pdis' ? perDecisionValues(episodes) : doublyRobustValues(episodes, model!);
     const summary = summarize(values);
-    const influence = values.map((v) => v - summary.mean);
-    const boot = episodeBootstrap(n, summary.mean, countedMean(values), influence, options.level, bootstrapOptions);
+    const boot = meanBootstrap(values, summary.mean, options.level, bootstrapOptions);
     const t = tInterval(summary, options.level);
-    return { name, estimate: summary.mean, intervals: { bootstrap: boot.bca, bootstrapPercentile: boot.percentile, t: [t.low, t.high] } };
+    return { name, estimate: summary.mean, resamples: options.resamples, intervals: { bootstrap: boot.bca, bootstrapPercentile: boot.percentile, t: [t.low, t.high] } };
   }
   let estimate: number;
   let replicate: (counts: Float64Array) => number;
@@ -136,17 +145,24 @@ function estimateWithIntervals(name: EstimatorName, episodes: WeightedEpisodes, 
     estimate = replicate(new Float64Array(n).fill(1));
     const meanWeight = w.reduce((a, b) => a + b, 0) / n;
     influence = w.map((wi, i) => (meanWeight > 0 ? (wi * (g[i] - estimate)) / meanWeight : 0));
-  } else if (name === 'cwpdis') {
-    estimate = consistentWeightedPerDecision(episodes);
-    replicate = (c) => consistentWeightedPerDecision(episodes, c);
+    const boot = episodeBootstrap(n, estimate, replicate, influence, options.level, bootstrapOptions);
+    return { name, estimate, resamples: options.resamples, intervals: { bootstrap: boot.bca, bootstrapPercentile: boot.percentile, t: null } };
+  }
+  // A replicate of a per-step normalised estimator costs a pass over every step: bounded work.
+  const resamples = Math.min(options.resamples, Math.max(MIN_RESAMPLES, Math.floor(STEP_REPLICATE_BUDGET / episodes.reward.length)));
+  if (name === 'cwpdis') {
+    const sums = consistentWeightedPerDecisionSums(episodes);
+    estimate = sums.estimate();
+    replicate = (c) => sums.estimate(c);
     influence = consistentWeightedPerDecisionInfluence(episodes);
   } else {
-    estimate = weightedDoublyRobust(episodes, model!);
-    replicate = (c) => weightedDoublyRobust(episodes, model!, c);
+    const sums = weightedDoublyRobustSums(episodes, model!);
+    estimate = sums.estimate();
+    replicate = (c) => sums.estimate(c);
     influence = weightedDoublyRobustInfluence(episodes, model!);
   }
-  const boot = episodeBootstrap(n, estimate, replicate, influence, options.level, bootstrapOptions);
-  return { name, estimate, intervals: { bootstrap: boot.bca, bootstrapPercentile: boot.percentile, t: null } };
+  const boot = episodeBootstrap(n, estimate, replicate, influence, options.level, { ...bootstrapOptions, resamples });
+  return { name, estimate, resamples, intervals: { bootstrap: boot.bca, bootstrapPercentile: boot.percentile, t: null } };
 }
 
 /**

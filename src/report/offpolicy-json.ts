@@ -33,6 +33,7 @@ export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'hori
       name: e.name,
       title: ESTIMATOR_TITLES[e.name],
       estimate: finite(e.estimate),
+      resamples: e.resamples,
       intervals: {
         bootstrap: pair(e.intervals.bootstrap),
         bootstrap_percentile: pair(e.intervals.bootstrapPercentile),

@@ -21,7 +21,9 @@ export function offPolicyText(run: Pick<OffPolicyRun, 'log' | 'discount' | 'hori
     rows.push([e.name, ESTIMATOR_TITLES[e.name], value(e.estimate), range(e.intervals.bootstrap), range(e.intervals.bootstrapPercentile), range(e.intervals.t)]);
   }
   lines.push(...columns(rows));
-  lines.push(`  Bootstrap intervals resample whole episodes (${count(result.resamples)} times) and are approximate, as is t.`);
+  const fewer = result.estimators.filter((e) => e.resamples < result.resamples);
+  const fewerNote = fewer.length > 0 ? `; ${fewer.map((e) => e.name).join(' and ')} ${count(fewer[0].resamples)}, each a pass over every step` : '';
+  lines.push(`  Bootstrap intervals resample whole episodes (${count(result.resamples)} times${fewerNote}) and are approximate, as is t.`);
   if (result.estimators.some((e) => e.name === 'dr' || e.name === 'wdr')) {
     lines.push(`  DR and WDR subtract a tabular model fitted by ${result.folds}-fold cross-fitting (each fold's model from the other folds).`);
   }

@@ -110,3 +110,44 @@ describe('bad logs are refused with the line', () => {
     );
   });
 });
+
+describe('the fast path for plain step lines', () => {
+  it('accepts only what the schema accepts (the schema stays the one definition)', async () => {
+    const { plainStep, logStepSchema } = await import('../../src/definitions/episode-log-schema.js');
+    const base = { episode: 1, t: 0, state: 's', action: 'a', reward: 0.5, behaviour_prob: 0.5, end: null };
+    const variants: Record<string, unknown>[] = [
+      base,
+      { ...base, kind: 'step' },
+      { ...base, kind: 'header' },
+      { ...base, episode: '' },
+      { ...base, episode: 1.5 },
+      { ...base, t: -1 },
+      { ...base, t: 0.5 },
+      { ...base, state: null },
+      { ...base, state: [1, 2] },
+      { ...base, reward: Number.NaN },
+      { ...base, reward: '1' },
+      { ...base, behaviour_prob: 0 },
+      { ...base, behaviour_prob: 1 },
+      { ...base, behaviour_prob: 1.0000001 },
+      { ...base, end: 'done' },
+      { ...base, end: undefined },
+      { ...base, behaviour_probs: [0.5, 0.5] },
+      { ...base, behaviour_probs: [0.5, -0.5] },
+      { ...base, behaviour_probs: { a: 0.5, b: 0.5 } },
+      { ...base, next_state: 's' },
+      { ...base, next_state: null },
+      { ...base, extra: 1 },
+      { episode: 1, t: 0, state: 's', action: 'a', reward: 0, behaviour_prob: 1 },
+    ];
+    let fast = 0;
+    for (const v of variants) {
+      const json = JSON.parse(JSON.stringify(v));
+      if (plainStep(json)) {
+        fast++;
+        expect(logStepSchema.safeParse(json).success, JSON.stringify(v)).toBe(true);
+      }
+    }
+    expect(fast).toBeGreaterThanOrEqual(5);
+  });
+});

@@ -1,3 +1,4 @@
+import { StepRatioSums } from './step-ratio-sums.js';
 import { episodeCount, longestEpisode, stepNormalisers, type Multiplicity, type WeightedEpisodes } from './weighted-episodes.js';
 
 /**
@@ -10,27 +11,23 @@ import { episodeCount, longestEpisode, stepNormalisers, type Multiplicity, type 
  * normaliser is 0 contributes 0.
  */
 export function consistentWeightedPerDecision(episodes: WeightedEpisodes, multiplicity: Multiplicity = null): number {
-  const longest = longestEpisode(episodes);
-  const numerators = stepNumerators(episodes, multiplicity, longest);
-  const normalisers = stepNormalisers(episodes, multiplicity, longest);
-  let estimate = 0;
-  let d = 1;
-  for (let t = 0; t < longest; t++) {
-    if (normalisers[t] > 0) estimate += (d * numerators[t]) / normalisers[t];
-    d *= episodes.discount;
-  }
-  return estimate;
+  return consistentWeightedPerDecisionSums(episodes).estimate(multiplicity);
 }
 
-/** N_t = Σ_i c_i ρ^{(i)}_{0:t} r^{(i)}_t. */
-function stepNumerators(episodes: WeightedEpisodes, multiplicity: Multiplicity, longest: number): Float64Array {
+/** The estimator as reusable sums, for many bootstrap replicates: A_t = ρ_{0:t} r_t, no baseline. */
+export function consistentWeightedPerDecisionSums(episodes: WeightedEpisodes): StepRatioSums {
+  const residual = new Float64Array(episodes.reward.length);
+  for (let k = 0; k < residual.length; k++) residual[k] = episodes.weight[k] * episodes.reward[k];
+  return new StepRatioSums(episodes, residual, null);
+}
+
+/** N_t = Σ_i ρ^{(i)}_{0:t} r^{(i)}_t. */
+function stepNumerators(episodes: WeightedEpisodes, longest: number): Float64Array {
   const { episodeStart, reward, weight } = episodes;
   const out = new Float64Array(longest);
   for (let i = 0; i < episodeCount(episodes); i++) {
-    const c = multiplicity ? multiplicity[i] : 1;
-    if (c === 0) continue;
     const first = episodeStart[i];
-    for (let k = first; k < episodeStart[i + 1]; k++) out[k - first] += c * weight[k] * reward[k];
+    for (let k = first; k < episodeStart[i + 1]; k++) out[k - first] += weight[k] * reward[k];
   }
   return out;
 }
@@ -45,7 +42,7 @@ export function consistentWeightedPerDecisionInfluence(episodes: WeightedEpisode
   const { episodeStart, reward, weight, discount } = episodes;
   const n = episodeCount(episodes);
   const longest = longestEpisode(episodes);
-  const numerators = stepNumerators(episodes, null, longest);
+  const numerators = stepNumerators(episodes, longest);
   const normalisers = stepNormalisers(episodes, null, longest);
   const factor = new Float64Array(longest); // γ^t / D̄_t, or 0
   const ratio = new Float64Array(longest);

@@ -1,4 +1,5 @@
 import type { StepModelValues } from './doubly-robust.js';
+import { StepRatioSums } from './step-ratio-sums.js';
 import { episodeCount, longestEpisode, multiplicitySum, stepNormalisers, type Multiplicity, type WeightedEpisodes } from './weighted-episodes.js';
 
 /**
@@ -9,16 +10,23 @@ import { episodeCount, longestEpisode, multiplicitySum, stepNormalisers, type Mu
  * the least variable. Finished episodes keep their final weight in later normalisers.
  */
 export function weightedDoublyRobust(episodes: WeightedEpisodes, model: StepModelValues, multiplicity: Multiplicity = null): number {
-  const parts = wdrParts(episodes, model, multiplicity);
-  let estimate = 0;
-  let d = 1;
-  for (let t = 0; t < parts.longest; t++) {
-    if (parts.normaliser[t] > 0) estimate += (d * parts.residual[t]) / parts.normaliser[t];
-    const previous = t === 0 ? parts.count : parts.normaliser[t - 1];
-    if (previous > 0) estimate += (d * parts.baseline[t]) / previous;
-    d *= episodes.discount;
+  return weightedDoublyRobustSums(episodes, model).estimate(multiplicity);
+}
+
+/** The estimator as reusable sums: A_t = ρ_{0:t}(r_t − Q̂_t), B_t = ρ_{0:t−1} V̂_t. */
+export function weightedDoublyRobustSums(episodes: WeightedEpisodes, model: StepModelValues): StepRatioSums {
+  const { episodeStart, reward, weight } = episodes;
+  const residual = new Float64Array(reward.length);
+  const baseline = new Float64Array(reward.length);
+  for (let i = 0; i < episodeCount(episodes); i++) {
+    let previous = 1;
+    for (let k = episodeStart[i]; k < episodeStart[i + 1]; k++) {
+      residual[k] = weight[k] * (reward[k] - model.q[k]);
+      baseline[k] = previous * model.v[k];
+      previous = weight[k];
+    }
   }
-  return estimate;
+  return new StepRatioSums(episodes, residual, baseline);
 }
 
 interface WdrParts {
