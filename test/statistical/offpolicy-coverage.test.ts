@@ -2,8 +2,10 @@
  * Off-policy intervals against the truth: logs recorded by `estimate --record`'s recorder
  * from a behaviour policy, whose target value `reckon exact` knows. Over 20 seeds a 95%
  * interval should miss about once; Bin(20, 0.95) gives P(fewer than 16 hits) ≈ 0.3%, so at
- * least 16 hits are required (binomial tolerance: common practice). The one-sided betting
- * bound must stay below the value in at least 19 of 20 seeds (≥ 95%).
+ * least 16 hits are required (binomial tolerance: common practice). The one-sided 95% betting
+ * bound may exceed the value in at most 5% of the seeds in expectation: with 20 seeds up to 3
+ * misses are accepted (P(4 or more) ≈ 1.6% at 5%), and a longer check over 100 seeds accepts
+ * up to 9 (P(10 or more) ≈ 2.8% at exactly 5%; the bound is conservative, so less).
  */
 import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -17,7 +19,7 @@ import { runOffPolicy } from '../../src/offpolicy/run-offpolicy.js';
 const ROOT = path.resolve(__dirname, '../..');
 const SEEDS = 20;
 
-async function coverage(envPath: string, behaviourPath: string, targetPath: string, episodes: number) {
+async function coverage(envPath: string, behaviourPath: string, targetPath: string, episodes: number, seeds = SEEDS, estimators: ('is' | 'pdis' | 'dr')[] = ['is', 'pdis', 'dr']) {
   const env = await loadEnvironmentFile(envPath);
   if (env.built.kind !== 'finite') throw new Error('finite environment expected');
   const mdp = env.built.mdp;
@@ -27,10 +29,10 @@ async function coverage(envPath: string, behaviourPath: string, targetPath: stri
   const behaviourValue = exactEvaluation(mdp, behaviour.built.matrix!, {}).value;
   const dir = mkdtempSync(path.join(tmpdir(), 'reckon-offpolicy-'));
   const hits: Record<string, number> = { is: 0, pdis: 0, dr: 0, 'is t': 0, 'pdis t': 0, 'dr t': 0, betting: 0, 'behaviour value': 0 };
-  for (let seed = 1; seed <= SEEDS; seed++) {
+  for (let seed = 1; seed <= seeds; seed++) {
     const logPath = path.join(dir, `log-${seed}.jsonl`);
     recordFiniteEpisodes(logPath, { mdp, policy: behaviour.built, seed, start: -1, first: 0, count: episodes, description: 'coverage test' });
-    const run = await runOffPolicy({ logPath, policyPath: targetPath, envPath, estimators: ['is', 'pdis', 'dr'], level: 0.95, seed, resamples: 400, folds: 2 });
+    const run = await runOffPolicy({ logPath, policyPath: targetPath, envPath, estimators, level: 0.95, seed, resamples: seeds > SEEDS ? 100 : 400, folds: 2 });
     for (const e of run.result.estimators) {
       const [low, high] = e.intervals.bootstrap;
       if (low <= truth && truth <= high) hits[e.name]++;
@@ -48,7 +50,7 @@ describe('off-policy intervals cover the exact value of the target', () => {
   it('on the demo warehouse (ε-direct behaviour, direct target), 600 episodes a log', async () => {
     const { hits } = await coverage(path.join(ROOT, 'envs/warehouse.json'), path.join(ROOT, 'envs/picker-direct-eps.json'), path.join(ROOT, 'envs/picker-direct.json'), 600);
     for (const name of ['is', 'pdis', 'dr', 'is t', 'pdis t', 'dr t']) expect(hits[name], `${name}: ${JSON.stringify(hits)}`).toBeGreaterThanOrEqual(16);
-    expect(hits.betting).toBeGreaterThanOrEqual(19);
+    expect(hits.betting).toBeGreaterThanOrEqual(SEEDS - 3);
     // the test can fail: the same intervals rarely cover the behaviour's own value
     expect(hits['behaviour value']).toBeLessThanOrEqual(2);
   }, 120_000);
@@ -56,8 +58,13 @@ describe('off-policy intervals cover the exact value of the target', () => {
     const dir = path.join(ROOT, 'test/fixtures/off-policy');
     const { hits } = await coverage(path.join(dir, 'ferry-env.json'), path.join(dir, 'ferry-behaviour.json'), path.join(dir, 'ferry-target.json'), 400);
     for (const name of ['is', 'pdis', 'dr', 'is t', 'pdis t', 'dr t']) expect(hits[name], `${name}: ${JSON.stringify(hits)}`).toBeGreaterThanOrEqual(16);
-    expect(hits.betting).toBeGreaterThanOrEqual(19);
+    expect(hits.betting).toBeGreaterThanOrEqual(SEEDS - 3);
     // the test can fail: the same intervals rarely cover the behaviour's own value
     expect(hits['behaviour value']).toBeLessThanOrEqual(2);
   }, 120_000);
+  it('the betting bound over 100 seeded ferry logs stays below the value in all but a few', async () => {
+    const dir = path.join(ROOT, 'test/fixtures/off-policy');
+    const { hits } = await coverage(path.join(dir, 'ferry-env.json'), path.join(dir, 'ferry-behaviour.json'), path.join(dir, 'ferry-target.json'), 400, 100, ['is']);
+    expect(hits.betting).toBeGreaterThanOrEqual(91);
+  }, 180_000);
 });
