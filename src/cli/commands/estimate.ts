@@ -108,6 +108,9 @@ export async function run(args: string[]): Promise<number> {
   const range = shard ? shardRange(shard, episodes) : { first: 0, count: episodes };
   if (range.count < 2) throw new InputError('--shard', `leaves ${range.count} episode(s) for shard ${shard?.index}; give more --episodes or fewer shards`);
 
+  if (values.record !== undefined && values.noise === 'visit') {
+    throw new InputError('--record', 'replays step-keyed draws only: leave out --noise visit to record the run');
+  }
   const recorder = values.record === undefined ? null : await prepareRecorder(values.record, envPath, policyPath, start);
   const envFile = readDefinitionFile(envPath);
   const policyFile = readDefinitionFile(policyPath);
