@@ -78,13 +78,22 @@ export function summarise(trials, prepared, machine) {
     };
   });
   const byId = Object.fromEntries(workloads.map((w) => [w.id, w]));
-  const throughputScaling = ['a', 'b'].flatMap((id) => {
+  const throughputScaling = ['a', 'b', 'd1', 'd2'].flatMap((id) => {
     const pick = (runnerLabel) => throughput(find(trials, { group: 'throughput', workload: id, runnerLabel }));
     const one = pick('engine-1');
     const all = pick('engine-all');
     if (!one || !all || one.error || all.error) return [];
     const hashes = [one, all].flatMap((x) => x.hashes);
-    return [{ id, episodes: one.episodes, one, all, allOverOne: all.stepsPerSecond / one.stepsPerSecond, identical: new Set(hashes).size === 1 }];
+    return [{
+      id,
+      episodes: one.episodes,
+      one,
+      all,
+      allOverOne: all.stepsPerSecond / one.stepsPerSecond,
+      // CPU seconds a step costs on all workers over on one (as in the workload table).
+      cpuPerStepAllOverOne: one.stepsPerCpuSecond / all.stepsPerCpuSecond,
+      identical: new Set(hashes).size === 1,
+    }];
   });
   const scalingOf = (id) => throughputScaling.find((t) => t.id === id)?.allOverOne ?? byId[id]?.allWorkersOverOne;
   for (const w of workloads) {
@@ -154,6 +163,25 @@ export function summarise(trials, prepared, machine) {
   };
   const startup = { helpMs: startupMs('reckon --help'), nodeMs: startupMs('node -e 0') };
 
+  const analysis = sizesOf('analysis').map((size) => {
+    const runs = ok(find(trials, { group: 'analysis', size, runnerLabel: 'steps' })?.runs ?? []);
+    const names = runs.length ? Object.keys(runs[0].steps) : [];
+    return { episodes: size, distinct: runs[0]?.distinct ?? NaN, steps: Object.fromEntries(names.map((name) => [name, median(runs.map((r) => r.steps[name]))])) };
+  });
+  const commandSeconds = (label) => {
+    const t = find(trials, { group: 'commands', runnerLabel: label });
+    return t ? median(ok(t.runs).map((r) => r.seconds)) : NaN;
+  };
+  const commands = {
+    episodes: sizesOf('commands')[0] ?? NaN,
+    tDirect: commandSeconds('estimate --ci t (direct)'),
+    tCareful: commandSeconds('estimate --ci t (careful)'),
+    bootstrap: commandSeconds('estimate --ci bootstrap (direct)'),
+    compare: commandSeconds('compare (direct, careful)'),
+  };
+  commands.compareOverTwoT = commands.compare / (commands.tDirect + commands.tCareful);
+  commands.bootstrapOverT = commands.bootstrap / commands.tDirect;
+
   const goals = [];
   const goal = (name, target, measured, met) => goals.push({ name, target, measured, met: Number.isFinite(measured) ? met : null });
   goal('one worker on (b) vs the C loop', '>= 0.6x', byId.b?.engineOverC, byId.b?.engineOverC >= 0.6);
@@ -162,6 +190,14 @@ export function summarise(trials, prepared, machine) {
     goal(`${machine.cores} workers vs one on (${id}), long run`, '>= 1.8x', scalingOf(id), scalingOf(id) >= 1.8);
     goal(`(${id}) results identical across workers and loops`, 'same hash', w?.identical === null ? NaN : w?.identical ? 1 : 0, w?.identical === true);
   }
+  for (const id of ['d1', 'd2']) {
+    const t = throughputScaling.find((x) => x.id === id);
+    const long = t && t.one.seconds >= 2;
+    goal(`${machine.cores} workers vs one on module (${id}), run of ${t ? fmt(t.one.seconds, 1) : '–'} s on one`, '>= 1.7x', long ? t.allOverOne : NaN, long && t.allOverOne >= 1.7);
+    goal(`(${id}) results identical across workers`, 'same hash', t ? (t.identical ? 1 : 0) : NaN, t?.identical === true);
+  }
+  goal('compare at 1e6 vs two estimate --ci t', '<= 2x', commands.compareOverTwoT, commands.compareOverTwoT <= 2);
+  goal('estimate --ci bootstrap at 1e6 vs --ci t', '<= 3x', commands.bootstrapOverT, commands.bootstrapOverT <= 3);
   goal('per-episode overhead on (c)', '< 20%', costs.engine?.overheadShare, costs.engine?.overheadShare < 0.2);
   goal('module gridworld (d2) vs compiled (a)', '>= 0.3x', byId.d2?.overReference, byId.d2?.overReference >= 0.3);
   const kept = memory.find((m) => m.label.startsWith('engine, returns kept'));
@@ -170,7 +206,7 @@ export function summarise(trials, prepared, machine) {
   const betting = sequences.find((q) => q.method === 'betting');
   goal('betting sequence, 10⁶ episodes, one core (CPU time)', '<= 2 s', betting?.cpuSeconds, betting?.cpuSeconds <= 2);
 
-  return { machine, workloads, throughputScaling, costs, states, horizons, memory, store, sequences, startup, goals };
+  return { machine, workloads, throughputScaling, costs, states, horizons, memory, store, sequences, startup, analysis, commands, goals };
 }
 
 const fmt = (x, digits = 1) => (Number.isFinite(x) ? x.toFixed(digits) : '–');
@@ -199,10 +235,12 @@ export function render(s) {
   if (errors.length) lines.push('', ...errors.map((e) => `Failed: ${e}`));
   if (s.throughputScaling?.length) {
     lines.push('', 'Worker scaling on longer runs (thread start-up and JIT warm-up amortised), engine only:', '');
-    lines.push('| workload | episodes | 1 worker: M steps/s | all workers: M steps/s | all ÷ 1 | same returns |');
-    lines.push('|---|---:|---:|---:|---:|:---:|');
+    lines.push('| workload | episodes | 1 worker: s | M steps/s | all workers: M steps/s | all ÷ 1 | CPU/step vs 1 worker | same returns |');
+    lines.push('|---|---:|---:|---:|---:|---:|---:|:---:|');
     for (const t of s.throughputScaling) {
-      lines.push(`| (${t.id}) | ${t.episodes.toLocaleString('en')} | ${millions(t.one.stepsPerSecond)} | ${millions(t.all.stepsPerSecond)} | ${ratio(t.allOverOne)} | ${yesNo(t.identical)} |`);
+      lines.push(
+        `| (${t.id}) | ${t.episodes.toLocaleString('en')} | ${fmt(t.one.seconds, 2)} | ${millions(t.one.stepsPerSecond)} | ${millions(t.all.stepsPerSecond)} | ${ratio(t.allOverOne)} | ${ratio(t.cpuPerStepAllOverOne)} | ${yesNo(t.identical)} |`,
+      );
     }
   }
   const d2 = s.workloads.find((w) => w.id === 'd2');
@@ -260,6 +298,23 @@ export function render(s) {
     lines.push('| sequence | wall seconds | CPU seconds | half-width at the end | grid rebuilds |');
     lines.push('|---|---:|---:|---:|---:|');
     for (const q of s.sequences) lines.push(`| ${q.method} | ${fmt(q.seconds, 2)} | ${fmt(q.cpuSeconds, 2)} | ${Number.isFinite(q.halfWidth) ? q.halfWidth.toPrecision(3) : '–'} | ${q.rebuilds ?? '–'} |`);
+    lines.push('');
+  }
+  if (s.analysis?.length) {
+    const names = Object.keys(s.analysis[0].steps);
+    lines.push('Figures computed after sampling, each timed alone (seconds, cold, in a fresh process) on the demo\'s returns (picker-direct; paired with picker-careful):');
+    lines.push('');
+    lines.push(`| step | ${s.analysis.map((a) => `n = ${a.episodes.toLocaleString('en')} (${a.distinct.toLocaleString('en')} distinct)`).join(' | ')} |`);
+    lines.push(`|---|${s.analysis.map(() => '---:').join('|')}|`);
+    for (const name of names) lines.push(`| ${name} | ${s.analysis.map((a) => fmt(a.steps[name], 3)).join(' | ')} |`);
+    lines.push('');
+  }
+  if (Number.isFinite(s.commands?.compare)) {
+    const c = s.commands;
+    lines.push(
+      `Whole commands at ${c.episodes.toLocaleString('en')} episodes a policy (demo, --no-store, wall seconds): estimate --ci t ${fmt(c.tDirect, 2)} (direct), ${fmt(c.tCareful, 2)} (careful); ` +
+        `estimate --ci bootstrap ${fmt(c.bootstrap, 2)} (${ratio(c.bootstrapOverT)} t); compare ${fmt(c.compare, 2)} (${ratio(c.compareOverTwoT)} the two t runs).`,
+    );
     lines.push('');
   }
   if (Number.isFinite(s.startup.helpMs)) {

@@ -170,6 +170,7 @@ const RUNNERS = {
       await runEpisodes(spec, { first: 0, count: episodes, workers, onBlock: (b) => returns.set(b.returns, b.first) });
       samples.push(returns);
     }
+    await new Promise((resolve) => setTimeout(resolve, 300)); // let the worker threads exit first
     const [a, b] = samples;
     const level = 0.95;
     const options = { seed, resamples: stats.DEFAULT_RESAMPLES };

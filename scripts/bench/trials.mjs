@@ -9,7 +9,11 @@ export const STATE_COUNTS = [100, 1_000, 10_000, 100_000];
 /** Horizons for "time per episode against the horizon", on a 400-state MDP without terminal states. */
 export const HORIZONS = [10, 100, 1_000, 10_000];
 /** Workloads rerun longer (episodes × factor) to measure how throughput scales with workers. */
-export const THROUGHPUT_FACTORS = [['a', 5], ['b', 3]];
+export const THROUGHPUT_FACTORS = [['a', 5], ['b', 3], ['d1', 8], ['d2', 3]];
+/** Episodes a policy for the analysis trials: each figure computed after sampling, timed alone. */
+export const ANALYSIS_EPISODES = [10_000, 100_000, 1_000_000];
+/** Episodes a policy for the whole-command trials of the analysis goals. */
+export const COMMAND_EPISODES = 1_000_000;
 /** Episode counts for the memory trials: peak memory should grow by the 8 bytes an episode keeps. */
 export const MEMORY_EPISODES = [200_000, 1_200_000];
 
@@ -61,6 +65,22 @@ export function buildTrials({ prepared, scaling, cores, binary, root }) {
   // A target-error run's sequence, fed one return at a time and checked after each, as the run does.
   for (const method of ['betting', 'empirical-bernstein']) {
     trials.push({ group: 'sequence', size: 1_000_000, runnerLabel: method, run: { runner: 'sequence', method, episodes: 1_000_000, seed } });
+  }
+  const demo = { env: path.join(root, 'envs', 'warehouse.json'), direct: path.join(root, 'envs', 'picker-direct.json'), careful: path.join(root, 'envs', 'picker-careful.json') };
+  for (const episodes of ANALYSIS_EPISODES) {
+    trials.push({ group: 'analysis', size: episodes, runnerLabel: 'steps', run: { runner: 'analysis', env: demo.env, policies: [demo.direct, demo.careful], seed, episodes, workers: cores } });
+  }
+  // The commands a user runs, whole (start-up, sampling, analysis, report), without the store.
+  const cli = path.join(root, 'dist', 'cli', 'main.js');
+  const common = ['--env', demo.env, '--episodes', String(COMMAND_EPISODES), '--seed', String(seed), '--no-store', '--json'];
+  const commands = {
+    'estimate --ci t (direct)': ['estimate', ...common, '--policy', demo.direct],
+    'estimate --ci t (careful)': ['estimate', ...common, '--policy', demo.careful],
+    'estimate --ci bootstrap (direct)': ['estimate', ...common, '--policy', demo.direct, '--ci', 'bootstrap'],
+    'compare (direct, careful)': ['compare', ...common, '--policy', demo.direct, '--policy', demo.careful],
+  };
+  for (const [label, argv] of Object.entries(commands)) {
+    trials.push({ group: 'commands', size: COMMAND_EPISODES, runnerLabel: label, run: { runner: 'command', argv: [process.execPath, cli, ...argv] } });
   }
   trials.push({ group: 'store', size: 1_000_000, runnerLabel: 'store', run: { runner: 'store', episodes: 1_000_000, chunk: 16_384, seed } });
   const main = path.join(root, 'dist', 'cli', 'main.js');
