@@ -34,7 +34,10 @@ describe('sampling and analysis time', () => {
     const made = JSON.parse(reckon(['estimate', '--env', env, '--policy', direct, '--episodes', '3000', '--seed', '4', '--store', store, '--json']).stdout);
     const shown = JSON.parse(reckon(['runs', 'show', made.run_id, '--store', store, '--ci', 'bootstrap', '--json']).stdout);
     expectSplit(shown);
-    expect(shown.sampling_seconds).toBeCloseTo(made.sampling_seconds, 2); // the stored time is taken at the last block
+    // The sampling time is the stored one, the same at every reading; only the analysis is timed anew.
+    const second = JSON.parse(reckon(['runs', 'show', made.run_id, '--store', store, '--json']).stdout);
+    expect(second.sampling_seconds).toBe(shown.sampling_seconds);
+    expect(shown.sampling_seconds).toBeGreaterThan(0);
     expect(reckon(['runs', 'show', made.run_id, '--store', store]).stdout).toMatch(SPLIT);
     const pair = JSON.parse(reckon(['compare', '--env', env, '--policy', direct, '--policy', careful, '--episodes', '3000', '--seed', '4', '--store', store, '--json']).stdout);
     const again = JSON.parse(reckon(['runs', 'show', pair.run_id, '--store', store, '--json']).stdout);
