@@ -1,3 +1,5 @@
+import betaQuantileImpl from '@stdlib/stats-base-dists-beta-quantile';
+import binomialCdfImpl from '@stdlib/stats-base-dists-binomial-cdf';
 import normalCdfImpl from '@stdlib/stats-base-dists-normal-cdf';
 import normalQuantileImpl from '@stdlib/stats-base-dists-normal-quantile';
 import tQuantileImpl from '@stdlib/stats-base-dists-t-quantile';
@@ -27,4 +29,16 @@ export function tQuantile(p: number, df: number): number {
   if (!(df >= 1)) throw new RangeError(`tQuantile: degrees of freedom must be ≥ 1 (got ${df})`);
   if (df === Infinity) return normalQuantile(p);
   return tQuantileImpl(p, df);
+}
+
+/** Quantile of the Beta(a, b) distribution at p (Clopper–Pearson limits are beta quantiles). */
+export function betaQuantile(p: number, a: number, b: number): number {
+  return betaQuantileImpl(p, a, b);
+}
+
+/** P(B ≤ k) for B ~ Binomial(n, p); 0 for k < 0. */
+export function binomialCdf(k: number, n: number, p: number): number {
+  if (k < 0) return 0;
+  if (k >= n) return 1;
+  return binomialCdfImpl(k, n, p);
 }
