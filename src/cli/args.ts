@@ -8,7 +8,7 @@ export type OptionSpec = NonNullable<ParseArgsConfig['options']>;
  * that names it and points to the command's --help.
  */
 export type OptionValues<T extends OptionSpec> = {
-  [K in keyof T]?: T[K] extends { type: 'boolean' } ? boolean : string;
+  [K in keyof T]?: T[K] extends { type: 'boolean' } ? boolean : T[K] extends { multiple: true } ? string[] : string;
 } & { help?: boolean };
 
 export function parseCommandArgs<T extends OptionSpec>(

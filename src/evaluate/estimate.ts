@@ -1,3 +1,5 @@
+import type { RiskRequest } from '../options/risk-options.js';
+import type { RiskFigures } from './risk.js';
 import { runEpisodes } from '../engine/pool.js';
 import { prepareRollout } from '../engine/prepare.js';
 import type { RolloutSpec } from '../engine/spec.js';
@@ -16,6 +18,8 @@ export type IntervalChoice = CiMethod | SequenceChoice;
 
 export interface EstimateRequest {
   readonly spec: RolloutSpec;
+  /** Risk figures to compute from the returns (`--risk`); none when absent. */
+  readonly risk?: RiskRequest | null;
   /** Episodes the run should have when done (counting `prior`); with `targetError`, the cap. */
   readonly episodes: number;
   readonly workers: number;
@@ -92,6 +96,8 @@ export interface EstimateResult {
   readonly target: TargetOutcome | null;
   /** Advice about the interval method at this sample size; printed under the estimate. */
   readonly warnings: readonly string[];
+  /** Quantiles, tail mean and event probabilities, when asked for (`--risk`). */
+  readonly risk: RiskFigures | null;
 }
 
 /**
@@ -196,7 +202,7 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   return computeFigures(
     buffer,
     facts,
-    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start, noise: spec.noise, onAnalysis: request.onAnalysis },
+    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start, noise: spec.noise, onAnalysis: request.onAnalysis, risk: request.risk ?? null },
     timing,
     request.episodes,
     sequence,

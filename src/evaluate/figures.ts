@@ -1,3 +1,5 @@
+import type { RiskRequest } from '../options/risk-options.js';
+import { riskFigures } from './risk.js';
 import { confidenceInterval, projectionTable, summarize, type CiMethod, type ProjectionRow, type RunningInterval } from '../stats/index.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import type { NoiseMode } from '../engine/noise.js';
@@ -19,6 +21,8 @@ export interface FigureSettings {
   readonly seed: number;
   readonly start: string | null;
   readonly onAnalysis?: AnalysisProgress;
+  /** Risk figures to compute as well (`--risk`). */
+  readonly risk?: RiskRequest | null;
   /** False when a sequence is read without a planned size or cap (a comparison's members); default: the requested episodes. */
   readonly plannedEpisodes?: false;
   /** How the episodes' draws were keyed (engine/noise.ts). */
@@ -151,6 +155,7 @@ export function computeFigures(
     });
     projection = withAnalysis(projection, perRunAnalysis, summary.n);
   }
+  const risk = settings.risk ? riskFigures(buffer, settings.risk, { level: settings.level, bounds, seed: settings.seed }) : null;
   const analysisSeconds = analysisSoFar();
   return {
     facts,
@@ -179,5 +184,6 @@ export function computeFigures(
     interrupted: target ? !target.reached && buffer.count < requestedEpisodes : buffer.count < requestedEpisodes,
     target,
     warnings: intervalWarnings(ci.method, summary.n, bounds !== null),
+    risk,
   };
 }

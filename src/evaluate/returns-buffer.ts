@@ -1,6 +1,10 @@
+/** Horizons up to this keep a histogram of episode lengths (for length events of the risk report). */
+const MAX_HISTOGRAM_HORIZON = 1_000_000;
+
 /**
  * Every episode's return, in episode order, 8 bytes each: what re-analysis (bootstrap,
- * another interval method) needs. Lengths are not kept here, only summed.
+ * another interval method) needs. Lengths are not kept one by one, only summed and counted
+ * in a histogram over 0 … horizon.
  */
 export class ReturnsBuffer {
   private data: Float64Array;
@@ -10,8 +14,12 @@ export class ReturnsBuffer {
   /** Episodes that ran the full horizon without ending (their returns may be truncated). */
   atHorizon = 0;
 
+  /** lengthCounts[k]: episodes of exactly k steps; null for very long horizons. */
+  readonly lengthCounts: Float64Array | null;
+
   constructor(capacity: number, private readonly horizon: number) {
     this.data = new Float64Array(Math.max(16, capacity));
+    this.lengthCounts = horizon <= MAX_HISTOGRAM_HORIZON ? new Float64Array(horizon + 1) : null;
   }
 
   append(returns: Float64Array, lengths: Uint32Array): void {
@@ -28,6 +36,7 @@ export class ReturnsBuffer {
       this.lengthSum += length;
       if (length > this.longest) this.longest = length;
       if (length >= this.horizon) this.atHorizon++;
+      if (this.lengthCounts) this.lengthCounts[Math.min(length, this.horizon)]++;
     }
   }
 
@@ -36,3 +45,4 @@ export class ReturnsBuffer {
     return this.data.subarray(0, this.count);
   }
 }
+

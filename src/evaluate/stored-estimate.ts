@@ -1,3 +1,4 @@
+import type { RiskRequest } from '../options/risk-options.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';
 import { definitionHash } from '../store/definition-hash.js';
@@ -42,6 +43,8 @@ export interface StoredEstimateRequest {
   readonly onProgress?: (p: EstimateProgress) => void;
   /** Told how far a slow figure has got, once the episodes are done. */
   readonly onAnalysis?: AnalysisProgress;
+  /** Risk figures to compute from the returns once the run is done (`--risk`). */
+  readonly risk?: RiskRequest | null;
   /** Told the run id as soon as the run exists (so Ctrl-C can say how to resume). */
   readonly onRunId?: (id: string) => void;
 }
@@ -157,6 +160,7 @@ async function execute(
       signal: request.signal,
       onProgress: request.onProgress,
       onAnalysis: request.onAnalysis,
+      risk: request.risk ?? null,
       onFacts: (facts, method) => {
         runId = open(facts, method);
       },
@@ -183,6 +187,7 @@ export interface AnalysisOverrides {
   /** Allow a fixed-sample interval on a target-error run, as a what-if. */
   readonly ignoreStop?: boolean;
   readonly onAnalysis?: AnalysisProgress;
+  readonly risk?: RiskRequest | null;
 }
 
 /**
@@ -221,6 +226,7 @@ export function analyzeStoredRun(db: Db, run: RunRecord, overrides: AnalysisOver
       start: run.start,
       onAnalysis: overrides.onAnalysis,
       noise: run.noise,
+      risk: overrides.risk ?? null,
     },
     { steps: run.steps, seconds: run.seconds, workers: stored.workers },
     run.episodesRequested,

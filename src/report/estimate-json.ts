@@ -1,3 +1,4 @@
+import { riskJson } from './risk-report.js';
 import type { EstimateResult } from '../evaluate/estimate.js';
 
 /**
@@ -48,6 +49,7 @@ export function estimateJson(result: EstimateResult, labels: { env: string; poli
     workers: result.workers,
     interrupted: result.interrupted,
     warnings: result.warnings,
+    risk: riskJson(result.risk),
     reckon_version: version,
   };
 }

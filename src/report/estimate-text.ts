@@ -1,4 +1,5 @@
 import type { EstimateResult } from '../evaluate/estimate.js';
+import { riskText } from './risk-report.js';
 import { columns, count, decimalsFor, duration, fixed, meanWithInterval, rate, sig, timeSplit } from './format.js';
 import { NOISE_WORDS } from './noise-words.js';
 
@@ -71,5 +72,6 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
     }
     lines.push(...columns(rows, '    '));
   }
+  if (result.risk) lines.push(...riskText(result.risk, Math.max(result.std / 10, 1e-12)));
   return lines.join('\n') + '\n';
 }

@@ -34,11 +34,9 @@ export function quantileInterval(sorted: Float64Array, p: number, level: number,
   const n = sorted.length;
   if (n < 1) throw new InputError('--quantiles', 'needs at least one episode');
   const half = (1 - level) / 2;
-  let lowRank = 0;
-  // F_B(k − 1) increases in k: walk up while it stays within α/2.
-  while (lowRank + 1 <= n && binomialCdf(lowRank, n, p) <= half) lowRank++;
-  let highRank = n + 1;
-  while (highRank - 1 >= 1 && 1 - binomialCdf(highRank - 2, n, p) <= half) highRank--;
+  // F_B(k − 1) increases in k, so both ranks are found by bisection.
+  const lowRank = lastRank(0, n, (k) => binomialCdf(k - 1, n, p) <= half);
+  const highRank = firstRank(1, n + 1, (k) => 1 - binomialCdf(k - 1, n, p) <= half);
   const coverage = binomialCdf(highRank - 1, n, p) - binomialCdf(lowRank - 1, n, p);
   const low = lowRank >= 1 ? sorted[lowRank - 1] : bounds ? bounds[0] : -Infinity;
   const high = highRank <= n ? sorted[highRank - 1] : bounds ? bounds[1] : Infinity;
@@ -53,4 +51,28 @@ export function quantileInterval(sorted: Float64Array, p: number, level: number,
  */
 export function wilksConfidence(episodes: number, beta: number): number {
   return 1 - Math.pow(beta, episodes);
+}
+
+/** The largest k in [from, to] with test(k), where test holds up to some k and fails after; `from` when it never holds above it. */
+function lastRank(from: number, to: number, test: (k: number) => boolean): number {
+  let low = from; // test(from) is taken to hold (rank 0: the bound)
+  let high = to + 1;
+  while (high - low > 1) {
+    const mid = (low + high) >> 1;
+    if (test(mid)) low = mid;
+    else high = mid;
+  }
+  return low;
+}
+
+/** The smallest k in [from, to] with test(k), where test fails up to some k and holds after; `to` when only it holds. */
+function firstRank(from: number, to: number, test: (k: number) => boolean): number {
+  let low = from - 1;
+  let high = to; // test(to) is taken to hold (rank n + 1: the bound)
+  while (high - low > 1) {
+    const mid = (low + high) >> 1;
+    if (test(mid)) high = mid;
+    else low = mid;
+  }
+  return high;
 }

@@ -9,6 +9,7 @@ import { parseShard, shardInfo, shardRange } from '../shard.js';
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { parseCommandArgs, required } from '../args.js';
+import { riskRequestFrom } from '../../options/risk-options.js';
 import { parseOption } from '../../options/parse-option.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
@@ -87,6 +88,10 @@ const OPTIONS = {
   'step-timeout': { type: 'string' },
   noise: { type: 'string' },
   record: { type: 'string' },
+  risk: { type: 'boolean' },
+  quantiles: { type: 'string' },
+  tail: { type: 'string' },
+  event: { type: 'string', multiple: true },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -100,6 +105,7 @@ export async function run(args: string[]): Promise<number> {
   const { episodes, targetError } = runSize(values);
   const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
   const method = values.ci === undefined ? null : parseOption('ci', 'interval', values.ci);
+  const risk = riskRequestFrom(values);
 
   const shard = values.shard === undefined ? null : parseShard(values.shard);
   if (shard && targetError !== null) {
@@ -135,6 +141,7 @@ export async function run(args: string[]): Promise<number> {
         signal: stop.signal,
         onProgress: (p) => progress.update(p),
         onAnalysis: (step, done, total) => progress.analysis(step, done, total),
+        risk,
       });
       result = stored.result;
       runId = stored.runId;
@@ -146,6 +153,7 @@ export async function run(args: string[]): Promise<number> {
         signal: stop.signal,
         onProgress: (p) => progress.update(p),
         onAnalysis: (step, done, total) => progress.analysis(step, done, total),
+        risk,
       });
     }
   } finally {
