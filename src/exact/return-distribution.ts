@@ -145,3 +145,60 @@ export function exactQuantile(d: ReturnDistribution, p: number): number {
   }
   return d.returns[d.returns.length - 1];
 }
+
+/** How episodes end under a policy: always computable, whatever the number of distinct returns. */
+export interface EpisodeEndings {
+  /** P(the episode ends on arriving in state s). */
+  readonly terminalProbability: Float64Array;
+  /** P(length ≥ k), k = 0 … H. */
+  readonly lengthAtLeast: Float64Array;
+  /** P(all H steps run without reaching a terminal state). */
+  readonly truncated: number;
+}
+
+/**
+ * The state distribution pushed forward H steps under the policy (the chain's forward equations),
+ * with the mass that arrives in terminal states taken out as it arrives: the probability of
+ * ending in each terminal state, of each length, and of truncation at the horizon.
+ */
+export function exactEndings(mdp: FiniteMdp, policy: PolicyMatrix, start?: number): EpisodeEndings {
+  checkPolicyFits(mdp, policy);
+  const A = mdp.actionCount;
+  const H = mdp.horizon;
+  let mass = Float64Array.from(startDistribution(mdp, start));
+  const terminalProbability = new Float64Array(mdp.stateCount);
+  for (let s = 0; s < mdp.stateCount; s++) {
+    if (mdp.terminal[s] && mass[s] > 0) {
+      terminalProbability[s] += mass[s];
+      mass[s] = 0;
+    }
+  }
+  const lengthAtLeast = new Float64Array(H + 1);
+  lengthAtLeast[0] = 1;
+  for (let t = 0; t < H; t++) {
+    let alive = 0;
+    for (let s = 0; s < mdp.stateCount; s++) alive += mass[s];
+    lengthAtLeast[t + 1] = alive;
+    if (alive === 0) break;
+    const next = new Float64Array(mdp.stateCount);
+    for (let s = 0; s < mdp.stateCount; s++) {
+      const m = mass[s];
+      if (!(m > 0)) continue;
+      for (let a = 0; a < A; a++) {
+        const pa = policy.probability[s * A + a];
+        if (!(pa > 0)) continue;
+        const sa = s * A + a;
+        for (let k = mdp.outcomeStart[sa]; k < mdp.outcomeStart[sa + 1]; k++) {
+          const to = mdp.outcomeNext[k];
+          const p = m * pa * mdp.outcomeProbability[k];
+          if (mdp.terminal[to]) terminalProbability[to] += p;
+          else next[to] += p;
+        }
+      }
+    }
+    mass = next;
+  }
+  let truncated = 0;
+  for (let s = 0; s < mdp.stateCount; s++) truncated += mass[s];
+  return { terminalProbability, lengthAtLeast, truncated };
+}

@@ -48,6 +48,12 @@ Options:
                         that stays valid although the run stops on the data
   --max-episodes N      cap for --target-error runs
   --sigma S             the returns' sub-Gaussian scale, for --ci normal-mixture
+  --risk                also the return's quantiles, the mean of its worst --tail and the
+                        probability of each --event, with intervals (JSON: "risk")
+  --quantiles P,P,...   quantile levels for --risk (default 0.05,0.5,0.95)
+  --tail A              the worst fraction whose mean --risk reports (default 0.05)
+  --event E             an event to count, repeatable: return<X, return<=X, return>X,
+                        return>=X, length>=K, length=K (implies --risk)
   --json                print one JSON object on stdout instead of the report
   --step-timeout SECONDS
                         how long one call into a code environment or policy may take
@@ -66,6 +72,7 @@ Examples:
   reckon estimate --env envs/warehouse.json --policy envs/picker-direct.json --episodes 20000 --seed 7
   reckon estimate --env envs/warehouse.json --policy envs/picker-careful.json --ci bernstein --json
   reckon estimate --env envs/restock-env.json --policy envs/restock-base-stock.json --target-error 2
+  reckon estimate --env envs/restock-env.json --policy envs/restock-base-stock.json --risk --event 'return<300'
 `;
 
 const OPTIONS = {

@@ -2,6 +2,9 @@ import { loadEnvironmentFile, loadPolicyFile } from '../../definitions/index.js'
 import { InputError } from '../../errors.js';
 import { exactEvaluation } from '../../exact/index.js';
 import { exactJson } from '../../report/exact-json.js';
+import { exactRiskJson, exactRiskText } from '../../report/exact-risk-report.js';
+import { exactRisk } from '../../exact/exact-risk.js';
+import { riskRequestFrom } from '../../options/risk-options.js';
 import { exactText } from '../../report/exact-text.js';
 import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
@@ -14,18 +17,23 @@ and the untruncated value (value_infinite; null when the episode may never end).
 Works for gridworld and tabular environments with uniform, table, epsilon, arrows
 policies, and module policies that define probabilities(state).
 
-Usage: reckon exact --env FILE --policy FILE [--start STATE] [--json]
+Usage: reckon exact --env FILE --policy FILE [--start STATE] [--risk ...] [--json]
 
 Options:
   --env FILE        gridworld or tabular environment definition
   --policy FILE     policy definition
   --start STATE     value of one state (e.g. "0,1") instead of the start distribution
+  --risk            also the exact probability of ending in each terminal state and of
+                    running the whole horizon, and, when the return takes at most 100,000
+                    distinct values, its quantiles (--quantiles), worst-α mean (--tail) and
+                    the probability of each --event, as for estimate
   --json            print one JSON object: value, std, states, value_infinite, ...
   -h, --help        this help
 
 Examples:
   reckon exact --env envs/textbook/grid-5x5-portals.json --policy envs/textbook/uniform.json --start 0,1
   reckon exact --env envs/warehouse.json --policy envs/picker-careful.json --json
+  reckon exact --env envs/warehouse.json --policy envs/picker-careful.json --risk --event 'return<12'
 `;
 
 const OPTIONS = {
@@ -34,6 +42,10 @@ const OPTIONS = {
   start: { type: 'string' },
   json: { type: 'boolean' },
   'no-store': { type: 'boolean' },
+  risk: { type: 'boolean' },
+  quantiles: { type: 'string' },
+  tail: { type: 'string' },
+  event: { type: 'string', multiple: true },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -62,9 +74,11 @@ export async function run(args: string[]): Promise<number> {
       throw new InputError('--start', `"${name}" is not a state of ${envPath} (states look like ${mdp.stateNames.slice(0, 4).map((n) => `"${n}"`).join(', ')})`);
     }
   }
+  const riskRequest = riskRequestFrom(values);
   const result = exactEvaluation(mdp, matrix, { start });
+  const risk = riskRequest ? exactRisk(mdp, matrix, start, riskRequest) : null;
   const labels = { env: envPath, policy: policyPath, start: values.start ?? null };
-  if (values.json) process.stdout.write(`${JSON.stringify(exactJson(mdp, result, labels), null, 2)}\n`);
-  else process.stdout.write(exactText(mdp, result, labels));
+  if (values.json) process.stdout.write(`${JSON.stringify({ ...exactJson(mdp, result, labels), ...(risk ? { risk: exactRiskJson(mdp, risk) } : {}) }, null, 2)}\n`);
+  else process.stdout.write(exactText(mdp, result, labels) + (risk ? exactRiskText(mdp, risk) : ''));
   return 0;
 }

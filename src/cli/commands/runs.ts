@@ -11,6 +11,7 @@ import { mergeShards } from '../../store/merge.js';
 import { openStore, type Db } from '../../store/open.js';
 import { deleteRun, getRun, listMembers, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
 import { writeOutputFile } from '../output-file.js';
+import { riskRequestFrom } from '../../options/risk-options.js';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { ProgressLine } from '../progress.js';
@@ -21,7 +22,7 @@ export const HELP = `reckon runs: review, re-analyse, export, resume and merge s
 
 Usage:
   reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--all] [--json]
-  reckon runs show ID [--ci METHOD] [--confidence L] [--ignore-stop] [--json]
+  reckon runs show ID [--ci METHOD] [--confidence L] [--ignore-stop] [--risk ...] [--json]
   reckon runs export ID --format csv|json [--out FILE]
   reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]
   reckon runs resume ID [--workers K] [--step-timeout SECONDS] [--json]
@@ -37,7 +38,8 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
   show     the estimate's report recomputed from the stored returns; --ci and --confidence
            re-analyse them without new episodes. A run that stopped at a target error keeps
            an anytime-valid sequence (betting, empirical-bernstein, ...); --ignore-stop allows
-           a fixed-sample interval as a what-if
+           a fixed-sample interval as a what-if; --risk (with --quantiles, --tail,
+           --event as for estimate) adds quantiles, the worst-α mean and event probabilities
   export   every episode's return and length, for a notebook or a spreadsheet; for a
            comparison, the paired returns: one row an episode, one column a policy
   plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
@@ -127,10 +129,19 @@ function list(args: string[]): number {
   return 0;
 }
 
+/** The risk options, shared with estimate (see src/options/risk-options.ts). */
+const RISK_OPTIONS = { risk: { type: 'boolean' }, quantiles: { type: 'string' }, tail: { type: 'string' }, event: { type: 'string', multiple: true } } as const;
+
 function show(args: string[]): number {
-  const { values, positionals } = parseCommandArgs('runs', args, { ...COMMON, ci: { type: 'string' }, confidence: { type: 'string' }, 'ignore-stop': { type: 'boolean' } }, true);
+  const { values, positionals } = parseCommandArgs(
+    'runs',
+    args,
+    { ...COMMON, ci: { type: 'string' }, confidence: { type: 'string' }, 'ignore-stop': { type: 'boolean' }, ...RISK_OPTIONS },
+    true,
+  );
   if (wantsHelp(values)) return 0;
   const id = oneId('show', positionals);
+  const risk = riskRequestFrom(values);
   const method = values.ci === undefined ? undefined : parseOption('ci', 'interval', values.ci);
   const level = values.confidence === undefined ? undefined : parseOption('confidence', 'confidence', values.confidence);
   const { db, label } = storeFor(values.store);
@@ -157,7 +168,7 @@ function show(args: string[]): number {
       else process.stdout.write(`${header}  ${run.episodesDone} episode(s) stored: too few for an interval.\n${statusNote(run, values.store ?? '')}`);
       return 0;
     }
-    const result = analyzeStoredRun(db, run, { method, level, onAnalysis, ignoreStop: values['ignore-stop'] === true });
+    const result = analyzeStoredRun(db, run, { method, level, onAnalysis, ignoreStop: values['ignore-stop'] === true, risk });
     progress.clear();
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) {
