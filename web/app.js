@@ -222,6 +222,7 @@ async function renderRun(id) {
     el('figure', { class: 'plot', id: 'plot-convergence', 'data-kind': 'convergence' }),
     el('figure', { class: 'plot', id: 'plot-histogram', 'data-kind': 'histogram' }),
     el('figure', { class: 'plot', id: 'plot-lengths', 'data-kind': 'lengths' }),
+    el('figure', { class: 'plot', id: 'plot-cdf', 'data-kind': 'cdf' }),
     el('figure', { class: 'plot', id: 'plot-value-map', 'data-kind': 'value-map' }));
   const definitions = await api(`/api/runs/${encodeURIComponent(id)}/definitions`).catch(() => null);
   show(

@@ -11,7 +11,7 @@ import { parseCommandArgs } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 
 /**
- * `reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map]`: the
+ * `reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map|cdf]`: the
  * page's plot of a stored run as an SVG file, for papers and reports.
  */
 export async function plot(args: string[], help: string): Promise<number> {

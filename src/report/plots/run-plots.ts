@@ -1,11 +1,12 @@
 import type { RunningInterval } from '../../stats/index.js';
+import { cdfSeries, cdfSpec } from './cdf.js';
 import { convergenceSeries, convergenceSpec, sequenceSeries } from './convergence.js';
 import type { RunExactValues } from './exact-for-run.js';
 import { histogramBins, histogramSpec } from './histogram.js';
 import { COLOURS, type PlotSpec } from './palette.js';
 import { valueMapCells, valueMapSpec } from './value-map.js';
 
-export const RUN_PLOT_KINDS = ['convergence', 'histogram', 'lengths', 'value-map'] as const;
+export const RUN_PLOT_KINDS = ['convergence', 'histogram', 'lengths', 'value-map', 'cdf'] as const;
 export type RunPlotKind = (typeof RUN_PLOT_KINDS)[number];
 
 export interface RunPlotInput {
@@ -48,6 +49,8 @@ export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { widt
         colour: COLOURS.purple,
         ...size,
       });
+    case 'cdf':
+      return cdfSpec(cdfSeries(input.returns, input.level), { title: `Distribution of returns: ${what}`, level: input.level, ...size });
     case 'value-map': {
       if (!input.exact || !input.exact.mdp.grid) return null;
       return valueMapSpec(valueMapCells(input.exact.mdp, input.exact.states), {
