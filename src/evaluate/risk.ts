@@ -35,7 +35,7 @@ export interface RiskFigures {
 /**
  * The risk figures of a run from its kept returns (and its length histogram): quantiles with
  * order-statistic intervals, the lower-tail mean with DKW and bootstrap intervals, and the
- * probability of each event with Clopper–Pearson and Wilson intervals (docs/methods.md §13).
+ * probability of each event with Clopper–Pearson and Wilson intervals (docs/methods.md §14).
  */
 export function riskFigures(
   buffer: ReturnsBuffer,

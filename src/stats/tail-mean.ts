@@ -40,7 +40,7 @@ export function tailMeanEstimate(sorted: Float64Array, tail: number): number {
 
 /**
  * Distribution-free interval for CVaR_α of returns in [a, b], from the DKW band F_n ± ε
- * (docs/methods.md §13; the approach of Thomas & Learned-Miller 2019, "Concentration
+ * (docs/methods.md §14; the approach of Thomas & Learned-Miller 2019, "Concentration
  * inequalities for conditional value at risk", ICML, PMLR 97): CVaR is monotone under
  * first-order dominance, so the extreme distributions inside the band give the bounds. Moving
  * mass ε to a: low = [εa + ∫₀^{α−ε} F_n⁻¹]/α (a when α ≤ ε); moving mass ε to b:
