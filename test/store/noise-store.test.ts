@@ -113,7 +113,7 @@ describe('the noise mode in the store', () => {
 });
 
 describe('the noise mode over HTTP', () => {
-  it('POST /api/evaluations takes noise, checked as --noise is; the run keeps it', async () => {
+  it('POST /api/evaluations and /api/comparisons take noise, checked as --noise is; the run keeps it', async () => {
     const storePath = path.join(tempFiles({}), 'runs.sqlite');
     const app = await buildApp({ storePath, toolVersion: 'test', workers: 1 });
     try {
@@ -131,6 +131,15 @@ describe('the noise mode over HTTP', () => {
       expect(done.mean).toBe(direct.mean);
       const rows = (await app.inject({ url: '/api/runs' })).json();
       expect(rows[0].noise).toBe('visit');
+
+      const uniform = readJson('textbook/uniform.json');
+      const payload = { env, policies: [{ name: 'optimal', definition: policy }, { name: 'uniform', definition: uniform }], episodes: 3000, seed: 8, noise: 'visit' };
+      const posted = await app.inject({ method: 'POST', url: '/api/comparisons', payload });
+      expect(posted.statusCode).toBe(202);
+      const compared = (await waitForRun(async () => (await app.inject({ url: `/api/comparisons/${posted.json().id}` })).json())) as Record<string, any>;
+      expect(compared.noise).toBe('visit');
+      // The optimal policy's figures are those of the visit-noise estimate above.
+      expect(compared.policies[0].mean).toBe(direct.mean);
     } finally {
       await app.close();
     }
