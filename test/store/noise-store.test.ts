@@ -31,6 +31,8 @@ describe('the noise mode in the store', () => {
     expect(shown.mean).toBe(visit.mean);
     const rows = json(reckon(['runs', 'list', '--store', store, '--json']));
     expect(Object.fromEntries(rows.map((r: { id: string; noise: string }) => [r.id, r.noise]))).toStrictEqual({ [visit.run_id]: 'visit', [step.run_id]: 'step' });
+    const exported = json(reckon(['runs', 'export', visit.run_id, '--store', store, '--format', 'json']));
+    expect(exported.noise).toBe('visit');
     const text = reckon(['runs', 'show', visit.run_id, '--store', store]);
     expect(text.stdout).toContain('keyed by state visit (--noise visit)');
   });

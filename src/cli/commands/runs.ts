@@ -221,7 +221,7 @@ function exportRun(args: string[]): number {
       for (let i = 0; i < returns.length; i++) lines.push(`${run.firstEpisode + i},${returns[i]},${lengths[i]}`);
       text = lines.join('\n') + '\n';
     } else {
-      text = `${JSON.stringify({ run_id: run.id, seed: run.seed, first_episode: run.firstEpisode, returns: Array.from(returns), lengths: Array.from(lengths) })}\n`;
+      text = `${JSON.stringify({ run_id: run.id, seed: run.seed, noise: run.noise, first_episode: run.firstEpisode, returns: Array.from(returns), lengths: Array.from(lengths) })}\n`;
     }
   } finally {
     db.close();
@@ -254,6 +254,7 @@ function comparisonExport(db: Db, run: RunRecord, format: 'csv' | 'json'): strin
       run_id: run.id,
       kind: 'comparison',
       seed: run.seed,
+      noise: run.noise,
       first_episode: 0,
       policies: names,
       members: members.map((m) => m.id),
