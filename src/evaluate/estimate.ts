@@ -1,3 +1,6 @@
+import type { EventSpec } from '../options/risk-options.js';
+import { eventSequenceSettings, makeEventSequence } from './event-sequence.js';
+import type { TargetEventFigure } from './figures.js';
 import type { RiskRequest } from '../options/risk-options.js';
 import type { RiskFigures } from './risk.js';
 import { runEpisodes } from '../engine/pool.js';
@@ -20,6 +23,8 @@ export interface EstimateRequest {
   readonly spec: RolloutSpec;
   /** Risk figures to compute from the returns (`--risk`); none when absent. */
   readonly risk?: RiskRequest | null;
+  /** Stop when this event's probability is known to ±targetError, instead of the mean (`--target-event`). */
+  readonly targetEvent?: EventSpec | null;
   /** Episodes the run should have when done (counting `prior`); with `targetError`, the cap. */
   readonly episodes: number;
   readonly workers: number;
@@ -98,6 +103,8 @@ export interface EstimateResult {
   readonly warnings: readonly string[];
   /** Quantiles, tail mean and event probabilities, when asked for (`--risk`). */
   readonly risk: RiskFigures | null;
+  /** Set when the run stopped on an event's probability (`--target-event`). */
+  readonly targetEvent: TargetEventFigure | null;
 }
 
 /**
@@ -118,7 +125,13 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   const sigma = request.sigma ?? null;
   let method: IntervalChoice;
   let sequenceSettings: SequenceSettings | null = null;
-  if (request.targetError !== null) {
+  const targetEvent = request.targetEvent ?? null;
+  if (targetEvent && request.targetError === null) throw new InputError('--target-event', 'needs --target-error E: the half-width to reach on the probability, e.g. --target-error 0.001');
+  if (targetEvent) {
+    // The run stops on the event's sequence; the mean gets an interval valid at any stop when bounds allow.
+    sequenceSettings = eventSequenceSettings(request.level, request.targetError!, request.episodes);
+    method = request.method ?? (bounds ? 'betting' : 't');
+  } else if (request.targetError !== null) {
     const choice = chooseSequence(request.method, bounds, sigma);
     sequenceSettings = { method: choice, level: request.level, bounds, sigma, targetError: request.targetError, plannedEpisodes: request.episodes };
     method = choice;
@@ -136,7 +149,7 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   // A fixed-size run knows its size; a target-error run's cap may be far more than it will use.
   const buffer = new ReturnsBuffer(request.targetError === null ? request.episodes : Math.min(request.episodes, 1 << 16), facts.horizon);
   const moments = new RunningMoments();
-  const sequence = sequenceSettings ? makeRunningInterval(sequenceSettings) : null;
+  const sequence = targetEvent ? makeEventSequence(targetEvent, sequenceSettings!) : sequenceSettings ? makeRunningInterval(sequenceSettings) : null;
   const single = new Float64Array(1);
   let reached = false;
   const offer = (returns: Float64Array): number => {
@@ -202,9 +215,10 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   return computeFigures(
     buffer,
     facts,
-    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start, noise: spec.noise, onAnalysis: request.onAnalysis, risk: request.risk ?? null },
+    { method, level: request.level, bounds: request.bounds, targetError: request.targetError, sigma, seed: spec.seed, start: spec.start, noise: spec.noise, onAnalysis: request.onAnalysis, risk: request.risk ?? null,
+      ...(targetEvent ? { targetError: null, plannedEpisodes: false as const, targetEvent: { event: targetEvent, error: request.targetError!, live: sequence } } : {}) },
     timing,
     request.episodes,
-    sequence,
+    targetEvent ? null : sequence,
   );
 }

@@ -1,3 +1,5 @@
+import { EventIndicatorSequence, eventSequenceSettings, makeEventSequence } from './event-sequence.js';
+import type { EventSpec } from '../options/risk-options.js';
 import type { RiskRequest } from '../options/risk-options.js';
 import { riskFigures } from './risk.js';
 import { confidenceInterval, projectionTable, summarize, type CiMethod, type ProjectionRow, type RunningInterval } from '../stats/index.js';
@@ -23,6 +25,11 @@ export interface FigureSettings {
   readonly onAnalysis?: AnalysisProgress;
   /** Risk figures to compute as well (`--risk`). */
   readonly risk?: RiskRequest | null;
+  /**
+   * The run stopped when the probability of this event was known to ±error (`--target-event`);
+   * `live` is the event's sequence a fresh run already fed.
+   */
+  readonly targetEvent?: { readonly event: EventSpec; readonly error: number; readonly live?: RunningInterval | null } | null;
   /** False when a sequence is read without a planned size or cap (a comparison's members); default: the requested episodes. */
   readonly plannedEpisodes?: false;
   /** How the episodes' draws were keyed (engine/noise.ts). */
@@ -67,6 +74,14 @@ export interface ReportedInterval {
   readonly anytimeValid?: boolean;
 }
 
+/** The probability of the event a run stopped on, with the confidence sequence it stopped on. */
+export interface TargetEventFigure {
+  readonly event: string;
+  readonly count: number;
+  readonly estimate: number;
+  readonly interval: ReportedInterval;
+}
+
 /** How a run until a target error ended. */
 export interface TargetOutcome {
   readonly error: number;
@@ -105,6 +120,18 @@ export function computeFigures(
   let ci: ReportedInterval;
   let projection: ProjectionRow[];
   let target: TargetOutcome | null = null;
+  let targetEvent: TargetEventFigure | null = null;
+  if (settings.targetEvent) {
+    const { event, error } = settings.targetEvent;
+    const eventSettings = eventSequenceSettings(settings.level, error, requestedEpisodes);
+    const live = settings.targetEvent.live;
+    const sequence = live instanceof EventIndicatorSequence && live.episodes === returns.length ? live : makeEventSequence(event, eventSettings);
+    if (sequence !== live) sequence.add(returns);
+    const reached = targetReached(sequence, eventSettings);
+    const interval = sequenceInterval(sequence, eventSettings, reached, sequence.count / Math.max(1, returns.length));
+    targetEvent = { event: event.text, count: sequence.count, estimate: sequence.count / Math.max(1, returns.length), interval: { ...interval } };
+    target = { error, reached, maxEpisodes: requestedEpisodes };
+  }
   if (isSequenceMethod(settings.method)) {
     const sequenceSettings: SequenceSettings = {
       method: settings.method,
@@ -120,7 +147,7 @@ export function computeFigures(
     if (!live) sequence.add(returns);
     const reached = settings.targetError !== null && targetReached(sequence, sequenceSettings);
     ci = sequenceInterval(sequence, sequenceSettings, reached, summary.mean);
-    target = settings.targetError === null ? null : { error: settings.targetError, reached, maxEpisodes: requestedEpisodes };
+    if (!settings.targetEvent) target = settings.targetError === null ? null : { error: settings.targetError, reached, maxEpisodes: requestedEpisodes };
     const targets = settings.targetError !== null && !reached ? [settings.targetError] : [ci.halfWidth / 2, ci.halfWidth / 5, ci.halfWidth / 10];
     projection = targets
       .filter((t) => t > 0 && Number.isFinite(t))
@@ -183,7 +210,13 @@ export function computeFigures(
     workers: timing.workers,
     interrupted: target ? !target.reached && buffer.count < requestedEpisodes : buffer.count < requestedEpisodes,
     target,
-    warnings: intervalWarnings(ci.method, summary.n, bounds !== null),
+    warnings: [
+      ...intervalWarnings(ci.method, summary.n, bounds !== null),
+      ...(targetEvent && !ci.anytimeValid
+        ? [`the run stopped when P(${targetEvent.event}) was narrow enough, and the mean's ${ci.method} interval ignores that; give return bounds for one that holds at any stop`]
+        : []),
+    ],
     risk,
+    targetEvent,
   };
 }

@@ -11,6 +11,7 @@ import {
   type BetSchedule,
   type ReturnSummary,
   type RunningInterval,
+  type SequentialInterval,
 } from '../stats/index.js';
 
 /**
@@ -108,7 +109,8 @@ export function targetReached(sequence: RunningInterval, settings: SequenceSetti
  * Chow–Robbins, which reports mean ± d once stopped.
  */
 export function sequenceInterval(sequence: RunningInterval, settings: SequenceSettings, reached: boolean, mean: number) {
-  const interval = sequence instanceof BettingSequence ? sequence.refined() : sequence.interval();
+  const refinable = sequence as RunningInterval & { refined?: () => SequentialInterval };
+  const interval = refinable.refined ? refinable.refined() : sequence.interval();
   if (sequence instanceof ChowRobbinsRule && reached) {
     return { ...interval, low: mean - settings.targetError, high: mean + settings.targetError, halfWidth: settings.targetError };
   }

@@ -1,4 +1,4 @@
-import type { RiskRequest } from '../options/risk-options.js';
+import { parseEvent, type RiskRequest } from '../options/risk-options.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import { InputError } from '../errors.js';
 import { definitionHash } from '../store/definition-hash.js';
@@ -29,6 +29,8 @@ export interface StoredOptions {
   readonly workers: number;
   /** Seconds one plug-in call may take (absent in runs stored before it existed: the default). */
   readonly stepTimeout?: number;
+  /** The event whose probability the run stopped on (`--target-event`), as written; absent: the mean. */
+  readonly targetEvent?: string | null;
 }
 
 export interface StoredEstimateRequest {
@@ -161,6 +163,7 @@ async function execute(
       onProgress: request.onProgress,
       onAnalysis: request.onAnalysis,
       risk: request.risk ?? null,
+      targetEvent: options.targetEvent ? parseEvent(options.targetEvent) : null,
       onFacts: (facts, method) => {
         runId = open(facts, method);
       },
@@ -227,6 +230,7 @@ export function analyzeStoredRun(db: Db, run: RunRecord, overrides: AnalysisOver
       onAnalysis: overrides.onAnalysis,
       noise: run.noise,
       risk: overrides.risk ?? null,
+      ...(stored.targetEvent && !fixedOverride ? { targetError: null, plannedEpisodes: false as const, targetEvent: { event: parseEvent(stored.targetEvent), error: stored.targetError! } } : {}),
     },
     { steps: run.steps, seconds: run.seconds, workers: stored.workers },
     run.episodesRequested,

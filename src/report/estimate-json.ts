@@ -50,6 +50,18 @@ export function estimateJson(result: EstimateResult, labels: { env: string; poli
     interrupted: result.interrupted,
     warnings: result.warnings,
     risk: riskJson(result.risk),
+    target_event: result.targetEvent
+      ? {
+          event: result.targetEvent.event,
+          count: result.targetEvent.count,
+          estimate: result.targetEvent.estimate,
+          method: result.targetEvent.interval.method,
+          low: result.targetEvent.interval.low,
+          high: result.targetEvent.interval.high,
+          half_width: result.targetEvent.interval.halfWidth,
+          anytime_valid: result.targetEvent.interval.anytimeValid ?? false,
+        }
+      : null,
     reckon_version: version,
   };
 }

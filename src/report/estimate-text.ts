@@ -28,7 +28,17 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
   lines.push(`Policy ${labels.policy} in ${labels.env}${result.start ? `, every episode from state ${result.start}` : ''}`);
   lines.push('');
   lines.push(`  expected return  ${meanWithInterval(result.mean, ci.low, ci.high, d)}   (${level} ${METHOD_NAMES[ci.method] ?? ci.method} interval ${fixed(ci.low, d)} … ${fixed(ci.high, d)})`);
-  if (result.target) {
+  if (result.targetEvent) {
+    const e = result.targetEvent;
+    const t = result.target!;
+    const pd = decimalsFor(e.interval.halfWidth);
+    lines.push(`  P(${e.event})${' '.repeat(Math.max(1, 15 - e.event.length))}${fixed(e.estimate, pd)} (${fixed(e.interval.low, pd)} … ${fixed(e.interval.high, pd)})   (${level} anytime-valid betting interval; ${count(e.count)} of ${count(result.episodes)} episodes)`);
+    lines.push(
+      t.reached
+        ? `  target           ±${fixed(t.error, decimalsFor(t.error))} on P(${e.event}) reached after ${count(result.episodes)} episodes (the interval stays valid although the run stopped on the data)`
+        : `  target           ±${fixed(t.error, decimalsFor(t.error))} on P(${e.event}) NOT reached within ${count(t.maxEpisodes)} episodes; reached ±${fixed(e.interval.halfWidth, pd)}`,
+    );
+  } else if (result.target) {
     const t = result.target;
     lines.push(
       t.reached

@@ -9,7 +9,7 @@ import { parseShard, shardInfo, shardRange } from '../shard.js';
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { parseCommandArgs, required } from '../args.js';
-import { riskRequestFrom } from '../../options/risk-options.js';
+import { parseEvent, riskRequestFrom } from '../../options/risk-options.js';
 import { parseOption } from '../../options/parse-option.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
@@ -54,6 +54,8 @@ Options:
   --tail A              the worst fraction whose mean --risk reports (default 0.05)
   --event E             an event to count, repeatable: return<X, return<=X, return>X,
                         return>=X, length>=K, length=K (implies --risk)
+  --target-event E      with --target-error: run until the probability of a return event
+                        (e.g. 'return<0') is known to ±E, on an anytime-valid betting interval
   --json                print one JSON object on stdout instead of the report
   --step-timeout SECONDS
                         how long one call into a code environment or policy may take
@@ -95,6 +97,7 @@ const OPTIONS = {
   'step-timeout': { type: 'string' },
   noise: { type: 'string' },
   record: { type: 'string' },
+  'target-event': { type: 'string' },
   risk: { type: 'boolean' },
   quantiles: { type: 'string' },
   tail: { type: 'string' },
@@ -113,6 +116,8 @@ export async function run(args: string[]): Promise<number> {
   const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
   const method = values.ci === undefined ? null : parseOption('ci', 'interval', values.ci);
   const risk = riskRequestFrom(values);
+  const targetEvent = values['target-event'] === undefined ? null : parseEvent(values['target-event']);
+  if (targetEvent && targetError === null) throw new InputError('--target-event', "needs --target-error E: the half-width to reach on the event's probability, e.g. --target-error 0.001");
 
   const shard = values.shard === undefined ? null : parseShard(values.shard);
   if (shard && targetError !== null) {
@@ -136,7 +141,7 @@ export async function run(args: string[]): Promise<number> {
   let result: EstimateResult;
   let runId: string | null = null;
   try {
-    const options = { episodes: range.count, method, level, bounds, targetError, sigma, workers, stepTimeout };
+    const options = { episodes: range.count, method, level, bounds, targetError, sigma, workers, stepTimeout, targetEvent: targetEvent?.text ?? null };
     if (db) {
       const stored = await runStoredEstimate({
         db,
@@ -161,6 +166,7 @@ export async function run(args: string[]): Promise<number> {
         onProgress: (p) => progress.update(p),
         onAnalysis: (step, done, total) => progress.analysis(step, done, total),
         risk,
+        targetEvent,
       });
     }
   } finally {
@@ -179,7 +185,7 @@ export async function run(args: string[]): Promise<number> {
   }
   if (result.target && !result.target.reached) {
     process.stderr.write(
-      `reckon: the target half-width ${targetError} was not reached within ${result.episodes} episodes (reached ±${result.ci.halfWidth.toPrecision(3)}); raise --max-episodes or accept a wider target\n`,
+      `reckon: the target half-width ${targetError} was not reached within ${result.episodes} episodes (reached ±${(result.targetEvent?.interval.halfWidth ?? result.ci.halfWidth).toPrecision(3)}); raise --max-episodes or accept a wider target\n`,
     );
   }
   if (result.interrupted) {
