@@ -26,6 +26,8 @@ export function rolloutModule(
   const out: StepResult = { state: undefined, reward: 0, done: false };
   const { returns, lengths, first, count } = block;
   const clock = pluginClock();
+  const lowReward = built.rewardRange ? built.rewardRange[0] : -Infinity;
+  const highReward = built.rewardRange ? built.rewardRange[1] : Infinity;
   let steps = 0;
   for (let i = 0; i < count; i++) {
     const episode = first + i;
@@ -54,7 +56,18 @@ export function rolloutModule(
       }
       const reward = result.reward;
       if (typeof reward !== 'number' || !Number.isFinite(reward)) {
-        throw new PluginError('the environment (step)', episode, t, new Error(`returned reward ${String(reward)}, not a finite number`));
+        throw new PluginError('the environment (step)', episode, t, new Error(`${describeValue(reward)} is not a finite number`), 'returned a bad reward');
+      }
+      // The declared bounds feed the horizon, Hoeffding and Bernstein: a reward outside them
+      // would make those figures wrong without a word, so it stops the run.
+      if (reward < lowReward || reward > highReward) {
+        throw new PluginError(
+          'the environment (step)',
+          episode,
+          t,
+          new Error(`${reward} is outside the rewardBounds [${lowReward}, ${highReward}] it declares; fix the reward or the bounds`),
+          'returned a bad reward',
+        );
       }
       g += weight * reward;
       weight *= discount;
@@ -67,4 +80,14 @@ export function rolloutModule(
     steps += t;
   }
   return steps;
+}
+
+/** A returned value as the user would recognise it, with its type when it is not a number. */
+function describeValue(value: unknown): string {
+  if (typeof value === 'string') return `${JSON.stringify(value)} (a string)`;
+  if (typeof value === 'number') return String(value);
+  if (value === null) return 'null';
+  if (value === undefined) return 'undefined (no reward set)';
+  if (Array.isArray(value)) return 'an array';
+  return `a value of type ${typeof value}`;
 }

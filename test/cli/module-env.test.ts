@@ -36,6 +36,30 @@ describe('module environments', () => {
     expect(out.stderr).toMatch(/episode 0, step 3/);
   });
 
+  it('a reward outside the declared rewardBounds, or of the wrong type, is a PluginError naming the episode and step', () => {
+    const module = (reward: string) => `export default () => ({
+        actions: ['a'], discount: 0.9, horizon: 10, rewardBounds: [0, 1],
+        reset: () => 0,
+        step(state, action, rng, out) { out.state = state + 1; out.reward = state === 2 ? ${reward} : 0.5; out.done = false; return out; },
+      });`;
+    const dir = tempFiles({
+      'over.json': { kind: 'module', path: './over.js', options: {} },
+      'text.json': { kind: 'module', path: './text.js', options: {} },
+      'uniform.json': { kind: 'uniform' },
+      'over.js': module('5'),
+      'text.js': module('"1"'),
+    });
+    for (const ci of ['t', 'hoeffding']) {
+      const over = reckon(['estimate', '--env', 'over.json', '--policy', 'uniform.json', '--episodes', '10', '--seed', '1', '--ci', ci, '--no-store'], { cwd: dir });
+      expect(over.code).toBe(1);
+      expect(over.stderr).toContain('the environment (step) returned a bad reward at episode 0, step 2: 5 is outside the rewardBounds [0, 1] it declares');
+      expect(over.stderr).not.toContain('--bounds');
+    }
+    const text = reckon(['estimate', '--env', 'text.json', '--policy', 'uniform.json', '--episodes', '10', '--seed', '1', '--no-store'], { cwd: dir });
+    expect(text.code).toBe(1);
+    expect(text.stderr).toContain('returned a bad reward at episode 0, step 2: "1" (a string) is not a finite number');
+  });
+
   it('hoeffding without any known bounds says to give --bounds (exit 2)', () => {
     const dir = tempFiles({
       'env.json': { kind: 'module', path: './walk.js', options: {} },
