@@ -4,6 +4,7 @@
  * `reckon --help` starts fast. Exit codes: 0 success, 2 bad input or usage, 1 internal error.
  */
 import { InputError } from '../errors.js';
+import { asStoreDamage } from '../store/damage.js';
 
 interface Command {
   run(args: string[]): Promise<number | void>;
@@ -16,7 +17,7 @@ const COMMANDS: Record<string, { summary: string; load: () => Promise<Command> }
   offpolicy: { summary: 'estimate a target policy\'s return from episodes logged under another (importance sampling)', load: () => import('./commands/offpolicy.js') },
   plan: { summary: 'project the episodes and time a target error or a comparison needs, from a short pilot', load: () => import('./commands/plan.js') },
   check: { summary: 'validate definition files and summarise the environment', load: () => import('./commands/check.js') },
-  runs: { summary: 'list, show (re-analyse), export, resume, delete and merge stored runs', load: () => import('./commands/runs.js') },
+  runs: { summary: 'list, show (re-analyse), export, resume, delete, merge and check stored runs', load: () => import('./commands/runs.js') },
   serve: { summary: 'review stored runs in a web page (plots, live progress) and start evaluations over HTTP', load: () => import('./commands/serve.js') },
   demo: { summary: 'evaluate the bundled warehouse demo (what `npm start` runs)', load: () => import('./commands/demo.js') },
 };
@@ -72,7 +73,8 @@ main(process.argv.slice(2)).then(
   (code) => {
     process.exitCode = code;
   },
-  (e: unknown) => {
+  (thrown: unknown) => {
+    const e = asStoreDamage(thrown);
     if (e instanceof InputError) {
       process.stderr.write(`reckon: ${e.message}\n`);
       process.exitCode = e.exitCode;

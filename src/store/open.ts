@@ -3,6 +3,7 @@ import { existsSync, mkdirSync } from 'node:fs';
 import path from 'node:path';
 import { InputError } from '../errors.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './migrations.js';
+import { rememberOpenedStore } from './damage.js';
 
 export type Db = Database.Database;
 
@@ -33,6 +34,7 @@ export function openStore(file: string, options: { readonly?: boolean } = {}): D
     db.pragma('foreign_keys = ON');
     db.pragma('synchronous = NORMAL');
     if (version < SCHEMA_VERSION) migrate(db, version);
+    rememberOpenedStore(file);
     return db;
   } catch (e) {
     db.close();

@@ -251,6 +251,43 @@ describe('shards', () => {
   });
 });
 
+describe('damaged stores', () => {
+  it('a corrupt page: runs show exits 2 naming the store and runs check; runs check lists the damage', () => {
+    const store = storeIn(tempFiles({}));
+    const run = json(reckon(['estimate', ...grid, '--episodes', '40000', '--seed', '1', '--workers', '1', '--store', store, '--json']));
+    const healthy = reckon(['runs', 'check', '--store', store]);
+    expect(healthy.code).toBe(0);
+    expect(healthy.stdout).toContain('no problems found (1 runs, 40,000 episodes)');
+    // Overwrite three whole pages in the middle of the file, where the episode chunks live
+    // (SQLite's default page size is 4096 bytes, from its file format documentation).
+    const bytes = readFileSync(store);
+    const pages = Math.floor(bytes.length / 4096);
+    for (let p = Math.floor(pages / 2); p < Math.floor(pages / 2) + 3; p++) bytes.fill(0xff, p * 4096, (p + 1) * 4096);
+    writeFileSync(store, bytes);
+    const shown = reckon(['runs', 'show', run.run_id, '--store', store]);
+    expect(shown.code).toBe(2);
+    expect(shown.stderr).toContain(`reckon: store ${store}: is damaged`);
+    expect(shown.stderr).toContain(`reckon runs check --store ${store}`);
+    expect(shown.stderr).not.toContain('internal error');
+    const checked = reckon(['runs', 'check', '--store', store, '--json']);
+    expect(checked.code).toBe(2);
+    const report = JSON.parse(checked.stdout);
+    expect(report.ok).toBe(false);
+    expect(report.problems.join('\n')).toContain('SQLite');
+  });
+
+  it('runs check finds a run whose counted episodes disagree with its chunks', () => {
+    const store = storeIn(tempFiles({}));
+    const run = json(reckon(['estimate', ...grid, '--episodes', '300', '--seed', '1', '--store', store, '--json']));
+    const db = new Database(store);
+    db.prepare('UPDATE runs SET episodes_done = episodes_done + 5 WHERE id = ?').run(run.run_id);
+    db.close();
+    const checked = reckon(['runs', 'check', '--store', store]);
+    expect(checked.code).toBe(2);
+    expect(checked.stdout).toContain(`run ${run.run_id}: counts 305 episodes but its chunks hold 300`);
+  });
+});
+
 describe('opening stores', () => {
   function sha(file: string): string {
     return createHash('sha256').update(readFileSync(file)).digest('hex');

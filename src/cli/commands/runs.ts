@@ -8,6 +8,7 @@ import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
 import { compareText } from '../../report/compare-text.js';
 import { defaultStorePath } from '../../store/location.js';
 import { mergeShards } from '../../store/merge.js';
+import { checkStore } from '../../store/check.js';
 import { openStore, type Db } from '../../store/open.js';
 import { deleteRun, getRun, listMembers, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
 import { writeOutputFile } from '../output-file.js';
@@ -28,6 +29,7 @@ Usage:
   reckon runs resume ID [--workers K] [--step-timeout SECONDS] [--json]
   reckon runs delete ID
   reckon runs merge DB... [--into DB]
+  reckon runs check [--json]
 
 Every subcommand takes --store PATH (default: $RECKON_STORE, else
 ~/.local/share/reckon/runs.sqlite).
@@ -50,6 +52,8 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
   delete   remove a run and its episodes
   merge    join the shards of one run ('estimate --shard K/M' on several machines, each with
            its own store) into one run in --into (default: --store)
+  check    SQLite's integrity check of the store, and reckon's own: every run's stored
+           chunks against its episode count; exit 2 when anything is wrong
 
 Examples:
   reckon runs list --policy picker --limit 5
@@ -93,8 +97,10 @@ export async function run(args: string[]): Promise<number> {
       return remove(rest);
     case 'merge':
       return merge(rest);
+    case 'check':
+      return check(rest);
     default:
-      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, export, plot, resume, delete or merge (see 'reckon runs --help')`);
+      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, export, plot, resume, delete, merge or check (see 'reckon runs --help')`);
   }
 }
 
@@ -309,6 +315,28 @@ function remove(args: string[]): number {
     db.close();
   }
   return 0;
+}
+
+function check(args: string[]): number {
+  const { values } = parseCommandArgs('runs', args, COMMON);
+  if (wantsHelp(values)) return 0;
+  const { db, label } = storeFor(values.store);
+  let result: ReturnType<typeof checkStore>;
+  try {
+    result = checkStore(db);
+  } finally {
+    db.close();
+  }
+  const ok = result.problems.length === 0;
+  if (values.json) {
+    process.stdout.write(`${JSON.stringify({ store: label, ok, runs: result.runs, episodes: result.episodes, problems: result.problems }, null, 2)}\n`);
+  } else if (ok) {
+    process.stdout.write(`store ${label}: no problems found (${result.runs} runs, ${result.episodes.toLocaleString('en-US')} episodes)\n`);
+  } else {
+    process.stdout.write(`store ${label}: ${result.problems.length} problem${result.problems.length === 1 ? '' : 's'}:\n${result.problems.map((p) => `  ${p}`).join('\n')}\n`);
+    process.stderr.write(`reckon: store ${label} is damaged; restore it from a copy, or export the runs that still read ('reckon runs export ID')\n`);
+  }
+  return ok ? 0 : 2;
 }
 
 function merge(args: string[]): number {
