@@ -3,21 +3,25 @@ import { startSupport } from '../../engine/finite-rollout.js';
 import { environmentFacts } from '../../evaluate/environment-facts.js';
 import { sig } from '../../report/format.js';
 import { parseCommandArgs, required } from '../args.js';
+import { finiteWarnings } from '../../evaluate/finite-warnings.js';
+import { InputError } from '../../errors.js';
 
 export const HELP = `reckon check: validate definition files and summarise the environment
 
-Usage: reckon check --env FILE [--policy FILE] [--json]
+Usage: reckon check --env FILE [--policy FILE] [--start STATE] [--json]
 
 Prints the states, actions, start states, terminals, reward range, horizon and the exact
 bounds on any return (over all policies, or under --policy). Exit code 2 with a one-line
-message naming the file and the place when a definition is wrong.
+message naming the file and the place when a definition is wrong. Valid files that are
+probably not what was meant get warnings (exit code 0): a start state that is terminal, a
+policy that only ever stays in place somewhere, no terminal reachable from the start.
 
 Examples:
   reckon check --env envs/warehouse.json
   reckon check --env envs/warehouse.json --policy envs/picker-careful.json
 `;
 
-const OPTIONS = { env: { type: 'string' }, policy: { type: 'string' }, json: { type: 'boolean' } } as const;
+const OPTIONS = { env: { type: 'string' }, policy: { type: 'string' }, start: { type: 'string' }, json: { type: 'boolean' } } as const;
 
 function list(items: readonly string[], max = 8): string {
   const names = items.map((n) => (n.includes(',') ? `"${n}"` : n));
@@ -52,6 +56,16 @@ export async function run(args: string[]): Promise<number> {
     const support = startSupport(mdp);
     summary.start = Object.fromEntries(Array.from(support.states, (s) => [mdp.stateNames[s], mdp.startProbability[s]]));
     summary.terminals = mdp.stateNames.filter((_, s) => mdp.terminal[s] === 1);
+    let start: number | null = null;
+    if (values.start !== undefined) {
+      const found = mdp.stateIndex.get(values.start);
+      if (found === undefined) throw new InputError('--start', `"${values.start}" is not a state of ${envPath} (states look like ${mdp.stateNames.slice(0, 4).map((n) => `"${n}"`).join(', ')})`);
+      start = found;
+    }
+    const matrix = policy?.built.matrix ?? null;
+    summary.warnings = policy !== null && matrix === null ? [] : finiteWarnings(mdp, matrix, start);
+  } else {
+    summary.warnings = [];
   }
   if (values.json) {
     process.stdout.write(`${JSON.stringify(summary, null, 2)}\n`);
@@ -74,6 +88,8 @@ export async function run(args: string[]): Promise<number> {
   lines.push(
     `  return bounds  ${facts.returnBounds ? `${sig(facts.returnBounds[0])} … ${sig(facts.returnBounds[1])}${policy ? ' under this policy' : ' over all policies'}` : 'unknown (give --bounds to estimate for hoeffding/bernstein)'}`,
   );
+  const warnings = summary.warnings as string[];
+  if (warnings.length > 0) lines.push('', '  warnings', ...warnings.map((w) => `    - ${w}`));
   process.stdout.write(lines.join('\n') + '\n');
   return 0;
 }
