@@ -56,7 +56,9 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
     lines.push(
       `        P([${pair.first}] returns more than [${pair.second}]) ${poi.estimate.toFixed(3)} (${poi.interval.low.toFixed(3)} … ${poi.interval.high.toFixed(3)}); ` +
         `correlation ${pair.correlation.toFixed(3)}: ` +
-        (pair.varianceReduction >= 1.05
+        (!Number.isFinite(pair.varianceReduction)
+          ? 'the two returned exactly the same in every episode, so their difference is exactly 0 (are they the same policy?)'
+          : pair.varianceReduction >= 1.05
           ? `pairing made this ${sig(pair.varianceReduction, 3)}× cheaper than independent runs`
           : `pairing bought little here (${sig(pair.varianceReduction, 3)}×: the policies' returns hardly move together)`),
     );

@@ -49,6 +49,14 @@ describe('compare', () => {
     }
   });
 
+  it('two identical policies: the difference is exactly 0, said in words, never "Infinity×"', () => {
+    const same = ['--policy', path.join(C, 'grid-4x3-policy.json'), '--policy', path.join(C, 'grid-4x3-policy.json')];
+    const out = reckon(['compare', ...env, ...same, '--episodes', '300', '--seed', '1', '--no-store']);
+    expect(out.code).toBe(0);
+    expect(out.stdout).toContain('returned exactly the same in every episode');
+    expect(out.stdout).not.toContain('Infinity');
+  });
+
   it('one policy is refused with a hint', () => {
     const out = reckon(['compare', ...env, '--policy', path.join(C, 'uniform.json')]);
     expect(out.code).toBe(2);
