@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { spawn } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import Database from 'better-sqlite3';
 import { CLI, FIXTURES, reckon, tempFiles } from '../cli/run-cli.js';
@@ -248,6 +248,9 @@ describe('shards', () => {
     const out = reckon(['runs', 'merge', path.join(dir, 'a.sqlite'), path.join(dir, 'b.sqlite'), '--into', path.join(dir, 'c.sqlite')]);
     expect(out.code).toBe(2);
     expect(out.stderr).toContain('seed');
+    expect(out.stderr).not.toContain('internal error');
+    // The refused merge leaves no empty store behind.
+    expect(existsSync(path.join(dir, 'c.sqlite'))).toBe(false);
   });
 });
 

@@ -13,6 +13,7 @@ import { openStore, type Db } from '../../store/open.js';
 import { deleteRun, getRun, listMembers, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
 import { writeOutputFile } from '../output-file.js';
 import { riskRequestFrom } from '../../options/risk-options.js';
+import { existsSync, rmSync } from 'node:fs';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { ProgressLine } from '../progress.js';
@@ -345,12 +346,24 @@ function merge(args: string[]): number {
   if (positionals.length === 0) throw new InputError('runs merge', "needs the stores holding the shards, e.g. 'reckon runs merge a.sqlite b.sqlite --into all.sqlite'");
   const sources = positionals.map((file) => ({ label: file, db: openStore(file, { readonly: true }) }));
   const intoLabel = values.into ?? values.store ?? defaultStorePath();
+  const created = !existsSync(intoLabel);
   const into = openStore(intoLabel);
   try {
-    const { runId, parts } = mergeShards(sources, into, (merged) => {
-      const result = analyzeStoredRun(into, merged);
-      return { episodes: result.episodes, mean: result.mean, std: result.std, ci: result.ci };
-    });
+    let merged: ReturnType<typeof mergeShards>;
+    try {
+      merged = mergeShards(sources, into, (run) => {
+        const result = analyzeStoredRun(into, run);
+        return { episodes: result.episodes, mean: result.mean, std: result.std, ci: result.ci };
+      });
+    } catch (e) {
+      // A refused merge leaves no store behind that it made itself.
+      if (created) {
+        into.close();
+        for (const suffix of ['', '-wal', '-shm']) rmSync(`${intoLabel}${suffix}`, { force: true });
+      }
+      throw e;
+    }
+    const { runId, parts } = merged;
     const run = getRun(into, runId, intoLabel);
     const result = analyzeStoredRun(into, run);
     const labels = { env: run.env.label, policy: run.policy.label };
