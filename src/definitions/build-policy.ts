@@ -4,6 +4,7 @@
  * through code. Epsilon policies may name their base by file; the chain of files is
  * tracked so a file that leads back to itself is an error, not a hang.
  */
+import { existsSync } from 'node:fs';
 import { isAbsolute, join, dirname, resolve } from 'node:path';
 import { InputError } from '../errors.js';
 import { buildArrowsPolicy } from './arrows-policy.js';
@@ -88,6 +89,9 @@ async function buildBase(
   if (chain.some((l) => l.absolute === absolute)) {
     const loop = [...chain, link].map((l) => l.label).join(' -> ');
     throw new InputError(source.label, `base.path "${base.path}" leads back to a policy file already being loaded (${loop})`);
+  }
+  if (!existsSync(absolute)) {
+    throw new InputError(source.label, `base.path "${base.path}" names a file that does not exist (looked for ${absolute})`);
   }
   const file = readDefinitionFile(absolute, label);
   const def = parsePolicy(file.json, file.source);

@@ -3,6 +3,7 @@
  * against the definition file's folder. Node 20 cannot import TypeScript, so a `.ts`
  * module that fails to load gets advice instead of Node's bare error code.
  */
+import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { extname, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -21,6 +22,21 @@ export function explainImportFailure(path: string, error: unknown): string {
   return `could not load module "${path}": ${why}`;
 }
 
+/**
+ * Where a module's syntax error is (`line L, column C`): Node's import error does not say,
+ * but its syntax check (`node --check`) prints the file, the line and a caret under the spot.
+ * Run only after an import has already failed, so it costs nothing on the way that works.
+ */
+function syntaxErrorPlace(absolute: string): string | null {
+  const asModule = extname(absolute) === '.cjs' ? [] : ['--experimental-default-type=module'];
+  const checked = spawnSync(process.execPath, [...asModule, '--check', absolute], { encoding: 'utf8', timeout: 10_000 });
+  const lines = (checked.stderr ?? '').split('\n');
+  const at = /:(\d+)$/.exec(lines[0] ?? '');
+  if (!at) return null;
+  const caret = (lines[2] ?? '').indexOf('^');
+  return caret >= 0 ? `line ${at[1]}, column ${caret + 1}` : `line ${at[1]}`;
+}
+
 /** The module's default export, checked to be a function (a factory). */
 export async function importFactory(
   relativePath: string,
@@ -35,7 +51,9 @@ export async function importFactory(
   try {
     loaded = (await import(pathToFileURL(absolute).href)) as { default?: unknown };
   } catch (e) {
-    throw new InputError(source.label, explainImportFailure(relativePath, e), { cause: e });
+    const place = e instanceof SyntaxError ? syntaxErrorPlace(absolute) : null;
+    const why = place ? `could not load module "${relativePath}": syntax error at ${place}: ${(e as Error).message}` : explainImportFailure(relativePath, e);
+    throw new InputError(source.label, why, { cause: e });
   }
   if (typeof loaded.default !== 'function') {
     const expected = what === 'environment' ? '(options) => environment' : '(options, context) => policy';

@@ -75,6 +75,19 @@ describe('bad definition files', () => {
     expectBadInput(reckon(['check', '--env', 'nothing-here.json'], { cwd: dir }), 'nothing-here.json: ');
   });
 
+  it('a module with a syntax error: the line and column of the error', () => {
+    const dir = tempFiles({
+      'env.json': { kind: 'module', path: './typo.js' },
+      'typo.js': 'export default () => ({\n  actions: ["a"],\n  discount: 0.9 horizon: 3,\n});\n',
+    });
+    expectBadInput(reckon(['check', '--env', 'env.json'], { cwd: dir }), `env.json: could not load module "./typo.js": syntax error at line 3, column 17: Unexpected identifier 'horizon'`);
+  });
+
+  it('a missing base.path file is reported by the file that refers to it', () => {
+    const dir = tempFiles({ 'grid.json': goodGrid, 'noisy.json': { kind: 'epsilon', epsilon: 0.1, base: { path: 'gone.json' } } });
+    expectBadInput(reckon(['check', '--env', 'grid.json', '--policy', 'noisy.json'], { cwd: dir }), 'noisy.json: base.path "gone.json" names a file that does not exist');
+  });
+
   it('a misspelled key is refused, never silently defaulted', () => {
     const dir = tempFiles({ 'grid.json': { ...goodGrid, discout: 0.5 } });
     expectBadInput(reckon(['check', '--env', 'grid.json'], { cwd: dir }), 'discout');
