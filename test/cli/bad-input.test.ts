@@ -132,6 +132,16 @@ describe('bad options', () => {
     expectBadInput(reckon(['runs', 'export', run.run_id, '--store', store, '--out', dir]), 'it is a folder');
   });
 
+  it('a value map of a tabular run is refused for the right reason: it has no layout', () => {
+    const tab = tempFiles({
+      'mdp.json': { kind: 'tabular', discount: 0.9, states: ['a', 'done'], actions: ['go'], start: { a: 1 }, terminal: ['done'], transitions: [{ from: 'a', action: 'go', to: 'done', p: 1, reward: 1 }] },
+      'uniform.json': { kind: 'uniform' },
+    });
+    const store = `${tab}/runs.sqlite`;
+    const run = JSON.parse(reckon(['estimate', '--env', 'mdp.json', '--policy', 'uniform.json', '--episodes', '50', '--seed', '1', '--store', store, '--json'], { cwd: tab }).stdout);
+    expectBadInput(reckon(['runs', 'plot', run.run_id, '--store', store, '--kind', 'value-map', '--out', `${tab}/map.svg`]), `value-map draws a gridworld's layout, and run ${run.run_id}'s environment is tabular`);
+  });
+
   it('a missing --env says what to give', () => {
     expectBadInput(reckon(['estimate', '--policy', 'uniform.json'], { cwd: dir }), '--env');
   });

@@ -51,7 +51,7 @@ export async function plot(args: string[], help: string): Promise<number> {
         : null;
     const sequence = kind === 'convergence' ? storedRunSequence(run, level) : null;
     const spec = runPlotSpec(kind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact, sequence });
-    if (spec === null) throw new InputError('--kind', `value-map needs a gridworld run whose policy has known probabilities (run ${run.id} has none)`);
+    if (spec === null) throw new InputError('--kind', noValueMapReason(run.id, (run.env.json as { kind?: string }).kind ?? 'unknown', exact !== null));
     svg = await renderSvg(spec);
   } finally {
     db.close();
@@ -59,4 +59,15 @@ export async function plot(args: string[], help: string): Promise<number> {
   writeOutputFile('--out', values.out, svg);
   process.stdout.write(`Wrote the ${kind} plot of run ${positionals[0]} to ${values.out}.\n`);
   return 0;
+}
+
+/** Why a run has no value map, in the words of what the user can change. */
+function noValueMapReason(id: string, envKind: string, exactKnown: boolean): string {
+  if (envKind !== 'gridworld') {
+    const more = envKind === 'tabular' ? "; 'reckon exact --env F --policy F' lists every state's value" : '';
+    return `value-map draws a gridworld's layout, and run ${id}'s environment is ${envKind === 'module' ? 'code' : envKind}${more}`;
+  }
+  return exactKnown
+    ? `run ${id} has no state values to draw`
+    : `value-map needs the policy's action probabilities, and run ${id}'s policy is code without probabilities(state)`;
 }
