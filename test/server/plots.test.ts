@@ -73,6 +73,11 @@ describe('SVG without a browser', () => {
     const svg = readFileSync(out, 'utf8');
     expect(svg.startsWith('<svg')).toBe(true);
     expect(svg).toContain(`run ${id}, 1,000 episodes`);
+    // The figure is as wide as the plot (560 px and its axis), not stretched by a long title,
+    // and no title line is cut short.
+    const width = Number(/<svg[^>]* width="(\d+)"/.exec(svg)![1]);
+    expect(width).toBeLessThan(700);
+    expect(svg).not.toContain('…');
     const map = path.join(path.dirname(storePath), 'map.svg');
     expect(reckon(['runs', 'plot', id, '--store', storePath, '--out', map, '--kind', 'value-map']).code).toBe(0);
     // AIMA Fig. 17.3: the start cell's value under the optimal policy is 0.705 (shown to 2 decimals).

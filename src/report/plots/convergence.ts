@@ -1,5 +1,5 @@
 import { tQuantile, type RunningInterval } from '../../stats/index.js';
-import { COLOURS, PLOT_CONFIG, VEGA_LITE_SCHEMA, type PlotSpec } from './palette.js';
+import { COLOURS, PLOT_CONFIG, VEGA_LITE_SCHEMA, type PlotSpec, titleLines } from './palette.js';
 
 export interface ConvergencePoint {
   /** Episodes averaged so far. */
@@ -78,7 +78,7 @@ export function logCheckpoints(n: number, points: number): number[] {
 }
 
 export interface ConvergenceLabels {
-  readonly title: string;
+  readonly title: string | readonly string[];
   readonly level: number;
   /** The exact value, drawn as a reference line when known. */
   readonly exact?: number | null;
@@ -125,9 +125,12 @@ export function convergenceSpec(series: readonly ConvergencePoint[], labels: Con
     $schema: VEGA_LITE_SCHEMA,
     title: {
       text: labels.title,
-      subtitle:
+      // Long titles are cut to the plot's width (with …) rather than widening the figure.
+      limit: labels.width ?? 560,
+      subtitle: titleLines(
         `line: mean of the first n returns; band: ${labels.sequence ? `the run's ${percent} ${labels.sequence} confidence sequence (valid at every n at once)` : `${percent} t-interval at each n`}` +
-        (labels.exact != null ? '; dashed: exact value' : ''),
+          (labels.exact != null ? '; dashed: exact value' : ''),
+      ),
     },
     width: labels.width ?? 560,
     height: labels.height ?? 280,

@@ -48,7 +48,7 @@ export function histogramBins(values: ArrayLike<number>, options: { integer?: bo
 }
 
 export interface HistogramLabels {
-  readonly title: string;
+  readonly title: string | readonly string[];
   readonly xTitle: string;
   /** A vertical reference line (e.g. the mean), with its name. */
   readonly marker?: { readonly value: number; readonly label: string } | null;
@@ -82,7 +82,7 @@ export function histogramSpec(bins: readonly HistogramBin[], labels: HistogramLa
   }
   return {
     $schema: VEGA_LITE_SCHEMA,
-    title: { text: labels.title, subtitle: labels.marker ? `dashed: ${labels.marker.label}` : '' },
+    title: { text: labels.title, subtitle: labels.marker ? `dashed: ${labels.marker.label}` : '', limit: labels.width ?? 560 },
     width: labels.width ?? 560,
     height: labels.height ?? 220,
     data: { values: bins },

@@ -28,3 +28,11 @@ export const VEGA_LITE_SCHEMA = 'https://vega.github.io/schema/vega-lite/v6.json
 
 /** A Vega-Lite spec as plain JSON (what the page renders and `runs plot` turns into SVG). */
 export type PlotSpec = Record<string, unknown>;
+
+/**
+ * A subtitle of several clauses ("a; b; c") as one line each: text widths in an SVG drawn
+ * without a browser are estimated generously, and one long line would be cut short.
+ */
+export function titleLines(text: string): string[] {
+  return text.split('; ').map((part, i, all) => (i < all.length - 1 ? `${part};` : part));
+}

@@ -23,11 +23,13 @@ export interface RunPlotInput {
 
 /** The plot of one kind for a stored run, or null when it does not apply (a value map of a code environment). */
 export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { width?: number; height?: number } = {}): PlotSpec | null {
-  const what = `${input.policyLabel} on ${input.envLabel} (run ${input.runId}, ${input.returns.length.toLocaleString('en-US')} episodes)`;
+  // File names, not whole paths: the title must fit above the plot.
+  const policy = shortName(input.policyLabel);
+  const run = `on ${shortName(input.envLabel)}, run ${input.runId}, ${input.returns.length.toLocaleString('en-US')} episodes`;
   switch (kind) {
     case 'convergence':
       return convergenceSpec(input.sequence ? sequenceSeries(input.returns, input.sequence.make()) : convergenceSeries(input.returns, input.level), {
-        title: `Convergence: ${what}`,
+        title: [`Convergence: ${policy}`, run],
         level: input.level,
         sequence: input.sequence?.method,
         exact: input.exact?.value ?? null,
@@ -36,7 +38,7 @@ export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { widt
     case 'histogram': {
       const mean = input.returns.reduce((s, x) => s + x, 0) / Math.max(1, input.returns.length);
       return histogramSpec(histogramBins(input.returns), {
-        title: `Returns: ${what}`,
+        title: [`Returns: ${policy}`, run],
         xTitle: 'discounted return',
         marker: input.returns.length > 0 ? { value: mean, label: 'sample mean' } : null,
         ...size,
@@ -44,7 +46,7 @@ export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { widt
     }
     case 'lengths':
       return histogramSpec(histogramBins(input.lengths, { integer: true }), {
-        title: `Episode lengths: ${what}`,
+        title: [`Episode lengths: ${policy}`, run],
         xTitle: 'steps in the episode',
         colour: COLOURS.purple,
         ...size,
@@ -54,9 +56,13 @@ export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { widt
     case 'value-map': {
       if (!input.exact || !input.exact.mdp.grid) return null;
       return valueMapSpec(valueMapCells(input.exact.mdp, input.exact.states), {
-        title: `State values: ${input.policyLabel} on ${input.envLabel}`,
-        subtitle: `exact expected return from each cell over the horizon (${input.exact.mdp.horizon} steps); terminals outlined`,
+        title: [`State values: ${shortName(input.policyLabel)}`, `on ${shortName(input.envLabel)}`],
+        subtitle: `exact value of each cell (horizon ${input.exact.mdp.horizon}); terminals outlined`,
       });
     }
   }
+}
+
+function shortName(label: string): string {
+  return label.split(/[\\/]/).pop() || label;
 }

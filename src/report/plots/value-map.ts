@@ -1,5 +1,5 @@
 import type { FiniteMdp } from '../../definitions/finite-mdp.js';
-import { COLOURS, PLOT_CONFIG, VEGA_LITE_SCHEMA, type PlotSpec } from './palette.js';
+import { COLOURS, PLOT_CONFIG, VEGA_LITE_SCHEMA, type PlotSpec, titleLines } from './palette.js';
 
 export interface ValueCell {
   readonly row: number;
@@ -43,14 +43,14 @@ export function valueMapCells(mdp: FiniteMdp, values: ArrayLike<number>): ValueC
  * each labelled with its value; walls dark grey, terminals white with their layout character
  * and an outline (their value is 0 and would only stretch the scale).
  */
-export function valueMapSpec(cells: readonly ValueCell[], labels: { title: string; subtitle: string; cellSize?: number }): PlotSpec {
+export function valueMapSpec(cells: readonly ValueCell[], labels: { title: string | readonly string[]; subtitle: string; cellSize?: number }): PlotSpec {
   const rows = cells.reduce((m, c) => Math.max(m, c.row + 1), 0);
   const cols = cells.reduce((m, c) => Math.max(m, c.col + 1), 0);
   const size = labels.cellSize ?? Math.max(28, Math.min(56, Math.floor(560 / Math.max(1, cols))));
   const axis = { field: '', type: 'ordinal', axis: null } as const;
   return {
     $schema: VEGA_LITE_SCHEMA,
-    title: { text: labels.title, subtitle: labels.subtitle },
+    title: { text: labels.title, subtitle: titleLines(labels.subtitle), limit: Math.max(cols * size, 420) },
     width: cols * size,
     height: rows * size,
     data: { values: cells },
