@@ -229,6 +229,7 @@ async function renderRun(id) {
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `${run.policy} on ${run.env} `, badge(run.status)),
     live ? el('p', { id: 'live' }, progressLine(run.progress)) : null,
+    live ? stopButton(id) : null,
     run.error ? el('p', { class: 'error' }, run.error) : null,
     run.mean !== undefined ? el('div', { class: 'summary' }, figureRows(run), projectionTable(run)) : el('p', {}, live ? 'The figures and plots appear when the run ends.' : 'No figures: fewer than two episodes are stored.'),
     run.episodes >= 2 && !live ? plots : null,
@@ -241,6 +242,23 @@ async function renderRun(id) {
     await Promise.all([...plots.children].map((figure) => plotInto(figure, id, figure.dataset.kind)));
   }
   if (live) followRun(id);
+}
+
+/** Stops a running or queued run (POST /api/runs/:id/stop); it ends interrupted, resumable. */
+function stopButton(id) {
+  const message = el('span', { class: 'field-error', role: 'status' });
+  const button = el('button', { type: 'button', id: 'stop-run' }, 'Stop this run');
+  button.addEventListener('click', async () => {
+    button.disabled = true;
+    try {
+      await api(`/api/runs/${encodeURIComponent(id)}/stop`, { method: 'POST', body: '{}' });
+      message.textContent = 'Stopping: the episodes finished so far are kept.';
+    } catch (error) {
+      message.textContent = error.message;
+      button.disabled = false;
+    }
+  });
+  return el('p', {}, button, ' ', message);
 }
 
 function progressLine(p) {

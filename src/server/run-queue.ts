@@ -103,6 +103,24 @@ export class RunQueue {
     return { running: this.running.size, waiting: this.waiting.length };
   }
 
+  /**
+   * Stops one job: a running one is asked to stop (it ends interrupted, its finished episodes
+   * kept), a waiting one is dropped. False when this queue does not hold the job.
+   */
+  stop(id: string): boolean {
+    const running = this.running.get(id);
+    if (running) {
+      running.controller.abort();
+      return true;
+    }
+    const position = this.waiting.findIndex((j) => j.id === id);
+    if (position < 0) return false;
+    const [job] = this.waiting.splice(position, 1);
+    job.cancel();
+    this.events.emit(job.id, { type: 'end', status: 'interrupted', error: null } satisfies JobEvent);
+    return true;
+  }
+
   /** Stops taking jobs, drops the waiting ones, and asks the running ones to stop; resolves when they have. */
   async close(): Promise<void> {
     this.closed = true;

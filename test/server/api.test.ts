@@ -285,3 +285,33 @@ describe('runs whose process is gone, and failed runs', () => {
     }
   });
 });
+
+describe('stopping a run over the API', () => {
+  it('POST /api/runs/:id/stop leaves a running run interrupted with its episodes; a finished run is 409; a form post is 415', async () => {
+    const storePath = tempStore();
+    const app = await buildApp({ storePath, toolVersion: 'test', workers: 1, maxEpisodes: 1e9 });
+    try {
+      const posted = await app.inject({ method: 'POST', url: '/api/evaluations', payload: { env: grid, policy: optimal, episodes: 500_000_000, seed: 3 } });
+      const { id } = posted.json();
+      for (let i = 0; i < 200; i++) {
+        const run = (await app.inject({ url: `/api/runs/${id}` })).json();
+        if (run.status === 'running' && run.episodes > 0) break;
+        await new Promise((r) => setTimeout(r, 50));
+      }
+      const form = await app.inject({ method: 'POST', url: `/api/runs/${id}/stop`, headers: { 'content-type': 'application/x-www-form-urlencoded' }, payload: '' });
+      expect(form.statusCode).toBe(415);
+      const stop = await app.inject({ method: 'POST', url: `/api/runs/${id}/stop`, payload: {} });
+      expect(stop.statusCode).toBe(202);
+      const ended = await waitForRun(async () => (await app.inject({ url: `/api/runs/${id}` })).json());
+      expect(ended.status).toBe('interrupted');
+      const cli = JSON.parse(reckon(['runs', 'show', id, '--json', '--store', storePath]).stdout);
+      expect(cli.status).toBe('interrupted');
+      expect(cli.episodes).toBeGreaterThan(0);
+      const again = await app.inject({ method: 'POST', url: `/api/runs/${id}/stop`, payload: {} });
+      expect(again.statusCode).toBe(409);
+      expect(again.json().error).toContain('is interrupted, not running on this server');
+    } finally {
+      await app.close();
+    }
+  });
+});

@@ -64,6 +64,24 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
     return { ...runShowJson(run, result), status: live.status, progress: live.progress };
   });
 
+  /**
+   * `POST /api/runs/:id/stop` (a run or a comparison): a run this server is running or holds
+   * in its queue is stopped and left `interrupted`, its finished episodes kept. The request
+   * must say it is JSON, which a form on another site cannot do without the browser asking.
+   */
+  app.post<{ Params: { id: string } }>('/api/runs/:id/stop', async (request, reply) => {
+    queryOptions(request.query, []);
+    if (!String(request.headers['content-type'] ?? '').startsWith('application/json')) {
+      return reply.code(415).send({ error: 'send Content-Type: application/json (the body may be {})' });
+    }
+    const run = findStoredRun(ctx, request.params.id);
+    if (!ctx.queue.stop(run.id)) {
+      const where = run.status === 'running' ? `; it runs in process ${run.ownerPid}${run.ownerHost ? ` on ${run.ownerHost}` : ''}, stop it there` : '';
+      return reply.code(409).send({ error: `run ${run.id}: is ${run.status}, not running on this server${where}` });
+    }
+    return reply.code(202).send({ id: run.id, status: 'stopping' });
+  });
+
   /** The run's definitions as it ran them (and, for the command line's runs, as their files said). */
   app.get<{ Params: { id: string } }>('/api/runs/:id/definitions', async (request) => {
     queryOptions(request.query, []);
