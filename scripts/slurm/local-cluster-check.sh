@@ -66,7 +66,7 @@ PartitionName=check Nodes=$HOST Default=YES MaxTime=INFINITE State=UP
 CONF
 slurmctld
 slurmd
-for _ in $(seq 1 60); do
+for _ in $(seq 1 240); do
   state="$(sinfo -h -o %T 2>/dev/null | head -1 || true)"
   if [ "$state" = "idle" ]; then break; fi
   sleep 0.5
