@@ -62,7 +62,7 @@ describe('comparison members', () => {
     const asJson = json(reckon(['runs', 'export', id, '--store', store, '--format', 'json']));
     expect(asJson.returns[0]).toEqual(columns[0]);
     expect(asJson.policies).toEqual(policies);
-  });
+  }, 120_000);
 
   it('runs plot of a comparison names its member runs', () => {
     const shown = json(reckon(['runs', 'show', id, '--store', store, '--json']));

@@ -67,5 +67,5 @@ describe('JSON keys', () => {
     expect(listed.summary.ci.half_width).toBe(sequential.ci.half_width);
     expect(listed.summary.ci.anytime_valid).toBe(true);
     expect(listed.summary.ci.halfWidth).toBe(sequential.ci.half_width);
-  });
+  }, 180_000); // a dozen commands, each a process: slow on a loaded machine
 });

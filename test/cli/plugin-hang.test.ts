@@ -29,6 +29,19 @@ const dir = tempFiles({
 });
 const policy = ['--policy', path.join(dir, 'uniform.json')];
 
+function runStored(store: string): boolean {
+  try {
+    const db = new Database(store, { readonly: true, fileMustExist: true });
+    try {
+      return db.prepare('SELECT COUNT(*) AS n FROM runs').get() !== undefined && (db.prepare('SELECT COUNT(*) AS n FROM runs').get() as { n: number }).n > 0;
+    } finally {
+      db.close();
+    }
+  } catch {
+    return false;
+  }
+}
+
 /** The episodes that jam with seed 5: those whose first environment draw is below 0.05. */
 function jammingEpisodes(seed: number, episodes: number): number[] {
   const rng = new Xoshiro128();
@@ -51,7 +64,7 @@ describe('a plug-in that hangs', () => {
     const store = path.join(tempFiles({}), 'runs.sqlite');
     const reported = new Map<string, number>();
     for (const workers of ['1', '2']) {
-      const hung = reckon(['estimate', '--env', path.join(dir, 'spins.json'), ...policy, '--episodes', '400', '--seed', '5', '--workers', workers, '--step-timeout', '0.5', '--store', store, '--json']);
+      const hung = reckon(['estimate', '--env', path.join(dir, 'spins.json'), ...policy, '--episodes', '400', '--seed', '5', '--workers', workers, '--step-timeout', '2', '--store', store, '--json']);
       expect(hung.code).toBe(1);
       // With two threads, each may be stuck in a jam of its own: either is a right answer.
       const where = /the environment \(step\) hung at episode (\d+), step 3/.exec(hung.stderr);
@@ -75,7 +88,7 @@ describe('a plug-in that hangs', () => {
       expect(json.status).toBe('failed');
       expect(json.error).toContain(`hung at episode ${episode}, step 3`);
     }
-  });
+  }, 120_000);
 
   it('Ctrl-C stops a run whose plug-in is stuck, long before the step timeout', async () => {
     const store = path.join(tempFiles({}), 'runs.sqlite');
@@ -85,8 +98,13 @@ describe('a plug-in that hangs', () => {
     let stderr = '';
     child.stderr.on('data', (d) => (stderr += d));
     const exited = new Promise<number | null>((r) => child.on('exit', (code) => r(code)));
-    // The jam comes within the first hundred episodes; give the run time to reach it.
-    await new Promise((r) => setTimeout(r, 2500));
+    // Once the run is stored its signal handlers are in place; the jam comes within the first
+    // hundred episodes, so a moment later the worker is stuck in it.
+    for (let waited = 0; !runStored(store); waited += 100) {
+      if (waited > 60_000) throw new Error('the run never started');
+      await new Promise((r) => setTimeout(r, 100));
+    }
+    await new Promise((r) => setTimeout(r, 1500));
     const sent = Date.now();
     child.kill('SIGINT');
     const code = await Promise.race([exited, new Promise<string>((r) => setTimeout(() => r('still running'), 8000))]);
@@ -97,5 +115,5 @@ describe('a plug-in that hangs', () => {
     const db = new Database(store, { readonly: true });
     expect((db.prepare('SELECT status FROM runs').get() as { status: string }).status).toBe('interrupted');
     db.close();
-  });
+  }, 120_000);
 });
