@@ -1,5 +1,5 @@
 import { dkwEpsilon } from '../../stats/dkw.js';
-import { COLOURS, PLOT_CONFIG, VEGA_LITE_SCHEMA, type PlotSpec } from './palette.js';
+import { COLOURS, PLOT_CONFIG, VEGA_LITE_SCHEMA, type PlotSpec, titleLines } from './palette.js';
 
 export interface CdfPoint {
   readonly return: number;
@@ -34,11 +34,11 @@ export function cdfSeries(returns: Float64Array, level: number): CdfPoint[] {
   });
 }
 
-export function cdfSpec(series: readonly CdfPoint[], labels: { title: string; level: number; width?: number; height?: number }): PlotSpec {
+export function cdfSpec(series: readonly CdfPoint[], labels: { title: string | readonly string[]; level: number; width?: number; height?: number }): PlotSpec {
   const percent = `${+(labels.level * 100).toFixed(2)}%`;
   return {
     $schema: VEGA_LITE_SCHEMA,
-    title: { text: labels.title, subtitle: `step: share of episodes with return ≤ x; band: ${percent} DKW band, holding for every x at once` },
+    title: { text: labels.title, subtitle: titleLines(`step: share of episodes with return ≤ x; band: ${percent} DKW band, holding for every x at once`), limit: labels.width ?? 560 },
     width: labels.width ?? 560,
     height: labels.height ?? 280,
     data: { values: series },

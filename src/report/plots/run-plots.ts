@@ -52,7 +52,7 @@ export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { widt
         ...size,
       });
     case 'cdf':
-      return cdfSpec(cdfSeries(input.returns, input.level), { title: `Distribution of returns: ${what}`, level: input.level, ...size });
+      return cdfSpec(cdfSeries(input.returns, input.level), { title: [`Distribution of returns: ${policy}`, run], level: input.level, ...size });
     case 'value-map': {
       if (!input.exact || !input.exact.mdp.grid) return null;
       return valueMapSpec(valueMapCells(input.exact.mdp, input.exact.states), {
