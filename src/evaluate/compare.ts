@@ -1,3 +1,5 @@
+import type { RiskRequest } from '../options/risk-options.js';
+import { pairedRiskDifferences, type PairedRiskDifferences } from '../stats/paired-risk.js';
 import { runEpisodes } from '../engine/pool.js';
 import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
@@ -34,6 +36,8 @@ export interface CompareRequest {
   /** Run until every pairwise difference's interval is at most this wide (half-width). */
   readonly targetError: number | null;
   readonly interquartileMean: boolean;
+  /** Risk figures of each policy and their paired differences (`--risk`). */
+  readonly risk?: RiskRequest | null;
   readonly signal?: AbortSignal;
   /** Seconds one call into a plug-in may take before the run fails (default 10). */
   readonly stepTimeout?: number;
@@ -65,6 +69,8 @@ export interface ComparisonResult {
   readonly interrupted: boolean;
   /** Advice about the difference intervals at this sample size and share of ties. */
   readonly warnings: readonly string[];
+  /** Per pair (in `comparison.pairs` order), the differences of the risk figures; null without `--risk`. */
+  readonly riskDifferences: readonly PairedRiskDifferences[] | null;
 }
 
 /**
@@ -208,6 +214,7 @@ export function summarizeComparison(
         start: request.start,
         onAnalysis: request.onAnalysis,
         plannedEpisodes: false,
+        risk: request.risk ?? null,
         noise: request.noise,
       },
       { steps: buffer.lengthSum, seconds: seconds / buffers.length, workers: request.workers },
@@ -250,6 +257,29 @@ export function summarizeComparison(
       for (const w of differenceWarnings(request.method, differences)) warnings.push(`[${pair.first}] − [${pair.second}]: ${w}`);
     }
   }
+  const riskDifferences = request.risk
+    ? comparison.pairs.map((pair) =>
+        pairedRiskDifferences(buffers[pair.first].view(), buffers[pair.second].view(), {
+          tail: request.risk!.tail,
+          events: request.risk!.events.filter((e) => e.subject === 'return'),
+          level: request.level,
+          seed: request.seed,
+        }),
+      )
+    : null;
+  if (riskDifferences) {
+    comparison.pairs.forEach((pair, q) => {
+      const d = riskDifferences[q].tailMean;
+      const [better, worse] = pair.meanDifference >= 0 ? [pair.first, pair.second] : [pair.second, pair.first];
+      const tailOfBetter = pair.meanDifference >= 0 ? d.estimate : -d.estimate;
+      if (pair.meanDifference !== 0 && tailOfBetter < 0) {
+        const sure = (pair.meanDifference >= 0 ? d.high : -d.low) < 0;
+        warnings.push(
+          `[${better}] has the better mean but the worse tail: its worst ${+(request.risk!.tail * 100).toFixed(2)}% average ${Math.abs(d.estimate).toPrecision(3)} below [${worse}]'s${sure ? ' (the paired interval excludes 0)' : ' (the paired interval includes 0)'}`,
+        );
+      }
+    });
+  }
   const target = request.targetError === null ? null : { error: request.targetError, reached, maxEpisodes: request.episodes };
   const analysisSeconds = (performance.now() - analysisStarted) / 1000;
   return {
@@ -265,6 +295,7 @@ export function summarizeComparison(
     target,
     interrupted: target ? !reached && episodes < request.episodes : episodes < request.episodes,
     warnings,
+    riskDifferences,
   };
 }
 

@@ -1,3 +1,4 @@
+import type { RiskRequest } from '../options/risk-options.js';
 import { createHash } from 'node:crypto';
 import { definitionHash } from '../store/definition-hash.js';
 import { machineFacts } from '../store/machine.js';
@@ -143,7 +144,7 @@ function comparisonSummary(result: ComparisonResult): Record<string, unknown> {
 }
 
 /** A stored comparison recomputed from its member runs' stored returns. */
-export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: AnalysisProgress): { result: ComparisonResult; labels: { env: string; policies: string[] } } {
+export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: AnalysisProgress, risk: RiskRequest | null = null): { result: ComparisonResult; labels: { env: string; policies: string[] } } {
   const options = run.options as unknown as ComparisonOptions;
   const members = listMembers(db, run.id);
   if (members.length < 2) throw new InputError(`run ${run.id}`, 'is a comparison whose member runs are missing');
@@ -172,6 +173,7 @@ export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: Ana
     targetError: options.targetError,
     interquartileMean: options.interquartileMean,
     onAnalysis,
+    risk,
   };
   const totalSeconds = members.reduce((s, m) => Math.max(s, m.seconds), 0);
   const reached = (run.summary as { target_reached?: boolean } | null)?.target_reached === true;

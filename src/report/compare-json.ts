@@ -1,3 +1,4 @@
+import { riskJson } from './risk-report.js';
 import type { ComparisonResult } from '../evaluate/compare.js';
 
 /**
@@ -39,6 +40,7 @@ export function compareJson(
             method: 'stratified-bootstrap',
           }
         : null,
+      risk: riskJson(estimate.risk),
     })),
     differences: comparison.pairs.map((pair, q) => ({
       a: pair.first,
@@ -57,6 +59,16 @@ export function compareJson(
         low: pair.probabilityOfImprovement.interval.low,
         high: pair.probabilityOfImprovement.interval.high,
       },
+      risk: result.riskDifferences
+        ? {
+            method: 'paired-poisson-bootstrap',
+            approximate: true,
+            resamples: result.riskDifferences[q].resamples,
+            tail: result.riskDifferences[q].tail,
+            tail_mean: result.riskDifferences[q].tailMean,
+            events: result.riskDifferences[q].events,
+          }
+        : null,
     })),
     ranking: [...comparison.policies].sort((x, y) => x.rank - y.rank || x.policy - y.policy).map((p) => p.policy),
     p_value_adjustment: holm ? 'holm' : 'none',

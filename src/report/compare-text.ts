@@ -63,6 +63,19 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
           : `pairing bought little here (${sig(pair.varianceReduction, 3)}×: the policies' returns hardly move together)`),
     );
   });
+  if (result.riskDifferences) {
+    const percent = `${+(result.riskDifferences[0].tail * 100).toFixed(2)}%`;
+    lines.push('', `  Risk differences (first − second), ${level} paired bootstrap intervals, approximate:`);
+    comparison.pairs.forEach((pair, q) => {
+      const r = result.riskDifferences![q];
+      const parts = [`mean of the worst ${percent} ${fixed(r.tailMean.estimate, d)} (${fixed(r.tailMean.low, d)} … ${fixed(r.tailMean.high, d)})`];
+      for (const e of r.events) parts.push(`P(${e.event}) ${e.estimate.toFixed(4)} (${e.low.toFixed(4)} … ${e.high.toFixed(4)})`);
+      lines.push(`    [${pair.first}] − [${pair.second}]   ${parts.join('; ')}`);
+    });
+    result.estimates.forEach((e, p) => {
+      if (e.risk) lines.push(`    [${p}] worst ${percent} mean ${fixed(e.risk.tail.estimate, d)}${e.risk.tail.dkw ? ` (DKW ${fixed(e.risk.tail.dkw.low, d)} … ${fixed(e.risk.tail.dkw.high, d)})` : ''}`);
+    });
+  }
   if (result.warnings.length > 0) lines.push('', ...result.warnings.map((w) => `  warning: ${w}`));
   if (multiple) lines.push('', `  With ${comparison.pairs.length} pairs, p-values are Holm-adjusted (Holm 1979) to keep the chance of any false difference at ${(100 - result.request.level * 100).toFixed(0)}%.`);
   lines.push('', `  time ${timeSplit(result.samplingSeconds, result.analysisSeconds)} on ${result.request.workers} worker${result.request.workers === 1 ? '' : 's'}`);

@@ -72,3 +72,34 @@ describe('risk on the command line', () => {
     expect(out.risk.tail_mean.estimate).toBeLessThan(out.risk.quantiles[0].estimate);
   });
 });
+
+describe('compare --risk', () => {
+  // A choice of our own between a gamble and a sure thing: 'press' pays 10 with probability 0.9 and
+  // −20 otherwise (mean 7), 'hold' pays 5 (mean 5). The gamble's worst 5% is −20.
+  const dir = tempFiles({
+    'choice.json': {
+      kind: 'tabular', discount: 1, horizon: 1, states: ['ready', 'done'], actions: ['press', 'hold'], start: { ready: 1 }, terminal: ['done'],
+      transitions: [
+        { from: 'ready', action: 'press', to: 'done', p: 0.9, reward: 10 },
+        { from: 'ready', action: 'press', to: 'done', p: 0.1, reward: -20 },
+        { from: 'ready', action: 'hold', to: 'done', p: 1, reward: 5 },
+      ],
+    },
+    'press.json': { kind: 'table', states: { ready: 'press' } },
+    'hold.json': { kind: 'table', states: { ready: 'hold' } },
+  });
+  it('reports each policy\'s tail and the paired difference, and says when the better mean has the worse tail', () => {
+    const out = json(reckon(['compare', '--env', path.join(dir, 'choice.json'), '--policy', path.join(dir, 'press.json'), '--policy', path.join(dir, 'hold.json'), '--episodes', '4000', '--seed', '9', '--risk', '--event', 'return<0', '--json', '--store', path.join(dir, 'runs.sqlite')]));
+    expect(out.differences[0].mean).toBeGreaterThan(0); // the gamble wins on average (7 against 5)
+    expect(out.policies[0].risk.tail_mean.estimate).toBeCloseTo(-20, 12); // at least 5% of 4000 draws of −20 at p = 0.1
+    expect(out.policies[1].risk.tail_mean.estimate).toBe(5);
+    const d = out.differences[0].risk;
+    expect(d).toMatchObject({ approximate: true, tail: 0.05 });
+    expect(d.tail_mean.estimate).toBeCloseTo(-25, 12);
+    expect(d.events[0].low).toBeLessThanOrEqual(0.1); // exact P(return<0) difference: 0.1 − 0
+    expect(d.events[0].high).toBeGreaterThanOrEqual(0.1);
+    expect(out.warnings.join(' ')).toMatch(/\[0\] has the better mean but the worse tail/);
+    const shown = json(reckon(['runs', 'show', out.run_id, '--risk', '--event', 'return<0', '--json', '--store', path.join(dir, 'runs.sqlite')]));
+    expect(shown.differences[0].risk).toStrictEqual(out.differences[0].risk);
+  });
+});

@@ -7,6 +7,7 @@ import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
+import { riskRequestFrom } from '../../options/risk-options.js';
 import { parseCommandArgs, required } from '../args.js';
 import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
@@ -42,6 +43,9 @@ Options:
   --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
   --sigma S             one return's sub-Gaussian scale, for normal-mixture
   --iqm                 also the interquartile mean of each policy (stratified bootstrap)
+  --risk                also each policy's risk figures (as for estimate: --quantiles, --tail,
+                        --event) and their paired differences, with a line when the policy
+                        with the better mean has the worse tail
   --start STATE         start every episode in STATE
   --noise MODE          how the random draws are keyed: step (the draw of step t of episode
                         i, default) or visit (the draw of the k-th visit of state s: close
@@ -74,6 +78,10 @@ const OPTIONS = {
   bounds: { type: 'string' },
   sigma: { type: 'string' },
   iqm: { type: 'boolean' },
+  risk: { type: 'boolean' },
+  quantiles: { type: 'string' },
+  tail: { type: 'string' },
+  event: { type: 'string', multiple: true },
   start: { type: 'string' },
   workers: { type: 'string' },
   store: { type: 'string' },
@@ -114,6 +122,7 @@ export async function run(args: string[]): Promise<number> {
     sigma,
     targetError,
     interquartileMean: Boolean(values.iqm),
+    risk: riskRequestFrom(values),
     stepTimeout,
   };
   const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());

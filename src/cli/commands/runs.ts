@@ -158,7 +158,7 @@ function show(args: string[]): number {
     const progress = new ProgressLine();
     const onAnalysis = (step: string, done: number, total: number) => progress.analysis(step, done, total);
     if (run.kind === 'comparison') {
-      const { result, labels } = analyzeStoredComparison(db, run, onAnalysis);
+      const { result, labels } = analyzeStoredComparison(db, run, onAnalysis, risk);
       progress.clear();
       const members = listMembers(db, run.id);
       if (values.json) {
