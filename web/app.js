@@ -179,7 +179,7 @@ function noiseWords(mode) {
 function figureRows(run) {
   const rows = [
     ['mean return', num(run.mean)],
-    [`${(run.ci.level * 100).toFixed(0)}% interval (${run.ci.method})`, `${num(run.ci.low)} to ${num(run.ci.high)}  (± ${num(run.ci.half_width, 3)})`],
+    [`${(run.ci.level * 100).toFixed(0)}% interval (${run.ci.method})`, centred(run) ? `${num(run.ci.low)} to ${num(run.ci.high)}  (± ${num(run.ci.half_width, 3)})` : `${num(run.ci.low)} to ${num(run.ci.high)}  (not centred on the mean)`],
     ['standard deviation', num(run.std)],
     ['episodes', `${count(run.episodes)} of ${count(run.episodes_requested)}`],
     ['seed', String(run.seed)],
@@ -191,6 +191,34 @@ function figureRows(run) {
     ['rate', run.steps_per_second ? `${count(run.steps_per_second)} steps/s on ${run.workers} worker${run.workers === 1 ? '' : 's'}` : '–'],
   ];
   return el('table', { class: 'figures' }, el('tbody', {}, rows.map(([k, v]) => el('tr', {}, el('th', { scope: 'row' }, k), el('td', {}, v)))));
+}
+
+/** Whether the interval is centred on the mean: only then is a ± shown (as the command line does). */
+function centred(run) {
+  const centre = (run.ci.low + run.ci.high) / 2;
+  return Math.abs(centre - run.mean) <= 1e-9 * Math.max(1, Math.abs(run.mean)) + 1e-3 * run.ci.half_width;
+}
+
+/** The run's risk figures (GET /api/runs/:id?risk=true): quantiles and the worst-5% mean with their intervals. */
+async function riskTable(id) {
+  const run = await api(`/api/runs/${encodeURIComponent(id)}?risk=true`).catch(() => null);
+  const risk = run?.risk;
+  if (!risk) return null;
+  const level = `${+(risk.level * 100).toFixed(2)}%`;
+  const bound = (x) => (x === null ? '–' : num(x));
+  const rows = risk.quantiles.map((q) => el('tr', {},
+    el('th', { scope: 'row' }, `${+(q.p * 100).toFixed(2)}% quantile`),
+    el('td', { class: 'number' }, num(q.estimate)),
+    el('td', {}, `${bound(q.low)} to ${bound(q.high)} (order statistics, coverage ≥ ${(q.coverage * 100).toFixed(1)}%)`)));
+  const t = risk.tail_mean;
+  rows.push(el('tr', {},
+    el('th', { scope: 'row' }, `mean of the worst ${+(t.tail * 100).toFixed(2)}%`),
+    el('td', { class: 'number' }, num(t.estimate)),
+    el('td', {}, [t.dkw ? `${num(t.dkw.low)} to ${num(t.dkw.high)} (DKW, distribution-free)` : 'no return bounds: no distribution-free interval', t.bootstrap ? `; ${num(t.bootstrap.low)} to ${num(t.bootstrap.high)} (bootstrap, approximate)` : ''].join(''))));
+  return el('table', { class: 'projection', id: 'risk' },
+    el('caption', {}, `Risk: the return's tail, ${level} intervals`),
+    el('thead', {}, el('tr', {}, el('th', { scope: 'col' }, 'figure'), el('th', { scope: 'col' }, 'value'), el('th', { scope: 'col' }, 'interval'))),
+    el('tbody', {}, rows));
 }
 
 function projectionTable(run) {
@@ -239,6 +267,8 @@ async function renderRun(id) {
       el('h3', {}, run.policy), el('pre', {}, JSON.stringify(definitions.policy, null, 2))) : null,
   );
   if (run.episodes >= 2 && !live) {
+    const risk = await riskTable(id);
+    if (risk) plots.before(risk);
     await Promise.all([...plots.children].map((figure) => plotInto(figure, id, figure.dataset.kind)));
   }
   if (live) followRun(id);

@@ -21,7 +21,7 @@ export class RunAnalysisCache {
   constructor(private readonly db: Db) {}
 
   figures(run: RunRecord, overrides: AnalysisOverrides, stable: boolean): EstimateResult {
-    return this.get(`figures|${run.id}|${overrides.method ?? ''}|${overrides.level ?? ''}|${overrides.ignoreStop ? 1 : 0}`, stable, () => analyzeStoredRun(this.db, run, overrides));
+    return this.get(`figures|${run.id}|${overrides.method ?? ''}|${overrides.level ?? ''}|${overrides.ignoreStop ? 1 : 0}|${overrides.risk ? JSON.stringify(overrides.risk) : ''}`, stable, () => analyzeStoredRun(this.db, run, overrides));
   }
 
   episodes(run: RunRecord, stable: boolean): { returns: Float64Array; lengths: Uint32Array } {

@@ -60,6 +60,17 @@ describe('review server API (fastify inject)', () => {
     expect(again.ci.method).toBe(JSON.parse(reckon(['runs', 'show', storedId, '--json', '--ci', 'bootstrap', '--store', storePath]).stdout).ci.method);
   });
 
+  it('gives the risk figures as runs show --risk does, and the CDF plot; a bad risk option is a 400', async () => {
+    const withRisk = (await app.inject({ url: `/api/runs/${storedId}?risk=true&event=return<0` })).json();
+    const cli = JSON.parse(reckon(['runs', 'show', storedId, '--json', '--risk', '--event', 'return<0', '--store', storePath]).stdout);
+    expect(withRisk.risk).toEqual(cli.risk);
+    expect((await app.inject({ url: `/api/runs/${storedId}?risk=maybe` })).statusCode).toBe(400);
+    expect((await app.inject({ url: `/api/runs/${storedId}?tail=2` })).json().error).toMatch(/--tail: must be a fraction/);
+    const cdf = await app.inject({ url: `/api/runs/${storedId}/plots/cdf` });
+    expect(cdf.statusCode).toBe(200);
+    expect(JSON.stringify(cdf.json())).toMatch(/DKW band/);
+  });
+
   it('gives per-episode returns, whole or downsampled', async () => {
     const whole = (await app.inject({ url: `/api/runs/${storedId}/returns` })).json();
     expect(whole.episodes).toBe(4000);

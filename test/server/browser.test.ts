@@ -67,7 +67,7 @@ describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
 
     // The run page redraws when the run ends; then every plot has marks.
     await page.waitForSelector('#plot-convergence[data-rendered="true"]', { timeout: 30_000 });
-    for (const kind of ['convergence', 'histogram', 'lengths', 'value-map']) {
+    for (const kind of ['convergence', 'histogram', 'lengths', 'cdf', 'value-map']) {
       await page.waitForSelector(`#plot-${kind}[data-rendered="true"]`);
       const marks = Number(await page.getAttribute(`#plot-${kind}`, 'data-marks'));
       expect(marks, kind).toBeGreaterThan(0);
@@ -78,6 +78,7 @@ describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
     expect(lineSegments).toBeGreaterThan(50);
     expect(await page.$$eval('#plot-histogram g.mark-rect path', (bars) => bars.length)).toBeGreaterThan(1);
     expect(await page.textContent('#projection')).toMatch(/episodes needed/);
+    expect(await page.textContent('#risk')).toMatch(/mean of the worst 5%.*DKW/s);
     expect(await page.textContent('h1')).toMatch(/picker-careful\.json on warehouse\.json\s*done/);
 
     // The runs list shows it, filterable by environment.

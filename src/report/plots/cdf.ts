@@ -28,10 +28,13 @@ export function cdfSeries(returns: Float64Array, level: number): CdfPoint[] {
   for (let i = 0; i < n; i++) if (i === n - 1 || sorted[i + 1] !== sorted[i]) steps.push(i);
   const stride = Math.max(1, Math.ceil(steps.length / MAX_POINTS));
   const kept = steps.filter((_, k) => k % stride === 0 || k === steps.length - 1);
-  return kept.map((i) => {
+  // the step rises from 0 at the smallest return
+  const points: CdfPoint[] = [{ return: sorted[0], cdf: 0, low: 0, high: Math.min(1, epsilon) }];
+  for (const i of kept) {
     const cdf = (i + 1) / n;
-    return { return: sorted[i], cdf, low: Math.max(0, cdf - epsilon), high: Math.min(1, cdf + epsilon) };
-  });
+    points.push({ return: sorted[i], cdf, low: Math.max(0, cdf - epsilon), high: Math.min(1, cdf + epsilon) });
+  }
+  return points;
 }
 
 export function cdfSpec(series: readonly CdfPoint[], labels: { title: string | readonly string[]; level: number; width?: number; height?: number }): PlotSpec {

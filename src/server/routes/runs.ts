@@ -1,5 +1,6 @@
 import type { FastifyInstance } from 'fastify';
 import { parseOption } from '../../options/parse-option.js';
+import { riskRequestFrom } from '../../options/risk-options.js';
 import { InputError } from '../../errors.js';
 import { getRun, listMembers, listRuns, type RunRecord } from '../../store/runs.js';
 import type { ServerContext } from '../context.js';
@@ -44,12 +45,14 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
   });
 
   app.get<{ Params: { id: string } }>('/api/runs/:id', async (request) => {
-    const q = queryOptions(request.query, ['ci', 'confidence', 'ignore_stop']);
+    const q = queryOptions(request.query, ['ci', 'confidence', 'ignore_stop', 'risk', 'quantiles', 'tail', 'event']);
     const method = q.ci === undefined ? undefined : parseOption('ci', 'interval', q.ci);
     if (q.ignore_stop !== undefined && q.ignore_stop !== 'true' && q.ignore_stop !== 'false') {
       throw new InputError('ignore_stop', `must be true or false (got "${q.ignore_stop}")`);
     }
     const ignoreStop = q.ignore_stop === 'true';
+    if (q.risk !== undefined && q.risk !== 'true' && q.risk !== 'false') throw new InputError('risk', `must be true or false (got "${q.risk}")`);
+    const risk = riskRequestFrom({ risk: q.risk === 'true', quantiles: q.quantiles, tail: q.tail, event: q.event === undefined ? undefined : [q.event] });
     const level = q.confidence === undefined ? undefined : parseOption('confidence', 'confidence', q.confidence);
     const run = findStoredRun(ctx, request.params.id);
     const live = liveState(ctx, run);
@@ -60,7 +63,7 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
     // engine): recomputing every figure from millions of stored returns on each request would
     // hold up every other request. The full figures come once it has ended.
     if (run.episodesDone < 2 || !isSettled(ctx, run)) return { ...runPendingJson(run), status: live.status, progress: live.progress };
-    const result = ctx.analysis.figures(run, { method, level, ignoreStop }, true);
+    const result = ctx.analysis.figures(run, { method, level, ignoreStop, risk }, true);
     return { ...runShowJson(run, result), status: live.status, progress: live.progress };
   });
 
