@@ -12,6 +12,7 @@ import type { FromWorker } from './worker-messages.js';
 import { newClockBuffer } from './plugin-clock.js';
 import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-watch.js';
 import type { CodeWorkerData } from './worker.js';
+import { EarlyWorkers } from './early-workers.js';
 
 export interface RunOptions {
   /** First episode index (a resumed or sharded run starts later). */
@@ -35,6 +36,8 @@ export interface RunOptions {
   readonly callerRuns?: boolean;
   /** Seconds one plug-in call may take before the run fails (default 10). */
   readonly stepTimeout?: number;
+  /** Code worker threads already started for this spec (startCodeWorkers); the pool takes what it needs. */
+  readonly early?: EarlyWorkers | null;
 }
 
 export interface RunOutcome {
@@ -62,6 +65,15 @@ export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promi
   const callerRuns = (options.callerRuns ?? true) && !plugins;
   if (workers === 1 && prepared && !plugins) return runInline(prepared, options);
   return runThreaded(spec, prepared, options, workers, callerRuns);
+}
+
+/**
+ * For a code environment run on more than one worker: its worker threads, started now, so
+ * they load while the caller prepares the spec (early-workers.ts). Null for any other spec.
+ */
+export function startCodeWorkers(spec: RolloutSpec, workers: number): EarlyWorkers | null {
+  if (workers < 2 || isFiniteSpec(spec)) return null;
+  return new EarlyWorkers(workerUrl('worker.js'), spec, workers);
 }
 
 function runsPluginCode(prepared: PreparedRollout): boolean {
@@ -218,8 +230,10 @@ async function runThreaded(
   // few more turns of the event loop.
   const callerSizer = new BlockSizer(Math.min(blockSeconds, CALLER_BLOCK_SECONDS));
   for (let w = callerRuns ? 1 : 0; w < workerCount; w++) {
-    const clock = entry.watched ? newClockBuffer() : null;
-    const worker = new Worker(entry.url, { workerData: clock ? ({ spec: entry.data as RolloutSpec, clock } satisfies CodeWorkerData) : entry.data });
+    const started = entry.watched ? (options.early?.take() ?? null) : null;
+    const clock = started ? started.clock : entry.watched ? newClockBuffer() : null;
+    const worker =
+      started?.worker ?? new Worker(entry.url, { workerData: clock ? ({ spec: entry.data as RolloutSpec, clock } satisfies CodeWorkerData) : entry.data });
     const sizer = new BlockSizer(blockSeconds);
     let lastArrival = 0;
     let inHand = 0;
@@ -235,7 +249,7 @@ async function runThreaded(
         inHand++;
       }
     };
-    worker.on('message', (message: FromWorker) => {
+    const onMessage = (message: FromWorker) => {
       if (message.type === 'ready') {
         lastArrival = performance.now();
         issue();
@@ -252,10 +266,15 @@ async function runThreaded(
       } else {
         fail(rebuildError(message));
       }
-    });
-    worker.on('error', (e) => fail(e));
+    };
+    if (started) started.adopt(onMessage, (e) => fail(e));
+    else {
+      worker.on('message', onMessage);
+      worker.on('error', (e) => fail(e));
+    }
     threads.push(worker);
   }
+  options.early?.close(); // threads started for more workers than this run needs
 
   // A stopped run waits a moment for the blocks still running (a block is about 0.1 s), then
   // leaves them: a plug-in stuck in a call must not hold up Ctrl-C.

@@ -3,7 +3,8 @@ import { eventSequenceSettings, makeEventSequence } from './event-sequence.js';
 import type { TargetEventFigure } from './figures.js';
 import type { RiskRequest } from '../options/risk-options.js';
 import type { RiskFigures } from './risk.js';
-import { runEpisodes } from '../engine/pool.js';
+import { runEpisodes, startCodeWorkers } from '../engine/pool.js';
+import type { EarlyWorkers } from '../engine/early-workers.js';
 import { prepareRollout } from '../engine/prepare.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import type { NoiseMode } from '../engine/noise.js';
@@ -118,6 +119,16 @@ export interface EstimateResult {
  * already running past that point are discarded.
  */
 export async function runEstimate(request: EstimateRequest): Promise<EstimateResult> {
+  // A code environment's worker threads load while this thread prepares the spec.
+  const early = startCodeWorkers(request.spec, request.workers);
+  try {
+    return await estimateWith(request, early);
+  } finally {
+    early?.close();
+  }
+}
+
+async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null): Promise<EstimateResult> {
   const { spec } = request;
   const prepared = await prepareRollout(spec);
   const facts = environmentFacts(prepared.env, prepared.policy, prepared.startIndex);
@@ -181,6 +192,7 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
   if (!reached && buffer.count < request.episodes) {
     const outcome = await runEpisodes(spec, {
       prepared,
+      early,
       first: first + buffer.count,
       count: request.episodes - buffer.count,
       workers: request.workers,
