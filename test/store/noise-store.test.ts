@@ -104,6 +104,15 @@ describe('the noise mode in the store', () => {
     expect(json(reckon(['runs', 'show', fresh.run_id, '--store', store, '--json'])).noise).toBe('visit');
   });
 
+  it('plan --noise visit pilots in that mode: the demo\'s close pair gets a smaller σ of the difference, as scripts/bench-noise.mjs measures', () => {
+    const base = ['plan', '--env', path.join(ENVS, 'warehouse.json'), '--policy', path.join(ENVS, 'picker-direct.json'), '--policy', path.join(ENVS, 'picker-direct-eps.json'), '--difference', '0.05', '--pilot', '5000', '--seed', '2', '--workers', '1', '--json'];
+    const visit = json(reckon([...base, '--noise', 'visit']));
+    const step = json(reckon(base));
+    expect([visit.noise, step.noise]).toStrictEqual(['visit', 'step']);
+    expect(visit.sigma_difference).toBeLessThan(0.95 * step.sigma_difference);
+    expect(visit.episodes_needed).toBeLessThan(step.episodes_needed);
+  });
+
   it('a module environment with --noise visit: exit 2, one line naming the option; a bad mode too', () => {
     const out = reckon(['estimate', '--env', path.join(ENVS, 'restock-env.json'), '--policy', path.join(ENVS, 'restock-base-stock.json'), '--noise', 'visit', '--no-store']);
     expect(out.code).toBe(2);

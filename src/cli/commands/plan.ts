@@ -9,6 +9,7 @@ import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { parseRunOptions } from '../../options/run-options.js';
 import { noiseMode } from '../../options/noise-option.js';
+import { NOISE_WORDS } from '../../report/noise-words.js';
 
 export const HELP = `reckon plan: how many episodes, and how long, before running them
 
@@ -125,6 +126,7 @@ export async function run(args: string[]): Promise<number> {
       difference: effect,
       power,
       level,
+      noise,
       pilot: { episodes: n, seconds: pilots[0].seconds + pilots[1].seconds, pairs_per_second: rate },
       sigma_difference: sigmaDifference,
       correlation: gain.correlation,
@@ -144,7 +146,7 @@ export async function run(args: string[]): Promise<number> {
     process.stdout.write(
       [
         `Plan: detect a true difference of ${effect} between ${policyPaths[0]} and ${policyPaths[1]} in ${envPath}`,
-        `  with power ${power} at the ${level * 100}% level (two-sided paired t test, common random numbers)`,
+        `  with power ${power} at the ${level * 100}% level (two-sided paired t test, common random numbers, ${NOISE_WORDS[noise]})`,
         '',
         `  pilot            ${count(n)} episodes per policy; σ of the paired difference ${sig(sigmaDifference)}, correlation ${gain.correlation.toFixed(3)}`,
         `  episodes needed  ${count(size.exactPairs)} per policy (exact power ${size.powerAtExactPairs.toFixed(4)}; normal approximation ${count(size.zPairs)})`,
@@ -172,6 +174,7 @@ export async function run(args: string[]): Promise<number> {
     policy: policyPaths[0],
     target_error: epsilon,
     level,
+    noise,
     pilot: { episodes: summary.n, mean: summary.mean, std: summary.std, seconds: result.seconds, episodes_per_second: rate },
     episodes_needed: plan.fixedT,
     episodes_needed_sequential: sequential,
