@@ -10,7 +10,6 @@
 //
 // Demand is capped at `demandCap` (the most crates the shop's footfall can ask for in a day), so
 // that every daily reward lies in a known range and reckon can use bounded-reward intervals.
-import poisson from '@stdlib/random-base-poisson';
 
 const DEFAULTS = {
   capacity: 20,
@@ -45,23 +44,6 @@ export default function createRestock(options = {}) {
     o.price * Math.min(o.capacity, o.demandCap),
   ];
 
-  // The same rng object is re-seeded for every episode of a worker, so a sampler built on it once
-  // stays valid; the map only matters if a host passes several rng objects.
-  const samplers = new WeakMap();
-  let lastRng = null;
-  let lastSampler = null;
-  function demand(rng) {
-    if (rng !== lastRng) {
-      lastSampler = samplers.get(rng);
-      if (lastSampler === undefined) {
-        lastSampler = poisson.factory(o.demandMean, { prng: () => rng.uniform() });
-        samplers.set(rng, lastSampler);
-      }
-      lastRng = rng;
-    }
-    return Math.min(lastSampler(), o.demandCap);
-  }
-
   return {
     actions,
     discount: o.discount,
@@ -71,7 +53,8 @@ export default function createRestock(options = {}) {
     step(stock, action, rng, out) {
       const delivered = Math.min(action, o.capacity - stock);
       const onShelf = stock + delivered;
-      const wanted = demand(rng);
+      // rng.poisson draws from the episode's own stream: reproducible, and shared by every policy.
+      const wanted = Math.min(rng.poisson(o.demandMean), o.demandCap);
       const sold = Math.min(onShelf, wanted);
       const left = onShelf - sold;
       out.state = left;

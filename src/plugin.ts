@@ -27,17 +27,62 @@
  */
 
 /**
- * Random numbers for one episode and one stream. The same object is re-seeded in place for
- * every episode, so a sampler built once on it stays valid across episodes. Its methods use
- * `this`: hand a sampler `() => rng.uniform()`, not `rng.uniform` itself.
+ * Uniform random numbers from one seeded stream: what every generator in reckon provides.
+ * Its methods use `this`: hand a sampler `() => rng.uniform()`, not `rng.uniform` itself.
  */
-export interface Rng {
+export interface UniformSource {
   /** A uniform double in [0, 1). */
   uniform(): number;
   /** A uniform integer in [0, n). */
   integer(n: number): number;
   /** A raw uniform 32-bit unsigned integer. */
   uint32(): number;
+}
+
+/**
+ * Random numbers for one episode and one stream (the environment's, or the policy's). The
+ * same object is re-seeded in place for every episode, so a sampler built once on it stays
+ * valid across episodes.
+ *
+ * **Reproducibility.** These methods, and only these, keep a module reproducible (the same
+ * seed gives the same returns, bit for bit, whatever `--workers`, shards or resumes) and on
+ * common random numbers (two policies face the same environment noise). `Math.random`, a
+ * sampler with a seed of its own, or any state carried from one episode to the next breaks
+ * both, silently.
+ *
+ * The named distributions draw only from this stream, allocate nothing, and throw on an
+ * invalid parameter (the run then fails naming the episode, the step and the value). They
+ * are @stdlib's samplers fed by this stream.
+ *
+ * @example
+ * const demand = rng.poisson(4);              // customers today
+ * const delay = rng.exponential(1 / 12);      // minutes, mean 12
+ * const mix = rng.dirichlet([2, 1, 1], out);  // shares, written into `out`
+ */
+export interface Rng extends UniformSource {
+  /** Normal with mean `mu` and standard deviation `sigma` > 0. */
+  normal(mu: number, sigma: number): number;
+  /** Poisson with mean `lambda` > 0: 0, 1, 2, ... */
+  poisson(lambda: number): number;
+  /** Exponential with rate `rate` > 0 (mean 1/rate). */
+  exponential(rate: number): number;
+  /** Gamma with `shape` > 0 and `scale` > 0 (mean shape·scale). */
+  gamma(shape: number, scale: number): number;
+  /** Beta with shapes `a` > 0 and `b` > 0, in (0, 1). */
+  beta(a: number, b: number): number;
+  /** Binomial: successes in `n` (an integer >= 0) trials of probability `p` in [0, 1]. */
+  binomial(n: number, p: number): number;
+  /** Geometric: failures before the first success, success probability `p` in (0, 1]. */
+  geometric(p: number): number;
+  /** An index in [0, weights.length) drawn with probability weights[i] / sum (weights >= 0, sum > 0). */
+  categorical(weights: ArrayLike<number>): number;
+  /**
+   * Dirichlet with concentrations `alphas` (each > 0), written into `out` (at least as long)
+   * and returned: fresh shares that sum to 1, with no allocation.
+   */
+  dirichlet<T extends { [i: number]: number; readonly length: number }>(alphas: ArrayLike<number>, out: T): T;
+  /** True with probability `p` in [0, 1]. */
+  bernoulli(p: number): boolean;
 }
 
 /** What `step` reports. */

@@ -3,6 +3,7 @@ import type { ActingPolicy } from '../definitions/built.js';
 import { checkedAction } from './checked-action.js';
 import { pluginClock } from './plugin-clock.js';
 import { Xoshiro128 } from './xoshiro128.js';
+import { pluginRngs } from './episode-rng.js';
 import { STREAM, seedStream, streamWords } from './streams.js';
 import type { EpisodeBlock } from './episode-block.js';
 
@@ -167,7 +168,7 @@ export function rolloutFiniteActing(
   block: EpisodeBlock,
 ): number {
   const envRng = new Xoshiro128();
-  const policyRng = new Xoshiro128();
+  const policyRng = pluginRngs().policy;
   const { terminal, outcomeStart, outcomeNext, outcomeCumulative, outcomeReward, actionCount, discount, horizon, stateNames } = mdp;
   const startStates = startSupport(mdp);
   const lastStart = startStates.states.length - 1;

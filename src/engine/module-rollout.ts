@@ -2,7 +2,7 @@ import type { ActingPolicy, ModuleEnvironment } from '../definitions/built.js';
 import type { StepResult } from '../plugin.js';
 import { PluginError } from '../errors.js';
 import { checkedAction } from './checked-action.js';
-import { Xoshiro128 } from './xoshiro128.js';
+import { pluginRngs } from './episode-rng.js';
 import { STREAM, seedStream } from './streams.js';
 import type { EpisodeBlock } from './episode-block.js';
 import { pluginClock } from './plugin-clock.js';
@@ -19,8 +19,7 @@ export function rolloutModule(
   startName: string | null,
   block: EpisodeBlock,
 ): number {
-  const envRng = new Xoshiro128();
-  const policyRng = new Xoshiro128();
+  const { env: envRng, policy: policyRng } = pluginRngs();
   const { env, discount, horizon } = built;
   const actionCount = built.actionNames.length;
   const out: StepResult = { state: undefined, reward: 0, done: false };

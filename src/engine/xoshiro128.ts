@@ -1,4 +1,4 @@
-import type { Rng } from '../plugin.js';
+import type { UniformSource } from '../plugin.js';
 
 /**
  * xoshiro128** 1.0 (Blackman & Vigna, "Scrambled linear pseudorandom number generators",
@@ -6,7 +6,7 @@ import type { Rng } from '../plugin.js';
  * runs at full speed in JavaScript. Chosen over mt19937 because re-seeding it costs four
  * words instead of 624 (see engine/streams.ts and scripts/bench-seeding.mjs).
  */
-export class Xoshiro128 implements Rng {
+export class Xoshiro128 implements UniformSource {
   s0 = 0;
   s1 = 0;
   s2 = 0;
