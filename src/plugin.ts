@@ -16,7 +16,7 @@
  *     rewardBounds: [0, 1],
  *     reset: () => 2,
  *     step(state, action, rng, out) {
- *       const right = rng.uniform() < (action === 1 ? pRight + 0.1 : pRight);
+ *       const right = rng.bernoulli(action === 1 ? pRight + 0.1 : pRight);
  *       out.state = right ? state + 1 : state - 1;
  *       out.reward = out.state === 4 ? 1 : 0;
  *       out.done = out.state === 0 || out.state === 4;

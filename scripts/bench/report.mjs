@@ -200,6 +200,7 @@ export function summarise(trials, prepared, machine) {
   goal('estimate --ci bootstrap at 1e6 vs --ci t', '<= 3x', commands.bootstrapOverT, commands.bootstrapOverT <= 3);
   goal('per-episode overhead on (c)', '< 20%', costs.engine?.overheadShare, costs.engine?.overheadShare < 0.2);
   goal('module gridworld (d2) vs compiled (a)', '>= 0.3x', byId.d2?.overReference, byId.d2?.overReference >= 0.3);
+  goal('restocking with rng.poisson (d1) vs its hand-wired sampler (d3)', '>= 1x', byId.d1?.overReference, byId.d1?.overReference >= 1);
   const kept = memory.find((m) => m.label.startsWith('engine, returns kept'));
   goal('memory per kept episode (engine)', '<= 12 bytes', kept?.bytesPerEpisode, kept?.bytesPerEpisode <= 12);
   goal('reckon --help', '< 150 ms', startup.helpMs, startup.helpMs < 150);
@@ -250,6 +251,15 @@ export function render(s) {
     lines.push(
       `Plug-in interface: the gridworld as a module (d2) runs at ${ratio(d2.overReference)} the compiled gridworld (${d2.reference}); ` +
         `mean return ${fmt(d2.engine1?.meanReturn, 4)} against ${fmt(ref?.engine1?.meanReturn, 4)} (same model, different draws).`,
+    );
+  }
+  const d1 = s.workloads.find((w) => w.id === 'd1');
+  if (d1?.reference) {
+    const ref = s.workloads.find((w) => w.id === d1.reference);
+    lines.push('');
+    lines.push(
+      `Named distributions: the restocking module with rng.poisson (d1) runs at ${ratio(d1.overReference)} its hand-wired form (${d1.reference}); ` +
+        `mean return ${fmt(d1.engine1?.meanReturn, 4)} against ${fmt(ref?.engine1?.meanReturn, 4)}.`,
     );
   }
   lines.push('');

@@ -42,7 +42,14 @@ export const WORKLOADS = [
     id: 'd1',
     title: 'module: demo shelf restocking (base stock 8)',
     episodes: 30_000,
+    reference: 'd3',
     files: () => ({ env: path.join(ENVS, 'restock-env.json'), policy: path.join(ENVS, 'restock-base-stock.json') }),
+  },
+  {
+    id: 'd3',
+    title: 'module: the shelf of (d1) with its Poisson sampler wired by hand (the earlier form)',
+    episodes: 30_000,
+    files: (dir) => handWiredRestock(dir),
   },
   {
     id: 'd2',
@@ -52,6 +59,13 @@ export const WORKLOADS = [
     files: (dir) => gridAsModule(dir),
   },
 ];
+
+function handWiredRestock(dir) {
+  const env = JSON.parse(readFileSync(path.join(ENVS, 'restock-env.json'), 'utf8'));
+  const file = path.join(dir, 'restock-hand-wired-env.json');
+  writeFileSync(file, JSON.stringify({ ...env, path: path.join(HERE, 'restock-hand-wired.js') }));
+  return { env: file, policy: path.join(ENVS, 'restock-base-stock.json') };
+}
 
 function randomTabular(dir, id, horizon) {
   const file = path.join(dir, `random-400-h${horizon}.json`);

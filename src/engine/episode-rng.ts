@@ -9,8 +9,8 @@ import { binomialDraw } from './binomial-btrd.js';
  * the engine re-seeds in place per episode, and keeps no state of its own between draws, so a
  * draw in episode i depends on nothing but (seed, stream, i).
  *
- * The algorithms are @stdlib's (pinned versions). Poisson, exponential, geometric and
- * Bernoulli use the packages' public factories with this stream as `prng`. Normal, gamma and
+ * The algorithms are @stdlib's (pinned versions). Poisson (from mean 30), exponential,
+ * geometric and Bernoulli use the packages' public factories with this stream as `prng`. Normal, gamma and
  * beta call the packages' algorithm files directly: their public factories, given an outside
  * `prng`, build a hidden Mersenne Twister (seeded once from it) for the ziggurat's block
  * index, and that hidden state would carry from one episode into the next. Here the block
@@ -26,6 +26,8 @@ export class EpisodeRng extends Xoshiro128 implements Rng {
   private readonly exponentialDraw = exponentialFactory({ prng: this.open });
   private readonly geometricDraw = geometricFactory({ prng: this.open });
   private readonly bernoulliDraw = bernoulliFactory({ prng: this.open });
+  private knuthLambda = NaN;
+  private knuthLimit = 0;
 
   normal(mu: number, sigma: number): number {
     if (typeof mu !== 'number' || !Number.isFinite(mu)) bad('normal', 'mu', mu, 'a finite number');
@@ -35,7 +37,22 @@ export class EpisodeRng extends Xoshiro128 implements Rng {
 
   poisson(lambda: number): number {
     if (!isPositive(lambda)) bad('poisson', 'lambda', lambda, 'a finite number > 0');
-    return this.poissonDraw(lambda);
+    if (lambda >= 30) return this.poissonDraw(lambda);
+    // Below 30, stdlib's own method: Knuth's product of uniforms (TAOCP vol. 2, 3.4.1), which
+    // stdlib's knuth.js runs recomputing e^-lambda (its exp) at every factor; here it is
+    // computed once per lambda with the same exp, so the draws are the same, about 2× sooner.
+    if (lambda !== this.knuthLambda) {
+      this.knuthLambda = lambda;
+      this.knuthLimit = stdlibExp(-lambda);
+    }
+    const limit = this.knuthLimit;
+    let product = this.open();
+    let k = 0;
+    while (product > limit) {
+      k++;
+      product *= this.open();
+    }
+    return k;
   }
 
   exponential(rate: number): number {
@@ -170,6 +187,7 @@ const require = createRequire(import.meta.url);
 const improvedZiggurat = require('@stdlib/random-base-improved-ziggurat/lib/improved_ziggurat.js') as (randu: Uniform, randi: Uniform) => Uniform;
 const gammaSample = require('@stdlib/random-base-gamma/lib/gamma.js') as (randu: Uniform, randn: Uniform, rate: number, d: number, c: number) => number;
 const betaSample = require('@stdlib/random-base-beta/lib/beta.js') as (randu: Uniform, randn: Uniform, a: number, b: number) => number;
+const stdlibExp = require('@stdlib/math-base-special-exp') as (x: number) => number;
 const poissonFactory = (require('@stdlib/random-base-poisson') as { factory: Factory<Sampler1> }).factory;
 const exponentialFactory = (require('@stdlib/random-base-exponential') as { factory: Factory<Sampler1> }).factory;
 const geometricFactory = (require('@stdlib/random-base-geometric') as { factory: Factory<Sampler1> }).factory;

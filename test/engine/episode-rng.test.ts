@@ -1,4 +1,6 @@
 import { describe, expect, it } from 'vitest';
+import poisson from '@stdlib/random-base-poisson';
+import exponential from '@stdlib/random-base-exponential';
 import { EpisodeRng } from '../../src/engine/episode-rng.js';
 import { STREAM, seedStream } from '../../src/engine/streams.js';
 
@@ -50,6 +52,28 @@ describe('re-seeding in place', () => {
     seedStream(a, 4, STREAM.ENV, 1);
     seedStream(b, 4, STREAM.POLICY, 1);
     expect(everything(a)).not.toStrictEqual(everything(b));
+  });
+});
+
+describe('the same draws as the @stdlib sampler on the same uniforms', () => {
+  // The reference is the registry package's public sampler, fed the stream's open-interval
+  // uniforms (uint32 + 0.5)·2^-32 from a second generator seeded alike.
+  function pairOn(episode: number) {
+    const ours = new EpisodeRng();
+    const feed = new EpisodeRng();
+    seedStream(ours, 6, STREAM.ENV, episode);
+    seedStream(feed, 6, STREAM.ENV, episode);
+    return { ours, prng: () => (feed.uint32() + 0.5) * 2.3283064365386963e-10 };
+  }
+  it.each([0.3, 4, 29.5, 30, 250])('poisson(%s)', (lambda) => {
+    const { ours, prng } = pairOn(1);
+    const reference = poisson.factory({ prng });
+    for (let i = 0; i < 20000; i++) expect(ours.poisson(lambda)).toBe(reference(lambda));
+  });
+  it('exponential(0.7)', () => {
+    const { ours, prng } = pairOn(2);
+    const reference = exponential.factory({ prng });
+    for (let i = 0; i < 20000; i++) expect(ours.exponential(0.7)).toBe(reference(0.7));
   });
 });
 
