@@ -1,24 +1,36 @@
 /**
  * Loads the default export of a user's module (`"kind": "module"`), resolving its path
- * against the definition file's folder. Node 20 cannot import TypeScript, so a `.ts`
- * module that fails to load gets advice instead of Node's bare error code.
+ * against the definition file's folder. A `.ts` or `.mts` module is compiled on the fly
+ * (typescript-hooks.ts); `.tsx` and `.cts` get advice instead of Node's bare error code.
  */
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
+import { register } from 'node:module';
 import { extname, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { InputError } from '../errors.js';
 import type { DefinitionSource } from './built.js';
 
 const TYPESCRIPT = new Set(['.ts', '.mts', '.cts', '.tsx']);
+const LOADABLE_TYPESCRIPT = new Set(['.ts', '.mts']);
+
+let hooksRegistered = false;
+
+/** Installs the TypeScript hooks on this thread (each worker thread needs its own). */
+function registerTypeScriptHooks(): void {
+  if (hooksRegistered) return;
+  register(new URL('./typescript-hooks.js', import.meta.url));
+  hooksRegistered = true;
+}
 
 /** Explains why importing `path` failed, in one line. */
 export function explainImportFailure(path: string, error: unknown): string {
   const code = (error as { code?: unknown } | null)?.code;
   const why = error instanceof Error ? error.message : String(error);
   if (TYPESCRIPT.has(extname(path)) && (code === 'ERR_UNKNOWN_FILE_EXTENSION' || /Unknown file extension/.test(why))) {
-    return `cannot import TypeScript module "${path}" on Node 20; compile it to .js (for example with tsc) and point "path" at the .js file, or run with a TypeScript loader`;
+    return `cannot import TypeScript module "${path}": reckon runs .ts and .mts modules (ES modules); rename it, or compile it to .js (for example with tsc) and point "path" at the .js file`;
   }
+  if (error instanceof SyntaxError && TYPESCRIPT.has(extname(path))) return `syntax error in ${why}`;
   return `could not load module "${path}": ${why}`;
 }
 
@@ -48,6 +60,7 @@ export async function importFactory(
     throw new InputError(source.label, `module "${relativePath}" not found (looked for ${absolute})`);
   }
   let loaded: { default?: unknown };
+  if (LOADABLE_TYPESCRIPT.has(extname(absolute))) registerTypeScriptHooks();
   try {
     loaded = (await import(pathToFileURL(absolute).href)) as { default?: unknown };
   } catch (e) {
