@@ -19,6 +19,7 @@ const COMMANDS: Record<string, { summary: string; load: () => Promise<Command> }
   check: { summary: 'validate definition files and summarise the environment', load: () => import('./commands/check.js') },
   runs: { summary: 'list, show (re-analyse), export, resume, delete, merge and check stored runs', load: () => import('./commands/runs.js') },
   serve: { summary: 'review stored runs in a web page (plots, live progress) and start evaluations over HTTP', load: () => import('./commands/serve.js') },
+  new: { summary: 'write a commented starter environment or policy module (JavaScript or --ts) and its definition', load: () => import('./commands/new.js') },
   demo: { summary: 'evaluate the bundled warehouse demo (what `npm start` runs)', load: () => import('./commands/demo.js') },
 };
 
