@@ -1,157 +1,155 @@
 import { createRequire } from 'node:module';
-import type { Rng } from '../plugin.js';
+import type { Rng, UniformSource } from '../plugin.js';
 import { Xoshiro128 } from './xoshiro128.js';
 import { binomialDraw } from './binomial-btrd.js';
 
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+type UniformConstructor = new (...args: any[]) => UniformSource;
+
 /**
- * The generator a code environment or policy receives: a xoshiro128** stream plus the named
- * distributions of {@link Rng}. Every sampler draws only from this object's own state, which
- * the engine re-seeds in place per episode, and keeps no state of its own between draws, so a
- * draw in episode i depends on nothing but (seed, stream, i).
- *
- * The algorithms are @stdlib's (pinned versions). Poisson (from mean 30), exponential,
- * geometric and Bernoulli use the packages' public factories with this stream as `prng`. Normal, gamma and
- * beta call the packages' algorithm files directly: their public factories, given an outside
- * `prng`, build a hidden Mersenne Twister (seeded once from it) for the ziggurat's block
- * index, and that hidden state would carry from one episode into the next. Here the block
- * index comes from this stream too. Binomial is stdlib's BTRD with a fix, and inversion for
- * small means (see binomial-btrd.ts).
+ * Adds the named distributions of {@link Rng} to a generator class: they read only its
+ * `uint32()`, so any stream the engine re-seeds in place (xoshiro128**, or the visit-keyed
+ * generator of a code policy) gets the same samplers.
  */
-export class EpisodeRng extends Xoshiro128 implements Rng {
-  /** Uniform in the open interval (0, 1), so no sampler ever takes ln(0). */
-  private readonly open = (): number => (this.uint32() + 0.5) * 2.3283064365386963e-10;
-  private readonly bits = (): number => this.uint32();
-  private readonly standardNormal = improvedZiggurat(this.open, this.bits);
-  private readonly poissonDraw = poissonFactory({ prng: this.open });
-  private readonly exponentialDraw = exponentialFactory({ prng: this.open });
-  private readonly geometricDraw = geometricFactory({ prng: this.open });
-  private readonly bernoulliDraw = bernoulliFactory({ prng: this.open });
-  private knuthLambda = NaN;
-  private knuthLimit = 0;
+export function withDistributions<B extends UniformConstructor>(Base: B) {
+  return class WithDistributions extends Base implements Rng {
+    /** Uniform in the open interval (0, 1), so no sampler ever takes ln(0). */
+    private readonly open = (): number => (this.uint32() + 0.5) * 2.3283064365386963e-10;
+    private readonly bits = (): number => this.uint32();
+    private readonly standardNormal = improvedZiggurat(this.open, this.bits);
+    private readonly poissonDraw = poissonFactory({ prng: this.open });
+    private readonly exponentialDraw = exponentialFactory({ prng: this.open });
+    private readonly geometricDraw = geometricFactory({ prng: this.open });
+    private readonly bernoulliDraw = bernoulliFactory({ prng: this.open });
+    private knuthLambda = NaN;
+    private knuthLimit = 0;
 
-  normal(mu: number, sigma: number): number {
-    if (typeof mu !== 'number' || !Number.isFinite(mu)) bad('normal', 'mu', mu, 'a finite number');
-    if (!isPositive(sigma)) bad('normal', 'sigma', sigma, 'a finite number > 0');
-    return mu + sigma * this.standardNormal();
-  }
-
-  poisson(lambda: number): number {
-    if (!isPositive(lambda)) bad('poisson', 'lambda', lambda, 'a finite number > 0');
-    if (lambda >= 30) return this.poissonDraw(lambda);
-    // Below 30, stdlib's own method: Knuth's product of uniforms (TAOCP vol. 2, 3.4.1), which
-    // stdlib's knuth.js runs recomputing e^-lambda (its exp) at every factor; here it is
-    // computed once per lambda with the same exp, so the draws are the same, about 2× sooner.
-    if (lambda !== this.knuthLambda) {
-      this.knuthLambda = lambda;
-      this.knuthLimit = stdlibExp(-lambda);
+    normal(mu: number, sigma: number): number {
+      if (typeof mu !== 'number' || !Number.isFinite(mu)) bad('normal', 'mu', mu, 'a finite number');
+      if (!isPositive(sigma)) bad('normal', 'sigma', sigma, 'a finite number > 0');
+      return mu + sigma * this.standardNormal();
     }
-    const limit = this.knuthLimit;
-    let product = this.open();
-    let k = 0;
-    while (product > limit) {
-      k++;
-      product *= this.open();
+
+    poisson(lambda: number): number {
+      if (!isPositive(lambda)) bad('poisson', 'lambda', lambda, 'a finite number > 0');
+      if (lambda >= 30) return this.poissonDraw(lambda);
+      // Below 30, stdlib's own method: Knuth's product of uniforms (TAOCP vol. 2, 3.4.1), which
+      // stdlib's knuth.js runs recomputing e^-lambda (its exp) at every factor; here it is
+      // computed once per lambda with the same exp, so the draws are the same, about 2× sooner.
+      if (lambda !== this.knuthLambda) {
+        this.knuthLambda = lambda;
+        this.knuthLimit = stdlibExp(-lambda);
+      }
+      const limit = this.knuthLimit;
+      let product = this.open();
+      let k = 0;
+      while (product > limit) {
+        k++;
+        product *= this.open();
+      }
+      return k;
     }
-    return k;
-  }
 
-  exponential(rate: number): number {
-    if (!isPositive(rate)) bad('exponential', 'rate', rate, 'a finite number > 0');
-    return this.exponentialDraw(rate);
-  }
-
-  gamma(shape: number, scale: number): number {
-    if (!isPositive(shape)) bad('gamma', 'shape', shape, 'a finite number > 0');
-    if (!isPositive(scale)) bad('gamma', 'scale', scale, 'a finite number > 0');
-    return scale * this.standardGamma(shape);
-  }
-
-  beta(a: number, b: number): number {
-    if (!isPositive(a)) bad('beta', 'a', a, 'a finite number > 0');
-    if (!isPositive(b)) bad('beta', 'b', b, 'a finite number > 0');
-    return betaSample(this.open, this.standardNormal, a, b);
-  }
-
-  binomial(n: number, p: number): number {
-    if (!(Number.isInteger(n) && n >= 0 && n <= 2147483647)) bad('binomial', 'n', n, 'an integer >= 0');
-    if (!isProbability(p)) bad('binomial', 'p', p, 'a probability in [0, 1]');
-    if (n === 0 || p === 0) return 0;
-    if (p === 1) return n;
-    return binomialDraw(this.open, n, p);
-  }
-
-  geometric(p: number): number {
-    if (!isProbability(p) || p === 0) bad('geometric', 'p', p, 'a probability in (0, 1]');
-    if (p === 1) return 0;
-    return this.geometricDraw(p);
-  }
-
-  categorical(weights: ArrayLike<number>): number {
-    const n = weights?.length;
-    if (!(n > 0)) bad('categorical', 'weights', weights, 'a non-empty array of weights');
-    let total = 0;
-    for (let i = 0; i < n; i++) {
-      const w = weights[i];
-      if (typeof w !== 'number' || !(w >= 0 && w < Infinity)) bad('categorical', `weights[${i}]`, w, 'a finite number >= 0');
-      total += w;
+    exponential(rate: number): number {
+      if (!isPositive(rate)) bad('exponential', 'rate', rate, 'a finite number > 0');
+      return this.exponentialDraw(rate);
     }
-    if (!isPositive(total)) bad('categorical', 'weights', total, 'weights with a positive finite sum');
-    // One uniform; the scan stops at the first index whose running sum passes it.
-    const target = this.open() * total;
-    let running = 0;
-    for (let i = 0; i < n - 1; i++) {
-      running += weights[i];
-      if (target < running) return i;
-    }
-    // Rounding can leave the target a hair above the last running sum: the last positive weight.
-    for (let i = n - 1; i > 0; i--) if (weights[i] > 0) return i;
-    return 0;
-  }
 
-  dirichlet<T extends { [i: number]: number; readonly length: number }>(alphas: ArrayLike<number>, out: T): T {
-    const k = alphas?.length;
-    if (!(k > 0)) bad('dirichlet', 'alphas', alphas, 'a non-empty array of concentrations');
-    if (out === null || typeof out !== 'object') bad('dirichlet', 'out', out, 'an array to write the shares into');
-    if (!(out.length >= k)) bad('dirichlet', 'out.length', out.length, `at least ${k}, the number of alphas`);
-    for (let i = 0; i < k; i++) {
-      const a = alphas[i];
-      if (!isPositive(a)) bad('dirichlet', `alphas[${i}]`, a, 'a finite number > 0');
+    gamma(shape: number, scale: number): number {
+      if (!isPositive(shape)) bad('gamma', 'shape', shape, 'a finite number > 0');
+      if (!isPositive(scale)) bad('gamma', 'scale', scale, 'a finite number > 0');
+      return scale * this.standardGamma(shape);
     }
-    // Normalised independent Gamma(alpha_i, 1) draws (Devroye 1986, ch. XI.4).
-    let total = 0;
-    for (let i = 0; i < k; i++) {
-      const g = this.standardGamma(alphas[i]);
-      out[i] = g;
-      total += g;
-    }
-    if (total > 0) {
-      for (let i = 0; i < k; i++) out[i] /= total;
-    } else {
-      // Every draw underflowed (all alphas tiny): the mass falls on one component, chosen by alpha.
-      const j = this.categorical(alphas);
-      for (let i = 0; i < k; i++) out[i] = i === j ? 1 : 0;
-    }
-    return out;
-  }
 
-  bernoulli(p: number): boolean {
-    if (!isProbability(p)) bad('bernoulli', 'p', p, 'a probability in [0, 1]');
-    return this.bernoulliDraw(p) === 1;
-  }
-
-  /**
-   * Gamma(shape, 1) by Marsaglia & Tsang (2000), with the boost U^(1/shape) for shape < 1:
-   * exactly what @stdlib/random-base-gamma's factory does around its algorithm file.
-   */
-  private standardGamma(shape: number): number {
-    if (shape < 1) {
-      const d = shape + 1 - 1 / 3;
-      return gammaSample(this.open, this.standardNormal, 1, d, 1 / Math.sqrt(9 * d)) * Math.pow(this.open(), 1 / shape);
+    beta(a: number, b: number): number {
+      if (!isPositive(a)) bad('beta', 'a', a, 'a finite number > 0');
+      if (!isPositive(b)) bad('beta', 'b', b, 'a finite number > 0');
+      return betaSample(this.open, this.standardNormal, a, b);
     }
-    const d = shape - 1 / 3;
-    return gammaSample(this.open, this.standardNormal, 1, d, 1 / Math.sqrt(9 * d));
-  }
+
+    binomial(n: number, p: number): number {
+      if (!(Number.isInteger(n) && n >= 0 && n <= 2147483647)) bad('binomial', 'n', n, 'an integer >= 0');
+      if (!isProbability(p)) bad('binomial', 'p', p, 'a probability in [0, 1]');
+      if (n === 0 || p === 0) return 0;
+      if (p === 1) return n;
+      return binomialDraw(this.open, n, p);
+    }
+
+    geometric(p: number): number {
+      if (!isProbability(p) || p === 0) bad('geometric', 'p', p, 'a probability in (0, 1]');
+      if (p === 1) return 0;
+      return this.geometricDraw(p);
+    }
+
+    categorical(weights: ArrayLike<number>): number {
+      const n = weights?.length;
+      if (!(n > 0)) bad('categorical', 'weights', weights, 'a non-empty array of weights');
+      let total = 0;
+      for (let i = 0; i < n; i++) {
+        const w = weights[i];
+        if (typeof w !== 'number' || !(w >= 0 && w < Infinity)) bad('categorical', `weights[${i}]`, w, 'a finite number >= 0');
+        total += w;
+      }
+      if (!isPositive(total)) bad('categorical', 'weights', total, 'weights with a positive finite sum');
+      // One uniform; the scan stops at the first index whose running sum passes it.
+      const target = this.open() * total;
+      let running = 0;
+      for (let i = 0; i < n - 1; i++) {
+        running += weights[i];
+        if (target < running) return i;
+      }
+      // Rounding can leave the target a hair above the last running sum: the last positive weight.
+      for (let i = n - 1; i > 0; i--) if (weights[i] > 0) return i;
+      return 0;
+    }
+
+    dirichlet<T extends { [i: number]: number; readonly length: number }>(alphas: ArrayLike<number>, out: T): T {
+      const k = alphas?.length;
+      if (!(k > 0)) bad('dirichlet', 'alphas', alphas, 'a non-empty array of concentrations');
+      if (out === null || typeof out !== 'object') bad('dirichlet', 'out', out, 'an array to write the shares into');
+      if (!(out.length >= k)) bad('dirichlet', 'out.length', out.length, `at least ${k}, the number of alphas`);
+      for (let i = 0; i < k; i++) {
+        const a = alphas[i];
+        if (!isPositive(a)) bad('dirichlet', `alphas[${i}]`, a, 'a finite number > 0');
+      }
+      // Normalised independent Gamma(alpha_i, 1) draws (Devroye 1986, ch. XI.4).
+      let total = 0;
+      for (let i = 0; i < k; i++) {
+        const g = this.standardGamma(alphas[i]);
+        out[i] = g;
+        total += g;
+      }
+      if (total > 0) {
+        for (let i = 0; i < k; i++) out[i] /= total;
+      } else {
+        // Every draw underflowed (all alphas tiny): the mass falls on one component, chosen by alpha.
+        const j = this.categorical(alphas);
+        for (let i = 0; i < k; i++) out[i] = i === j ? 1 : 0;
+      }
+      return out;
+    }
+
+    bernoulli(p: number): boolean {
+      if (!isProbability(p)) bad('bernoulli', 'p', p, 'a probability in [0, 1]');
+      return this.bernoulliDraw(p) === 1;
+    }
+
+    /**
+     * Gamma(shape, 1) by Marsaglia & Tsang (2000), with the boost U^(1/shape) for shape < 1:
+     * exactly what @stdlib/random-base-gamma's factory does around its algorithm file.
+     */
+    private standardGamma(shape: number): number {
+      if (shape < 1) {
+        const d = shape + 1 - 1 / 3;
+        return gammaSample(this.open, this.standardNormal, 1, d, 1 / Math.sqrt(9 * d)) * Math.pow(this.open(), 1 / shape);
+      }
+      const d = shape - 1 / 3;
+      return gammaSample(this.open, this.standardNormal, 1, d, 1 / Math.sqrt(9 * d));
+    }
+  };
 }
+
+
 
 /** What a sampler throws on a bad parameter; the rollout wraps it with the episode and step. */
 export class DistributionParameterError extends Error {
@@ -192,6 +190,22 @@ const poissonFactory = (require('@stdlib/random-base-poisson') as { factory: Fac
 const exponentialFactory = (require('@stdlib/random-base-exponential') as { factory: Factory<Sampler1> }).factory;
 const geometricFactory = (require('@stdlib/random-base-geometric') as { factory: Factory<Sampler1> }).factory;
 const bernoulliFactory = (require('@stdlib/random-base-bernoulli') as { factory: Factory<Sampler1> }).factory;
+
+/**
+ * The generator a code environment or policy receives: a xoshiro128** stream plus the named
+ * distributions of {@link Rng}. Every sampler draws only from this object's own state, which
+ * the engine re-seeds in place per episode, and keeps no state of its own between draws, so a
+ * draw in episode i depends on nothing but (seed, stream, i).
+ *
+ * The algorithms are @stdlib's (pinned versions). Poisson (from mean 30), exponential,
+ * geometric and Bernoulli use the packages' public factories with this stream as `prng`. Normal, gamma and
+ * beta call the packages' algorithm files directly: their public factories, given an outside
+ * `prng`, build a hidden Mersenne Twister (seeded once from it) for the ziggurat's block
+ * index, and that hidden state would carry from one episode into the next. Here the block
+ * index comes from this stream too. Binomial is stdlib's BTRD with a fix, and inversion for
+ * small means (see binomial-btrd.ts).
+ */
+export class EpisodeRng extends withDistributions(Xoshiro128) {}
 
 let shared: { env: EpisodeRng; policy: EpisodeRng } | null = null;
 

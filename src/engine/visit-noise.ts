@@ -1,4 +1,5 @@
-import type { Rng } from '../plugin.js';
+import type { UniformSource } from '../plugin.js';
+import { withDistributions } from './episode-rng.js';
 import { Threefry20 } from './threefry.js';
 
 /**
@@ -59,10 +60,10 @@ export function visitCountsFor(tables: object, stateCount: number): VisitCounts 
 }
 
 /**
- * The `Rng` a code policy receives in visit mode: its j-th draw at the current visit is word
+ * The uniforms of a code policy in visit mode: its j-th draw at the current visit is word
  * j mod 4 of the block (s, k, CODE_POLICY, ⌊j / 4⌋), so its draws too are keyed by the visit.
  */
-export class VisitPolicyRng implements Rng {
+class VisitPolicyUniforms implements UniformSource {
   private readonly g = new Threefry20();
   private state = 0;
   private visit = 0;
@@ -96,3 +97,6 @@ export class VisitPolicyRng implements Rng {
     return Math.floor(this.uniform() * n);
   }
 }
+
+/** The `Rng` a code policy receives in visit mode: those uniforms plus the named distributions. */
+export class VisitPolicyRng extends withDistributions(VisitPolicyUniforms) {}

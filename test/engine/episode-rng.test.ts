@@ -2,6 +2,8 @@ import { describe, expect, it } from 'vitest';
 import poisson from '@stdlib/random-base-poisson';
 import exponential from '@stdlib/random-base-exponential';
 import { EpisodeRng } from '../../src/engine/episode-rng.js';
+import { VisitPolicyRng } from '../../src/engine/visit-noise.js';
+import type { Rng } from '../../src/plugin.js';
 import { STREAM, seedStream } from '../../src/engine/streams.js';
 
 /**
@@ -10,7 +12,7 @@ import { STREAM, seedStream } from '../../src/engine/streams.js';
  * the same stream draws (the property that makes episodes addressable; common practice).
  */
 const out3 = new Float64Array(3);
-const everything = (r: EpisodeRng): number[] => [
+const everything = (r: Rng): number[] => [
   r.normal(1, 2),
   r.poisson(3),
   r.poisson(80),
@@ -41,6 +43,17 @@ describe('re-seeding in place', () => {
       seedStream(fresh, 4, STREAM.ENV, episode);
       for (let k = 0; k < 200; k++) expect(everything(used)).toStrictEqual(everything(fresh));
     }
+  });
+
+  it('a code policy under visit-keyed noise gets the same samplers, its draws keyed by the visit', () => {
+    const rng = new VisitPolicyRng();
+    rng.key(3, 5);
+    rng.at(2, 1);
+    const first = everything(rng);
+    rng.at(2, 1);
+    expect(everything(rng)).toStrictEqual(first);
+    rng.at(2, 2);
+    expect(everything(rng)).not.toStrictEqual(first);
   });
 
   it('different episodes and streams give different draws', () => {
