@@ -12,6 +12,7 @@ import { checkedAction } from './checked-action.js';
 import { startSupport } from './finite-rollout.js';
 import { STREAM, seedStream } from './streams.js';
 import { Xoshiro128 } from './xoshiro128.js';
+import { EpisodeRng } from './episode-rng.js';
 
 export interface RecordRequest {
   readonly mdp: FiniteMdp;
@@ -41,7 +42,7 @@ export function recordFiniteEpisodes(path: string, request: RecordRequest): Floa
   const acting = policy.kind === 'code' ? policy.acting : null;
   const support = startSupport(mdp);
   const envRng = new Xoshiro128();
-  const policyRng = new Xoshiro128();
+  const policyRng = new EpisodeRng(); // a code policy's draws, named distributions included
   const returns = new Float64Array(count);
   const names = stateNames.map((n) => JSON.stringify(n));
   const rows = Array.from({ length: mdp.stateCount }, (_, s) => `[${Array.from(matrix.probability.subarray(s * actionCount, (s + 1) * actionCount)).join(',')}]`);
