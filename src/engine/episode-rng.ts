@@ -16,29 +16,30 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     /** Uniform in the open interval (0, 1), so no sampler ever takes ln(0). */
     private readonly open = (): number => (this.uint32() + 0.5) * 2.3283064365386963e-10;
     private readonly bits = (): number => this.uint32();
-    private readonly standardNormal = improvedZiggurat(this.open, this.bits);
-    private readonly poissonDraw = poissonFactory({ prng: this.open });
-    private readonly exponentialDraw = exponentialFactory({ prng: this.open });
-    private readonly geometricDraw = geometricFactory({ prng: this.open });
-    private readonly bernoulliDraw = bernoulliFactory({ prng: this.open });
+    /** Built on the first named draw, so a plug-in that uses none never loads them. */
+    private built: Samplers | null = null;
     private knuthLambda = NaN;
     private knuthLimit = 0;
+
+    private get samplers(): Samplers {
+      return (this.built ??= makeSamplers(this.open, this.bits));
+    }
 
     normal(mu: number, sigma: number): number {
       if (typeof mu !== 'number' || !Number.isFinite(mu)) bad('normal', 'mu', mu, 'a finite number');
       if (!isPositive(sigma)) bad('normal', 'sigma', sigma, 'a finite number > 0');
-      return mu + sigma * this.standardNormal();
+      return mu + sigma * this.samplers.normal();
     }
 
     poisson(lambda: number): number {
       if (!isPositive(lambda)) bad('poisson', 'lambda', lambda, 'a finite number > 0');
-      if (lambda >= 30) return this.poissonDraw(lambda);
+      if (lambda >= 30) return this.samplers.poisson(lambda);
       // Below 30, stdlib's own method: Knuth's product of uniforms (TAOCP vol. 2, 3.4.1), which
       // stdlib's knuth.js runs recomputing e^-lambda (its exp) at every factor; here it is
       // computed once per lambda with the same exp, so the draws are the same, about 2× sooner.
       if (lambda !== this.knuthLambda) {
         this.knuthLambda = lambda;
-        this.knuthLimit = stdlibExp(-lambda);
+        this.knuthLimit = stdlib().exp(-lambda);
       }
       const limit = this.knuthLimit;
       let product = this.open();
@@ -52,7 +53,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
 
     exponential(rate: number): number {
       if (!isPositive(rate)) bad('exponential', 'rate', rate, 'a finite number > 0');
-      return this.exponentialDraw(rate);
+      return this.samplers.exponential(rate);
     }
 
     gamma(shape: number, scale: number): number {
@@ -64,7 +65,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     beta(a: number, b: number): number {
       if (!isPositive(a)) bad('beta', 'a', a, 'a finite number > 0');
       if (!isPositive(b)) bad('beta', 'b', b, 'a finite number > 0');
-      return betaSample(this.open, this.standardNormal, a, b);
+      return stdlib().beta(this.open, this.samplers.normal, a, b);
     }
 
     binomial(n: number, p: number): number {
@@ -78,7 +79,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     geometric(p: number): number {
       if (!isProbability(p) || p === 0) bad('geometric', 'p', p, 'a probability in (0, 1]');
       if (p === 1) return 0;
-      return this.geometricDraw(p);
+      return this.samplers.geometric(p);
     }
 
     categorical(weights: ArrayLike<number>): number {
@@ -131,7 +132,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
 
     bernoulli(p: number): boolean {
       if (!isProbability(p)) bad('bernoulli', 'p', p, 'a probability in [0, 1]');
-      return this.bernoulliDraw(p) === 1;
+      return this.samplers.bernoulli(p) === 1;
     }
 
     /**
@@ -141,10 +142,10 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     private standardGamma(shape: number): number {
       if (shape < 1) {
         const d = shape + 1 - 1 / 3;
-        return gammaSample(this.open, this.standardNormal, 1, d, 1 / Math.sqrt(9 * d)) * Math.pow(this.open(), 1 / shape);
+        return stdlib().gamma(this.open, this.samplers.normal, 1, d, 1 / Math.sqrt(9 * d)) * Math.pow(this.open(), 1 / shape);
       }
       const d = shape - 1 / 3;
-      return gammaSample(this.open, this.standardNormal, 1, d, 1 / Math.sqrt(9 * d));
+      return stdlib().gamma(this.open, this.samplers.normal, 1, d, 1 / Math.sqrt(9 * d));
     }
   };
 }
@@ -181,15 +182,55 @@ type Uniform = () => number;
 type Sampler1 = (a: number) => number;
 type Factory<S> = (options: { prng: Uniform }) => S;
 
-const require = createRequire(import.meta.url);
-const improvedZiggurat = require('@stdlib/random-base-improved-ziggurat/lib/improved_ziggurat.js') as (randu: Uniform, randi: Uniform) => Uniform;
-const gammaSample = require('@stdlib/random-base-gamma/lib/gamma.js') as (randu: Uniform, randn: Uniform, rate: number, d: number, c: number) => number;
-const betaSample = require('@stdlib/random-base-beta/lib/beta.js') as (randu: Uniform, randn: Uniform, a: number, b: number) => number;
-const stdlibExp = require('@stdlib/math-base-special-exp') as (x: number) => number;
-const poissonFactory = (require('@stdlib/random-base-poisson') as { factory: Factory<Sampler1> }).factory;
-const exponentialFactory = (require('@stdlib/random-base-exponential') as { factory: Factory<Sampler1> }).factory;
-const geometricFactory = (require('@stdlib/random-base-geometric') as { factory: Factory<Sampler1> }).factory;
-const bernoulliFactory = (require('@stdlib/random-base-bernoulli') as { factory: Factory<Sampler1> }).factory;
+interface Stdlib {
+  ziggurat: (randu: Uniform, randi: Uniform) => Uniform;
+  gamma: (randu: Uniform, randn: Uniform, rate: number, d: number, c: number) => number;
+  beta: (randu: Uniform, randn: Uniform, a: number, b: number) => number;
+  exp: (x: number) => number;
+  poisson: Factory<Sampler1>;
+  exponential: Factory<Sampler1>;
+  geometric: Factory<Sampler1>;
+  bernoulli: Factory<Sampler1>;
+}
+
+interface Samplers {
+  normal: Uniform;
+  poisson: Sampler1;
+  exponential: Sampler1;
+  geometric: Sampler1;
+  bernoulli: Sampler1;
+}
+
+let loaded: Stdlib | null = null;
+
+/** The @stdlib parts, loaded on first use: some 0.3 s of module loading a thread need not pay. */
+function stdlib(): Stdlib {
+  if (loaded === null) {
+    const require = createRequire(import.meta.url);
+    loaded = {
+      ziggurat: require('@stdlib/random-base-improved-ziggurat/lib/improved_ziggurat.js'),
+      gamma: require('@stdlib/random-base-gamma/lib/gamma.js'),
+      beta: require('@stdlib/random-base-beta/lib/beta.js'),
+      exp: require('@stdlib/math-base-special-exp'),
+      poisson: require('@stdlib/random-base-poisson').factory,
+      exponential: require('@stdlib/random-base-exponential').factory,
+      geometric: require('@stdlib/random-base-geometric').factory,
+      bernoulli: require('@stdlib/random-base-bernoulli').factory,
+    };
+  }
+  return loaded;
+}
+
+function makeSamplers(open: Uniform, bits: Uniform): Samplers {
+  const lib = stdlib();
+  return {
+    normal: lib.ziggurat(open, bits),
+    poisson: lib.poisson({ prng: open }),
+    exponential: lib.exponential({ prng: open }),
+    geometric: lib.geometric({ prng: open }),
+    bernoulli: lib.bernoulli({ prng: open }),
+  };
+}
 
 /**
  * The generator a code environment or policy receives: a xoshiro128** stream plus the named
