@@ -64,7 +64,8 @@ export async function importFactory(
   try {
     loaded = (await import(pathToFileURL(absolute).href)) as { default?: unknown };
   } catch (e) {
-    const place = e instanceof SyntaxError ? syntaxErrorPlace(absolute) : null;
+    // A TypeScript module's syntax error already names its place (typescript-hooks.ts).
+    const place = e instanceof SyntaxError && !TYPESCRIPT.has(extname(absolute)) ? syntaxErrorPlace(absolute) : null;
     const why = place ? `could not load module "${relativePath}": syntax error at ${place}: ${(e as Error).message}` : explainImportFailure(relativePath, e);
     throw new InputError(source.label, why, { cause: e });
   }
