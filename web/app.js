@@ -131,10 +131,10 @@ async function renderRunList() {
       el('button', { type: 'button', class: 'sort', onclick: () => { listState.descending = listState.sort === c.key ? !listState.descending : c.key === 'created_at'; listState.sort = c.key; draw(data); } },
         c.label, listState.sort === c.key ? (listState.descending ? ' ▼' : ' ▲') : ''))));
     const body = shown.map((r) => {
-      const link = r.kind === 'comparison' ? `#/comparisons/${r.id}` : `#/runs/${r.id}`;
+      const link = r.kind === 'comparison' ? `#/comparisons/${r.id}` : r.kind === 'offpolicy' ? `#/offpolicy/${r.id}` : `#/runs/${r.id}`;
       const summary = r.summary;
       const first = r.kind === 'comparison' ? summary?.differences?.[0] : null;
-      const mean = r.kind === 'comparison' ? (first ? `Δ[${first.a}−${first.b}] ${num(first.mean)} ± ${num(first.half_width, 2)}` : 'comparison') : summary?.mean !== undefined ? `${num(summary.mean)} ± ${num(summary.ci?.halfWidth ?? summary.ci?.half_width, 2)}` : r.progress?.mean != null ? `${num(r.progress.mean)} ± ${num(r.progress.half_width, 2)} (so far)` : '–';
+      const mean = r.kind === 'offpolicy' ? offPolicyHeadline(summary) : r.kind === 'comparison' ? (first ? `Δ[${first.a}−${first.b}] ${num(first.mean)} ± ${num(first.half_width, 2)}` : 'comparison') : summary?.mean !== undefined ? `${num(summary.mean)} ± ${num(summary.ci?.halfWidth ?? summary.ci?.half_width, 2)}` : r.progress?.mean != null ? `${num(r.progress.mean)} ± ${num(r.progress.half_width, 2)} (so far)` : '–';
       const done = r.progress ? r.progress.done : r.episodes;
       return el('tr', { 'data-id': r.id, 'data-status': r.status },
         el('td', {}, el('a', { href: link }, r.id)),
@@ -345,6 +345,48 @@ async function renderComparison(id) {
   await drawPlot(plot, await api(`/api/comparisons/${encodeURIComponent(id)}/plot`));
 }
 
+// ---- off-policy runs ----------------------------------------------------------------------
+
+/** The weighted doubly robust estimate (else the first) ± its bootstrap half-width. */
+function offPolicyHeadline(summary) {
+  const chosen = summary?.estimates?.find((e) => e.name === 'wdr') ?? summary?.estimates?.[0];
+  if (!chosen || chosen.estimate === null) return 'off-policy';
+  const b = chosen.intervals.bootstrap;
+  return b && b.low !== null ? `${chosen.name} ${num(chosen.estimate)} ± ${num((b.high - b.low) / 2, 2)}` : `${chosen.name} ${num(chosen.estimate)}`;
+}
+
+async function renderOffPolicy(id) {
+  const r = await api(`/api/offpolicy/${encodeURIComponent(id)}`);
+  const d = r.diagnostics;
+  const level = `${Math.round(r.level * 1000) / 10}%`;
+  const range = (p) => (p && p.low !== null ? `${num(p.low)} to ${num(p.high)}` : '–');
+  const plot = el('figure', { class: 'plot', id: 'plot-weights' });
+  show(
+    el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
+    el('h1', {}, `Off-policy estimate of ${r.policy} `, badge(r.status)),
+    el('p', {}, `From the log ${r.log.path}: ${count(r.log.episodes)} episodes, ${count(r.log.steps)} steps (sha256 ${r.log.sha256.slice(0, 12)}…), discount ${r.discount}${r.env ? `, environment ${r.env}` : ''}.`),
+    d.verdict ? el('p', { class: 'warning', role: 'alert' }, d.verdict) : null,
+    d.warnings.map((w) => el('p', { class: 'warning' }, w)),
+    el('h2', {}, 'Estimators side by side'),
+    el('table', { class: 'figures', id: 'offpolicy-estimates' },
+      el('thead', {}, el('tr', {}, ['estimator', 'estimate', `${level} BCa bootstrap`, 'percentile bootstrap', 't'].map((h) => el('th', { scope: 'col' }, h)))),
+      el('tbody', {}, r.estimates.map((e) => el('tr', {},
+        el('td', {}, `${e.name}: ${e.title}`),
+        el('td', { class: 'number' }, e.estimate === null ? 'undefined' : num(e.estimate)),
+        el('td', { class: 'number' }, range(e.intervals.bootstrap)),
+        el('td', { class: 'number' }, range(e.intervals.bootstrap_percentile)),
+        el('td', { class: 'number' }, range(e.intervals.t)))))),
+    el('p', {}, 'Bootstrap and t intervals are approximate; their disagreement is itself a warning sign.'),
+    el('h2', {}, `Bounds valid at any number of episodes (${level}; lower bounds one-sided)`),
+    el('ul', {}, r.bounds.map((b) => el('li', {}, `${b.method === 'betting-lower' ? 'betting, on the weighted returns' : b.method === 'betting' ? 'betting, two-sided (largest weight known)' : 'Thomas et al. (2015), truncated weights'}: ${b.low === null ? `– (${b.note ?? 'not available'})` : b.high === null ? num(b.low) : `${num(b.low)} to ${num(b.high)}`}`))),
+    el('h2', {}, 'Weights'),
+    el('p', { id: 'offpolicy-ess' }, `Effective sample size (Kish) ${num(d.ess)} of ${count(r.log.episodes)} episodes (${num(100 * d.ess_fraction, 3)}%); largest weight ${num(d.max_weight)}${d.max_weight_share === null ? '' : ` (${num(100 * d.max_weight_share, 3)}% of all weight)`}; mean weight ${num(d.mean_weight)} (${level}: ${range(d.mean_weight_interval)}), which should be 1.`),
+    plot,
+    el('p', {}, 'These are statistical estimates about the logged system; they are not safety evidence.'),
+  );
+  await drawPlot(plot, await api(`/api/offpolicy/${encodeURIComponent(id)}/plot`));
+}
+
 // ---- new evaluation -----------------------------------------------------------------------
 
 async function renderForm() {
@@ -434,6 +476,7 @@ async function route() {
     let match;
     if ((match = hash.match(/^#\/runs\/([\w-]+)$/))) await renderRun(match[1]);
     else if ((match = hash.match(/^#\/comparisons\/([\w-]+)$/))) await renderComparison(match[1]);
+    else if ((match = hash.match(/^#\/offpolicy\/([\w-]+)$/))) await renderOffPolicy(match[1]);
     else if (hash === '#/new') await renderForm();
     else await renderRunList();
   } catch (error) {

@@ -20,6 +20,7 @@ import { discountedReturns, finalWeights, type WeightedEpisodes } from '../stats
 import { crossFittedModelValues } from './cross-fitted-model.js';
 import { checkSupport, offPolicyDiagnostics, type OffPolicyDiagnostics } from './diagnostics.js';
 import type { TargetOnLog } from './target-on-log.js';
+import { twoSidedBettingInterval } from './two-sided-betting.js';
 import { weightedEpisodes } from './weights-on-log.js';
 
 export const ESTIMATORS = ['is', 'wis', 'pdis', 'cwpdis', 'dr', 'wdr'] as const;
@@ -187,10 +188,17 @@ function lowerBounds(episodes: WeightedEpisodes, options: OffPolicyOptions): Bou
   // Lower bounds are one-sided at the stated level: P(V^π ≥ bound) ≥ level.
   const betting = nonnegativeBettingLowerBound(x, options.level);
   const held = heldOutLowerBound(x, options.level, options.seed);
-  return [
+  const out: BoundResult[] = [
     { method: 'betting-lower', low: gMin + range * betting, high: null },
     Number.isFinite(held.lowerBound)
       ? { method: 'high-confidence-lower', low: gMin + range * Math.max(0, held.lowerBound), high: null, threshold: held.threshold, heldOut: held.heldOut }
       : { method: 'high-confidence-lower', low: Number.NaN, high: null, note: `needs at least ${held.heldOut + 2} episodes (${held.heldOut} are held out to choose the threshold)` },
   ];
+  const twoSided = options.maxWeight === null ? null : twoSidedBettingInterval(x, options.maxWeight, options.level);
+  out.push(
+    twoSided
+      ? { method: 'betting', low: gMin + range * twoSided[0], high: gMin + range * twoSided[1] }
+      : { method: 'betting', low: Number.NaN, high: null, note: 'needs the largest possible weight: give --behaviour FILE with a gridworld or tabular --env' },
+  );
+  return out;
 }

@@ -6,17 +6,20 @@
 import type { BuiltEnvironment } from '../definitions/built.js';
 import { checkRewardBounds, readEpisodeLog, type EpisodeLog } from '../definitions/episode-log.js';
 import { formatNumber } from '../definitions/describe-value.js';
-import { loadEnvironmentFile, type LoadedEnvironment } from '../definitions/load.js';
+import { loadEnvironmentFile, loadPolicyFile, type LoadedEnvironment } from '../definitions/load.js';
 import { InputError } from '../errors.js';
 import type { FiniteMdp } from '../definitions/finite-mdp.js';
 import { returnBounds } from '../exact/return-bounds.js';
 import { evaluateLog, type EstimatorName, type OffPolicyResult } from './evaluate-log.js';
-import { targetOnLog } from './target-on-log.js';
+import { largestWeight } from './largest-weight.js';
+import { targetOnLog, type TargetOnLog } from './target-on-log.js';
 
 export interface OffPolicyRequest {
   readonly logPath: string;
   readonly policyPath: string;
   readonly envPath: string | null;
+  /** The behaviour policy's file, when known: checks the logged probabilities and bounds the weights. */
+  readonly behaviourPath?: string | null;
   readonly estimators: readonly EstimatorName[];
   readonly level: number;
   readonly seed: number;
@@ -31,6 +34,8 @@ export interface OffPolicyRun {
   readonly horizon: number | null;
   readonly rewardBounds: readonly [number, number] | null;
   readonly returnBounds: readonly [number, number] | null;
+  /** The largest weight any episode can have, from the two policies (null without --behaviour). */
+  readonly maxWeight: number | null;
   readonly result: OffPolicyResult;
   readonly seconds: number;
 }
@@ -55,6 +60,7 @@ export async function runOffPolicy(request: OffPolicyRequest): Promise<OffPolicy
     throw new InputError(request.envPath!, 'is a code (module) environment: give a log with a header instead of --env (the target is matched to the log\'s states by name)');
   }
   const target = await targetOnLog(log, request.policyPath, env && env.built.kind === 'finite' ? env.built : null, request.envPath);
+  const maxWeight = request.behaviourPath ? await behaviourLargestWeight(log, target, env, request.behaviourPath, request.envPath) : null;
   const returnBounds = (env && env.built.kind === 'finite' ? exactReturnBounds(log, env.built.mdp) : null) ?? (rewardBounds ? returnBoundsOf(rewardBounds, discount, horizon) : null);
   const result = evaluateLog(log, target, {
     estimators: request.estimators,
@@ -65,9 +71,41 @@ export async function runOffPolicy(request: OffPolicyRequest): Promise<OffPolicy
     discount,
     horizon,
     returnBounds,
-    maxWeight: null,
+    maxWeight,
   });
-  return { log, env, discount, horizon, rewardBounds, returnBounds, result, seconds: (performance.now() - started) / 1000 };
+  return { log, env, discount, horizon, rewardBounds, returnBounds, maxWeight, result, seconds: (performance.now() - started) / 1000 };
+}
+
+/** Agreement required between a logged behaviour_prob and the behaviour policy's probability. */
+const BEHAVIOUR_TOLERANCE = 1e-6;
+
+/**
+ * With the behaviour policy's file: every logged probability must be the policy's (a refusal
+ * names the first line that differs), and the largest possible weight follows from the two
+ * policies on the environment (largest-weight.ts).
+ */
+async function behaviourLargestWeight(log: EpisodeLog, target: TargetOnLog, env: LoadedEnvironment | null, behaviourPath: string, envLabel: string | null): Promise<number> {
+  if (!env || env.built.kind !== 'finite' || !target.environmentMatrix) {
+    throw new InputError('--behaviour', 'needs --env with a gridworld or tabular environment, on which both policies are known everywhere');
+  }
+  const mdp = env.built.mdp;
+  const behaviour = await loadPolicyFile(behaviourPath, env.built);
+  const matrix = behaviour.built.matrix;
+  if (!matrix) throw new InputError(behaviourPath, 'is a code policy without probabilities(state); the behaviour\'s probabilities are needed');
+  const stateOf = log.stateNames.map((name) => mdp.stateIndex.get(name)!);
+  const actionOf = log.actionNames.map((name) => mdp.actionNames.indexOf(name));
+  for (let k = 0; k < log.state.length; k++) {
+    const p = matrix.probability[stateOf[log.state[k]] * mdp.actionCount + actionOf[log.action[k]]];
+    if (Math.abs(p - log.behaviourProb[k]) > BEHAVIOUR_TOLERANCE) {
+      throw new InputError(
+        `${log.label}: line ${log.line[k]}`,
+        `behaviour_prob ${formatNumber(log.behaviourProb[k])} differs from ${behaviourPath}'s ${formatNumber(p)} for action ${JSON.stringify(log.actionNames[log.action[k]])} in state ${JSON.stringify(log.stateNames[log.state[k]])}: the log was not written by this behaviour${envLabel ? ` on ${envLabel}` : ''}`,
+      );
+    }
+  }
+  const starts = new Set<number>();
+  for (let i = 0; i < log.episodeIds.length; i++) starts.add(stateOf[log.state[log.episodeStart[i]]]);
+  return largestWeight(mdp, target.environmentMatrix, matrix, [...starts]);
 }
 
 /** Fewest start states for which the exact bounds are worth their dynamic programme each. */

@@ -10,7 +10,7 @@ import { buildPolicy } from '../definitions/build-policy.js';
 import type { DefinitionSource, FiniteEnvironment } from '../definitions/built.js';
 import { listNames } from '../definitions/describe-value.js';
 import type { EpisodeLog } from '../definitions/episode-log.js';
-import type { FiniteMdp } from '../definitions/finite-mdp.js';
+import type { FiniteMdp, PolicyMatrix } from '../definitions/finite-mdp.js';
 import { parsePolicy } from '../definitions/parse.js';
 import { isPolicyReference, type PolicyDefinition } from '../definitions/policy-schema.js';
 import { readDefinitionFile } from '../definitions/read-file.js';
@@ -21,6 +21,8 @@ export interface TargetOnLog {
   readonly actionNames: readonly string[];
   /** π(a | s) for the log's state s and action column a: `probability[s * actionNames.length + a]`. */
   readonly probability: Float64Array;
+  /** The target on the environment's own states, when one was given. */
+  readonly environmentMatrix: PolicyMatrix | null;
 }
 
 /** The policy file's target probabilities at every logged state; refusals name the log line. */
@@ -55,7 +57,7 @@ export async function targetOnLog(log: EpisodeLog, policyPath: string, env: Fini
     for (let a = 0; a < width; a++) probability[s * width + a] = matrix.probability[m * matrix.actionCount + column[a]];
   }
   if (env) checkNoStepInTerminal(log, mdp, envLabel!);
-  return { actionNames, probability };
+  return { actionNames, probability, environmentMatrix: env ? matrix : null };
 }
 
 /** A table policy without a default knows only the states it lists: refuse a logged state it does not know. */

@@ -12,7 +12,10 @@ export interface OffPolicyLabels {
 const pair = (p: readonly [number, number] | null) => (p ? { low: finite(p[0]), high: finite(p[1]) } : null);
 const finite = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? null : x);
 
-export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'horizon' | 'rewardBounds' | 'returnBounds' | 'result' | 'seconds'>, labels: OffPolicyLabels, runId: string | null = null) {
+/** What `offpolicy --json` prints and the store keeps as the run's summary. */
+export type OffPolicyJson = ReturnType<typeof offPolicyJson>;
+
+export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'horizon' | 'rewardBounds' | 'returnBounds' | 'maxWeight' | 'result' | 'seconds'>, labels: OffPolicyLabels, runId: string | null = null) {
   const { result, log } = run;
   const d = result.diagnostics;
   return {
@@ -25,6 +28,7 @@ export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'hori
     horizon: run.horizon,
     reward_bounds: run.rewardBounds,
     return_bounds: run.returnBounds,
+    max_weight: run.maxWeight,
     level: result.level,
     seed: labels.seed,
     resamples: result.resamples,
@@ -44,8 +48,9 @@ export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'hori
       method: b.method,
       low: finite(b.low),
       high: finite(b.high),
-      ...(b.threshold !== undefined ? { threshold: finite(b.threshold), held_out: b.heldOut } : {}),
-      ...(b.note ? { note: b.note } : {}),
+      threshold: b.threshold !== undefined ? finite(b.threshold) : undefined,
+      held_out: b.heldOut,
+      note: b.note,
     })),
     diagnostics: {
       ess: d.ess,

@@ -24,7 +24,9 @@ function rowOf(run: RunRecord, id: string): string[] {
   } | null;
   let estimate = '';
   const halfWidth = summary?.ci?.half_width ?? summary?.ci?.halfWidth;
-  if (run.kind === 'comparison' && summary?.differences?.length) {
+  if (run.kind === 'offpolicy') {
+    estimate = offPolicyEstimate(run.summary);
+  } else if (run.kind === 'comparison' && summary?.differences?.length) {
     const first = summary.differences[0];
     const d = decimalsFor(first.half_width);
     const more = summary.differences.length > 1 ? ` (+${summary.differences.length - 1} pairs)` : '';
@@ -37,7 +39,20 @@ function rowOf(run: RunRecord, id: string): string[] {
   const episodes = run.status === 'done' ? count(done) : `${count(done)}/${count(run.episodesRequested)}`;
   const policy = run.kind === 'comparison' ? run.policy.label.split(' vs ').map((p) => p.split('/').pop()).join(' vs ') : run.policy.label;
   const shard = run.shard ? ` [${run.shard.index}/${run.shard.count}]` : '';
-  return [id, shortTime(run.createdAt), clip(run.env.label, 28), clip(policy, 40), episodes + shard, estimate, methodOf(run), run.status];
+  const method = run.kind === 'offpolicy' ? 'off-policy, BCa' : methodOf(run);
+  return [id, shortTime(run.createdAt), clip(run.env.label, 28), clip(policy, 40), episodes + shard, estimate, method, run.status];
+}
+
+/** An off-policy run's headline: the weighted doubly robust estimate (else the first) ± its BCa half-width. */
+function offPolicyEstimate(summary: Record<string, unknown> | null): string {
+  const estimates = (summary?.estimates ?? []) as { name: string; estimate: number | null; intervals: { bootstrap: { low: number | null; high: number | null } | null } }[];
+  const chosen = estimates.find((e) => e.name === 'wdr') ?? estimates[0];
+  if (!chosen || chosen.estimate === null) return '';
+  const b = chosen.intervals.bootstrap;
+  if (!b || b.low === null || b.high === null) return `${chosen.name} ${chosen.estimate.toPrecision(4)}`;
+  const halfWidth = (b.high - b.low) / 2;
+  const d = decimalsFor(halfWidth);
+  return `${chosen.name} ${fixed(chosen.estimate, d)} ± ${fixed(halfWidth, d)}`;
 }
 
 /**

@@ -8,6 +8,7 @@ import type { ServerContext } from './context.js';
 import { RunAnalysisCache } from './run-analysis.js';
 import { RunQueue } from './run-queue.js';
 import { comparisonRoutes } from './routes/comparisons.js';
+import { offPolicyRoutes } from './routes/offpolicy.js';
 import { evaluationRoutes } from './routes/evaluations.js';
 import { eventRoutes } from './routes/events.js';
 import { exampleRoutes } from './routes/examples.js';
@@ -71,6 +72,7 @@ export async function buildApp(options: ServerOptions): Promise<FastifyInstance>
   eventRoutes(app, ctx);
   evaluationRoutes(app, ctx);
   comparisonRoutes(app, ctx);
+  offPolicyRoutes(app, ctx);
   exampleRoutes(app);
   pageRoutes(app);
 

@@ -67,6 +67,21 @@ export const MIGRATIONS: readonly string[] = [
   `
   ALTER TABLE runs ADD COLUMN noise TEXT NOT NULL DEFAULT 'step' CHECK (noise IN ('step', 'visit'));
   `,
+  // 5: off-policy runs (kind 'offpolicy'): the log they read, identified by its hash and size,
+  // and each episode's importance weight for the page's histogram. The figures are the run's
+  // summary; no episodes are stored, since none were run.
+  `
+  CREATE TABLE offpolicy_logs (
+    run_id   TEXT PRIMARY KEY REFERENCES runs (id) ON DELETE CASCADE,
+    label    TEXT NOT NULL,
+    sha256   TEXT NOT NULL,
+    bytes    INTEGER NOT NULL,
+    episodes INTEGER NOT NULL,
+    steps    INTEGER NOT NULL,
+    weights  BLOB NOT NULL
+  ) WITHOUT ROWID;
+  CREATE INDEX offpolicy_logs_by_hash ON offpolicy_logs (sha256);
+  `,
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS.length;

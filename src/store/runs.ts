@@ -7,7 +7,7 @@ import type { DefinitionFileHash } from './definition-files.js';
 import { LEGACY_NOISE, NOISE_MODES, type NoiseMode } from '../engine/noise.js';
 
 export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
-export type RunKind = 'estimate' | 'comparison';
+export type RunKind = 'estimate' | 'comparison' | 'offpolicy';
 
 export interface StoredDefinition {
   readonly label: string;

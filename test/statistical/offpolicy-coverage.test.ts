@@ -67,4 +67,22 @@ describe('off-policy intervals cover the exact value of the target', () => {
     const { hits } = await coverage(path.join(dir, 'ferry-env.json'), path.join(dir, 'ferry-behaviour.json'), path.join(dir, 'ferry-target.json'), 400, 100, ['is']);
     expect(hits.betting).toBeGreaterThanOrEqual(91);
   }, 180_000);
+  it('the two-sided betting interval with the largest weight known covers on the 2-state example, 1000 episodes a log', async () => {
+    const dir = path.join(ROOT, 'test/fixtures/off-policy');
+    const envPath = path.join(dir, 'two-state-env.json');
+    const env = await loadEnvironmentFile(envPath);
+    if (env.built.kind !== 'finite') throw new Error('finite environment expected');
+    const behaviour = await loadPolicyFile(path.join(dir, 'two-state-behaviour.json'), env.built);
+    const logs = mkdtempSync(path.join(tmpdir(), 'reckon-offpolicy-'));
+    let hits = 0;
+    for (let seed = 1; seed <= SEEDS; seed++) {
+      const logPath = path.join(logs, `log-${seed}.jsonl`);
+      recordFiniteEpisodes(logPath, { mdp: env.built.mdp, policy: behaviour.built, seed, start: -1, first: 0, count: 1000, description: 'coverage test' });
+      const run = await runOffPolicy({ logPath, policyPath: path.join(dir, 'two-state-target.json'), envPath, behaviourPath: path.join(dir, 'two-state-behaviour.json'), estimators: ['is'], level: 0.95, seed, resamples: 100, folds: 2 });
+      const two = run.result.bounds.find((b) => b.method === 'betting')!;
+      // V^π = 1.340125 (scripts/methods/off_policy.py)
+      if (two.low <= 1.340125 && 1.340125 <= two.high!) hits++;
+    }
+    expect(hits).toBeGreaterThanOrEqual(SEEDS - 3);
+  }, 120_000);
 });

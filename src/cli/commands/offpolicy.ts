@@ -6,6 +6,13 @@ import { runOffPolicy } from '../../offpolicy/run-offpolicy.js';
 import { offPolicyJson } from '../../report/offpolicy-json.js';
 import { offPolicyText } from '../../report/offpolicy-text.js';
 import { DEFAULT_RESAMPLES } from '../../stats/bootstrap-resample.js';
+import { readDefinitionFile } from '../../definitions/read-file.js';
+import { definitionHash } from '../../store/definition-hash.js';
+import { defaultStorePath } from '../../store/location.js';
+import { machineFacts } from '../../store/machine.js';
+import { storeOffPolicyRun } from '../../store/offpolicy-runs.js';
+import { openStore } from '../../store/open.js';
+import { version } from '../version.js';
 
 export const HELP = `reckon offpolicy: the return a target policy would get, estimated from episodes logged under another
 
@@ -24,12 +31,18 @@ Options:
   --env FILE          the environment the log came from (optional): supplies the discount,
                       horizon and reward bounds a log without a header lacks, and checks that
                       every logged state and action exists there
+  --behaviour FILE    the behaviour policy, when known (needs a gridworld or tabular --env):
+                      every logged probability is checked against it, and the largest
+                      possible weight gives a two-sided betting interval
   --estimator LIST    ${ESTIMATORS.join(', ')} or all (default all), comma-separated
   --confidence L      confidence level (default 0.95)
   --resamples B       bootstrap resamples (default ${DEFAULT_RESAMPLES})
   --folds K           cross-fitting folds of the doubly robust model (default 5)
   --seed S            seed of the bootstrap and the held-out split (default 1)
   --json              print one JSON object instead of the report
+  --store PATH        the run store (default: $RECKON_STORE, else
+                      ~/.local/share/reckon/runs.sqlite); 'reckon runs show ID' prints it again
+  --no-store          do not keep this run
   -h, --help          this help
 
 Examples:
@@ -42,12 +55,15 @@ const OPTIONS = {
   log: { type: 'string' },
   policy: { type: 'string' },
   env: { type: 'string' },
+  behaviour: { type: 'string' },
   estimator: { type: 'string' },
   confidence: { type: 'string' },
   resamples: { type: 'string' },
   folds: { type: 'string' },
   seed: { type: 'string' },
   json: { type: 'boolean' },
+  store: { type: 'string' },
+  'no-store': { type: 'boolean' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -63,6 +79,7 @@ export async function run(args: string[]): Promise<number> {
     logPath,
     policyPath,
     envPath: values.env ?? null,
+    behaviourPath: values.behaviour ?? null,
     estimators: values.estimator === undefined ? [...ESTIMATORS] : parseOffPolicyOption('estimator', values.estimator),
     level: values.confidence === undefined ? 0.95 : parseOption('confidence', 'confidence', values.confidence),
     seed,
@@ -71,7 +88,41 @@ export async function run(args: string[]): Promise<number> {
   };
   const outcome = await runOffPolicy(request);
   const labels = { log: logPath, policy: policyPath, env: request.envPath, seed };
-  if (values.json) process.stdout.write(`${JSON.stringify(offPolicyJson(outcome, labels), null, 2)}\n`);
-  else process.stdout.write(offPolicyText(outcome, labels));
+  const json = offPolicyJson(outcome, labels);
+  const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());
+  let runId: string | null = null;
+  if (storePath !== null) {
+    const db = openStore(storePath);
+    try {
+      runId = storeOffPolicyRun(db, {
+        env: outcome.env ? storedDefinition(request.envPath!, outcome.env.definition, outcome.env.source.baseDir) : null,
+        policy: storedPolicy(policyPath),
+        log: { label: logPath, sha256: outcome.log.sha256, bytes: outcome.log.bytes, episodes: outcome.result.episodes, steps: outcome.result.steps },
+        seed,
+        options: { behaviour: request.behaviourPath, estimators: request.estimators, level: request.level, resamples: request.resamples, folds: request.folds },
+        toolVersion: version(),
+        machine: machineFacts(),
+        seconds: outcome.seconds,
+        weights: outcome.result.diagnostics.weights,
+        summary: json,
+      });
+    } finally {
+      db.close();
+    }
+  }
+  if (values.json) process.stdout.write(`${JSON.stringify({ ...json, run_id: runId }, null, 2)}\n`);
+  else {
+    process.stdout.write(offPolicyText(json));
+    if (runId) process.stdout.write(`\n  Stored as run ${runId} in ${storePath}.\n`);
+  }
   return 0;
+}
+
+function storedDefinition(label: string, json: unknown, baseDir: string) {
+  return { label, json, baseDir, hash: definitionHash(json, baseDir) };
+}
+
+function storedPolicy(path: string) {
+  const file = readDefinitionFile(path);
+  return storedDefinition(path, file.json, file.source.baseDir);
 }

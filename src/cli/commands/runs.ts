@@ -1,3 +1,5 @@
+import { offPolicyText } from '../../report/offpolicy-text.js';
+import type { OffPolicyJson } from '../../report/offpolicy-json.js';
 import { InputError } from '../../errors.js';
 import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-estimate.js';
 import { estimateJson } from '../../report/estimate-json.js';
@@ -157,6 +159,12 @@ function show(args: string[]): number {
     const run = getRun(db, id, label);
     const progress = new ProgressLine();
     const onAnalysis = (step: string, done: number, total: number) => progress.analysis(step, done, total);
+    if (run.kind === 'offpolicy') {
+      // Nothing to recompute: the figures are those of the run, kept whole as its summary.
+      if (values.json) process.stdout.write(`${JSON.stringify({ ...run.summary, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion }, null, 2)}\n`);
+      else process.stdout.write(`Run ${run.id} (off-policy, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n\n${offPolicyText(run.summary as unknown as OffPolicyJson)}`);
+      return 0;
+    }
     if (run.kind === 'comparison') {
       const { result, labels } = analyzeStoredComparison(db, run, onAnalysis, risk);
       progress.clear();
@@ -218,6 +226,10 @@ function exportRun(args: string[]): number {
   let text: string;
   try {
     const run = getRun(db, id, label);
+    if (run.kind === 'offpolicy') {
+      const log = (run.facts as { log?: { label?: string } } | null)?.log?.label ?? 'a log';
+      throw new InputError(id, `is an off-policy run of ${log}: it ran no episodes to export; 'reckon runs show ${id} --json' gives its figures`);
+    }
     if (run.kind === 'comparison') {
       text = comparisonExport(db, run, format);
       return finishExport(values.out, text);

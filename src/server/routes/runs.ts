@@ -57,7 +57,7 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
     const run = findStoredRun(ctx, request.params.id);
     const live = liveState(ctx, run);
     if (run.kind !== 'estimate') {
-      throw new InputError(`run ${run.id}`, `is a ${run.kind} run; see it at /api/comparisons/${run.id}`);
+      throw new InputError(`run ${run.id}`, `is a ${run.kind} run; see it at /api/${run.kind === 'offpolicy' ? 'offpolicy' : 'comparisons'}/${run.id}`);
     }
     // A run still growing is summarised by its progress (running mean and half-width from the
     // engine): recomputing every figure from millions of stored returns on each request would
