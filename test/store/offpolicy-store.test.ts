@@ -59,6 +59,11 @@ describe('off-policy runs in the store', () => {
     const listed = reckon(['runs', 'list', '--store', store]);
     expect(listed.stdout).toMatch(/wdr 0\.\d+ ± \d/);
 
+    const svg = path.join(tempFiles({}), 'weights.svg');
+    const plotted = reckon(['runs', 'plot', run.run_id, '--store', store, '--out', svg]);
+    expect(plotted.code).toBe(0);
+    expect(plotted.stdout).toContain('weight histogram');
+
     const exported = reckon(['runs', 'export', run.run_id, '--store', store]);
     expect(exported.code).toBe(2);
     expect(exported.stderr).toMatch(/is an off-policy run of .*three-episodes\.jsonl: it ran no episodes to export/);

@@ -1,3 +1,5 @@
+import { offPolicyWeightsSpec } from '../../report/plots/offpolicy-weights.js';
+import { loadOffPolicyLog } from '../../store/offpolicy-runs.js';
 import { InputError } from '../../errors.js';
 import { storedRunSequence } from '../../evaluate/stored-estimate.js';
 import { exactForRun } from '../../report/plots/exact-for-run.js';
@@ -34,6 +36,15 @@ export async function plot(args: string[], help: string): Promise<number> {
   let svg: string;
   try {
     const run = getRun(db, positionals[0], storePath);
+    if (run.kind === 'offpolicy') {
+      if (values.kind !== undefined && values.kind !== 'histogram') {
+        throw new InputError('--kind', `an off-policy run has one plot, the histogram of its importance weights: leave out --kind or give --kind histogram (got "${values.kind}")`);
+      }
+      svg = await renderSvg(offPolicyWeightsSpec(loadOffPolicyLog(db, run.id)?.weights ?? new Float64Array(0), run.id));
+      writeOutputFile('--out', values.out, svg);
+      process.stdout.write(`Wrote the weight histogram of run ${run.id} to ${values.out}.\n`);
+      return 0;
+    }
     if (run.kind !== 'estimate') {
       const members = listMembers(db, run.id).map((m) => m.id);
       throw new InputError(`run ${run.id}`, `is a ${run.kind} run; plot one of its member runs (${members.join(', ')}), e.g. 'reckon runs plot ${members[0]} --out ${values.out}'`);

@@ -1,6 +1,6 @@
 import type { FastifyInstance } from 'fastify';
 import { InputError } from '../../errors.js';
-import { histogramBins, histogramSpec } from '../../report/plots/histogram.js';
+import { offPolicyWeightsSpec } from '../../report/plots/offpolicy-weights.js';
 import { loadOffPolicyLog } from '../../store/offpolicy-runs.js';
 import type { ServerContext } from '../context.js';
 import { queryOptions } from '../query.js';
@@ -30,11 +30,7 @@ export function offPolicyRoutes(app: FastifyInstance, ctx: ServerContext): void 
     return ctx.analysis.remember(`offpolicy-plot|${run.id}`, () => {
       const log = loadOffPolicyLog(ctx.db, run.id);
       const weights = log?.weights ?? new Float64Array(0);
-      return histogramSpec(histogramBins(weights), {
-        title: 'Importance weights of the logged episodes',
-        xTitle: 'weight W = Π π(a|s)/μ(a|s)',
-        marker: { value: 1, label: 'their expected mean, 1' },
-      });
+      return offPolicyWeightsSpec(weights, run.id);
     });
   });
 }
