@@ -124,3 +124,21 @@ describe('exact expectations on the 2-state example by enumeration (scripts/meth
     for (const k of ['IS', 'PDIS', 'DR', 'WDR']) expect(e[k], k).toBeCloseTo(1.340125, 6);
   });
 });
+
+describe('a module target policy with probabilities(state)', () => {
+  it('is matched to the logged states by name and gives the same estimates as the table (scripts/methods/off_policy.py, "3-episode log")', async () => {
+    const { tempFiles } = await import('../cli/run-cli.js');
+    const dir = tempFiles({
+      'target.js': `export default () => ({
+        act: () => '1',
+        probabilities: (state) => (state === '0' ? { '0': 0.2, '1': 0.8 } : { '0': 0.1, '1': 0.9 }),
+      });\n`,
+      'target.json': { kind: 'module', path: './target.js' },
+    });
+    const log = await readEpisodeLog(path.join(FIXTURES, 'three-episodes.jsonl'));
+    const target = await targetOnLog(log, path.join(dir, 'target.json'), null, null);
+    const episodes = weightedEpisodes(log, target, 0.9);
+    expect(mean(importanceSamplingValues(episodes))).toBeCloseTo(4.360147, 6);
+    expect(consistentWeightedPerDecision(episodes)).toBeCloseTo(0.857224, 6);
+  });
+});
