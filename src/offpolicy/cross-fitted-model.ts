@@ -6,7 +6,8 @@
  * model fitted on the other folds, so Q̂ never depends on the episode it corrects and the
  * doubly robust estimate keeps its unbiasedness (Jiang & Li 2016 assume Q̂ independent of the
  * data; fitting it on the same episodes pulls the estimate toward the model's own, see
- * docs/methods.md §13). Pairs never logged get reward 0 and uniform next states.
+ * docs/methods.md §13). Pairs never logged in the fitted folds get reward 0 and next states
+ * uniform over the states those folds show.
  */
 import { NEXT_TERMINAL, NEXT_UNKNOWN, type EpisodeLog } from '../definitions/episode-log.js';
 import type { StepModelValues } from '../stats/off-policy/doubly-robust.js';
@@ -46,6 +47,11 @@ interface TabularModel {
   readonly successorStart: Int32Array;
   readonly successor: Int32Array;
   readonly successorProbability: Float64Array;
+  /**
+   * The states the fitted episodes visit or reach: unlogged pairs move uniformly among these,
+   * never among states only the corrected episodes show, which would make Q̂ depend on them.
+   */
+  readonly fittedStates: Int32Array;
 }
 
 function fitModel(log: EpisodeLog, actionCount: number, include: (episode: number) => boolean): TabularModel {
@@ -55,13 +61,16 @@ function fitModel(log: EpisodeLog, actionCount: number, include: (episode: numbe
   const visits = new Float64Array(pairs);
   const keys: number[] = [];
   const width = stateCount + 1;
+  const seen = new Uint8Array(stateCount);
   for (let i = 0; i < log.episodeIds.length; i++) {
     if (!include(i)) continue;
     for (let k = log.episodeStart[i]; k < log.episodeStart[i + 1]; k++) {
       const sa = log.state[k] * actionCount + log.action[k];
       rewardSum[sa] += log.reward[k];
       visits[sa]++;
+      seen[log.state[k]] = 1;
       const next = log.nextState[k];
+      if (next >= 0) seen[next] = 1;
       if (next !== NEXT_UNKNOWN) keys.push(sa * width + (next === NEXT_TERMINAL ? stateCount : next));
     }
   }
@@ -88,7 +97,12 @@ function fitModel(log: EpisodeLog, actionCount: number, include: (episode: numbe
   }
   const meanReward = new Float64Array(pairs);
   for (let sa = 0; sa < pairs; sa++) meanReward[sa] = visits[sa] > 0 ? rewardSum[sa] / visits[sa] : 0;
-  return { stateCount, actionCount, meanReward, successorStart, successor: Int32Array.from(successor), successorProbability };
+  const states: number[] = [];
+  seen.forEach((v, state) => {
+    if (v) states.push(state);
+  });
+  const fittedStates = Int32Array.from(states);
+  return { stateCount, actionCount, meanReward, successorStart, successor: Int32Array.from(successor), successorProbability, fittedStates };
 }
 
 /**
@@ -120,8 +134,8 @@ function applyModel(
   const qt = new Float64Array(stateCount * actionCount);
   for (let t = horizon - 1; t >= 0; t--) {
     let uniformNext = 0;
-    for (let s = 0; s < stateCount; s++) uniformNext += nextValue[s];
-    uniformNext /= Math.max(1, stateCount);
+    for (const s of model.fittedStates) uniformNext += nextValue[s];
+    uniformNext /= Math.max(1, model.fittedStates.length);
     for (let s = 0; s < stateCount; s++) {
       let vs = 0;
       for (let a = 0; a < actionCount; a++) {
