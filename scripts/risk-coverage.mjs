@@ -1,8 +1,9 @@
 // Coverage of reckon's risk intervals against the exact oracle, over seeded runs: the quantile
 // interval (order statistics), the worst-α mean by the DKW band and by the percentile bootstrap,
-// and an event probability by Clopper–Pearson and by Wilson. The lane is the gridworld of the
-// risk coverage test (two terminal cells). Run after `npm run build`:
+// and an event probability by Clopper–Pearson and by Wilson, on envs/loading-lane.json (two
+// terminal cells) under envs/lane-explorer.json. Run after `npm run build`:
 //   node scripts/risk-coverage.mjs [seeds]
+import { readFileSync } from 'node:fs';
 import { newBlock } from '../dist/engine/episode-block.js';
 import { prepareRollout } from '../dist/engine/prepare.js';
 import { exactRisk } from '../dist/exact/exact-risk.js';
@@ -12,12 +13,10 @@ import { riskFigures } from '../dist/evaluate/risk.js';
 import { parseEvent } from '../dist/options/risk-options.js';
 
 const seeds = Number(process.argv[2] ?? 200);
-const source = { label: 'inline', baseDir: process.cwd() };
-const lane = {
-  kind: 'gridworld', discount: 0.95, horizon: 40, step_reward: -0.04, layout: ['....G', '.#~#.', 'S...X'],
-  cells: { '.': { slip: 0.1 }, '~': { slip: 0.4 }, S: { start: 1, slip: 0.1 }, '#': { wall: true }, G: { terminal: true, reward: 1 }, X: { terminal: true, reward: -1 } },
-};
-const explorer = { kind: 'epsilon', epsilon: 0.3, base: { kind: 'table', default: 'up', states: { '0,0': 'right', '0,1': 'right', '0,2': 'right', '0,3': 'right', '1,4': 'up', '2,1': 'right', '2,2': 'up', '2,3': 'up', '1,2': 'up' } } };
+const envs = new URL('../envs/', import.meta.url).pathname;
+const source = { label: 'envs', baseDir: envs };
+const lane = JSON.parse(readFileSync(`${envs}loading-lane.json`, 'utf8'));
+const explorer = JSON.parse(readFileSync(`${envs}lane-explorer.json`, 'utf8'));
 const spec = (seed) => ({ env: { json: lane, source }, policy: { json: explorer, source }, seed, start: null });
 
 console.log(`| n | tail α | n·α | median (order statistics) | worst-α mean, DKW | worst-α mean, bootstrap | P(return<0), Clopper–Pearson | P(return<0), Wilson |`);

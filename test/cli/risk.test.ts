@@ -9,15 +9,8 @@ function json(result: { code: number | null; stdout: string; stderr: string }) {
 }
 
 describe('risk on the command line', () => {
-  const dir = tempFiles({
-    // a loading lane of our own with two terminal cells: the bay G (+1) and a drop-off edge X (−1)
-    'lane.json': {
-      kind: 'gridworld', discount: 0.95, horizon: 40, step_reward: -0.04, layout: ['....G', '.#~#.', 'S...X'],
-      cells: { '.': { slip: 0.1 }, '~': { slip: 0.4 }, S: { start: 1, slip: 0.1 }, '#': { wall: true }, G: { terminal: true, reward: 1 }, X: { terminal: true, reward: -1 } },
-    },
-    'explorer.json': { kind: 'epsilon', epsilon: 0.3, base: { kind: 'table', default: 'up', states: { '0,0': 'right', '0,1': 'right', '0,2': 'right', '0,3': 'right', '1,4': 'up', '2,1': 'right', '2,2': 'up', '2,3': 'up', '1,2': 'up' } } },
-  });
-  const lane = ['--env', path.join(dir, 'lane.json'), '--policy', path.join(dir, 'explorer.json')];
+  const dir = tempFiles({});
+  const lane = ['--env', path.join(ENVS, 'loading-lane.json'), '--policy', path.join(ENVS, 'lane-explorer.json')];
   const store = ['--store', path.join(dir, 'runs.sqlite')];
 
   it('estimate --risk puts quantiles, the tail mean and events under "risk"; runs show --risk recomputes them', () => {

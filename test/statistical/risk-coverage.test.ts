@@ -9,7 +9,6 @@ import { riskFigures } from '../../src/evaluate/risk.js';
 import { parseEvent, type RiskRequest } from '../../src/options/risk-options.js';
 import { readFileSync } from 'node:fs';
 import { ENVS } from '../cli/run-cli.js';
-import { inlineSource } from './small-grid.js';
 
 /**
  * Risk intervals against the exact oracle (the enumerated return distribution of
@@ -23,20 +22,9 @@ const MIN_COVERED = 181;
 /** Several seconds each on a quiet machine; a shared one can take several times that. */
 const LOADED_MACHINE_MS = 300_000;
 
-// A loading lane of our own: a pallet robot from S to the bay G (+1), past a drop-off edge X (−1).
-const lane = {
-  kind: 'gridworld',
-  discount: 0.95,
-  horizon: 40,
-  step_reward: -0.04,
-  layout: ['....G', '.#~#.', 'S...X'],
-  cells: { '.': { slip: 0.1 }, '~': { slip: 0.4 }, S: { start: 1, slip: 0.1 }, '#': { wall: true }, G: { terminal: true, reward: 1 }, X: { terminal: true, reward: -1 } },
-};
-const laneExplorer = {
-  kind: 'epsilon',
-  epsilon: 0.3,
-  base: { kind: 'table', default: 'up', states: { '0,0': 'right', '0,1': 'right', '0,2': 'right', '0,3': 'right', '1,4': 'up', '2,1': 'right', '2,2': 'up', '2,3': 'up', '1,2': 'up' } },
-};
+// The demo's loading lane (envs/loading-lane.json): two terminal cells, the bay G (+1) and a drop-off edge X (−1).
+const envFile = (name: string) => JSON.parse(readFileSync(`${ENVS}/${name}`, 'utf8'));
+const envsSource = { label: 'envs', baseDir: ENVS };
 
 const laneRequest: RiskRequest = { quantiles: [0.5], tail: 0.1, events: [parseEvent('return<0'), parseEvent('length>=12')] };
 
@@ -68,7 +56,7 @@ async function coverage(spec: (seed: number) => RolloutSpec, n: number, request:
 }
 
 describe('risk intervals cover the exact values over 200 seeds', () => {
-  const laneSpec = (seed: number): RolloutSpec => ({ env: { json: lane, source: inlineSource }, policy: { json: laneExplorer, source: inlineSource }, seed, start: null });
+  const laneSpec = (seed: number): RolloutSpec => ({ env: { json: envFile('loading-lane.json'), source: envsSource }, policy: { json: envFile('lane-explorer.json'), source: envsSource }, seed, start: null });
   for (const n of [200, 2000]) {
     it(`on a lane with two terminal cells, n = ${n}: median, tail mean (DKW), and both events (Clopper–Pearson, Wilson)`, async () => {
       const { covered, exact } = await coverage(laneSpec, n, laneRequest);
@@ -85,9 +73,7 @@ describe('risk intervals cover the exact values over 200 seeds', () => {
   }
 
   it('on the demo warehouse (careful picker), n = 200: median, tail mean (DKW), and P(return < 12) by both methods', async () => {
-    const file = (name: string) => JSON.parse(readFileSync(`${ENVS}/${name}`, 'utf8'));
-    const source = { label: 'envs', baseDir: ENVS };
-    const spec = (seed: number): RolloutSpec => ({ env: { json: file('warehouse.json'), source }, policy: { json: file('picker-careful.json'), source }, seed, start: null });
+    const spec = (seed: number): RolloutSpec => ({ env: { json: envFile('warehouse.json'), source: envsSource }, policy: { json: envFile('picker-careful.json'), source: envsSource }, seed, start: null });
     const { covered, exact } = await coverage(spec, 200, { quantiles: [0.5], tail: 0.05, events: [parseEvent('return<12')] });
     expect(exact.events[0].probability).toBeCloseTo(0.5, 12); // the two docks are equally likely and lead to two returns
     expect(covered.median).toBeGreaterThanOrEqual(MIN_COVERED);
