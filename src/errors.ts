@@ -47,3 +47,23 @@ export class PluginError extends Error {
 export function isInputError(e: unknown): e is InputError {
   return e instanceof InputError;
 }
+
+/**
+ * A run stopped by a signal or a stop request before it had the two episodes every figure
+ * needs. Not a failure: the run is kept as interrupted (`runId`, once it exists), so that
+ * `reckon runs resume` can continue it; the command exits as for any other interruption.
+ */
+export class StoppedEarly extends Error {
+  /** The stored run, when one had been created before the stop. */
+  runId: string | null = null;
+  constructor(
+    /** Episodes the run has (a resumed run's earlier ones included). */
+    readonly episodes: number,
+    readonly requested: number,
+    /** Whether the environment and policy were still being created (their code had not returned). */
+    readonly creating = false,
+  ) {
+    super(creating ? 'stopped while the environment and policy were being created' : `stopped after ${episodes} episode(s), too few for any figure`);
+    this.name = 'StoppedEarly';
+  }
+}

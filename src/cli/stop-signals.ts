@@ -1,3 +1,5 @@
+import type { StoppedEarly } from '../errors.js';
+
 /**
  * Ctrl-C (SIGINT) and SIGTERM, what a batch scheduler sends at a job's time limit, end a run
  * cleanly: the first one stops new episodes, the episodes already finished are committed and
@@ -36,6 +38,17 @@ export class StopSignals {
     process.off('SIGINT', this.onSignal);
     process.off('SIGTERM', this.onSignal);
   }
+}
+
+/**
+ * What a run stopped before its first figures prints (StoppedEarly): how far it got and how to
+ * continue it; returns the exit code of the signal, as for any interrupted run.
+ */
+export function reportStoppedEarly(e: StoppedEarly, stop: StopSignals, resumeCommand: (runId: string) => string): number {
+  const how = e.runId ? ` Continue it with: ${resumeCommand(e.runId)}` : ' No episode had run, so nothing was stored.';
+  const when = e.creating ? 'while the environment and policy were being created' : `after ${e.episodes} of ${e.requested} episodes, all kept`;
+  process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} ${when}.${how}\n`);
+  return stop.exitCode();
 }
 
 function exitCodeFor(signal: NodeJS.Signals): number {

@@ -1,6 +1,12 @@
 import { isMainThread } from 'node:worker_threads';
 
 const reported = new Set<string>();
+let speaks = isMainThread;
+
+/** Lets a worker thread that builds definitions on the main thread's behalf print the warnings. */
+export function warnFromThisThread(): void {
+  speaks = true;
+}
 
 /**
  * Tells the user on stderr that a name is deprecated while it keeps working. Once per
@@ -9,7 +15,7 @@ const reported = new Set<string>();
  */
 export function warnDeprecated(where: string, message: string): void {
   const line = `reckon: warning: ${where}: ${message}`;
-  if (!isMainThread || reported.has(line)) return;
+  if (!speaks || reported.has(line)) return;
   reported.add(line);
   process.stderr.write(`${line}\n`);
 }

@@ -13,6 +13,7 @@ import { newClockBuffer } from './plugin-clock.js';
 import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-watch.js';
 import type { CodeWorkerData } from './worker.js';
 import { EarlyWorkers } from './early-workers.js';
+import { runsPluginCode } from './runs-plugin-code.js';
 
 export interface RunOptions {
   /** First episode index (a resumed or sharded run starts later). */
@@ -58,10 +59,11 @@ export function defaultWorkers(): number {
  */
 export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promise<RunOutcome> {
   const workers = Math.max(1, Math.min(options.workers, Math.ceil(options.count / 64) || 1));
-  const prepared = (options.callerRuns ?? true) || workers === 1 || isFiniteSpec(spec) ? (options.prepared ?? (await prepareRollout(spec))) : null;
-  // Plug-in code runs on worker threads only: a call that hangs must not stop this thread
-  // from answering signals and from noticing the hang (step-watch.ts).
-  const plugins = prepared === null || runsPluginCode(prepared);
+  // Plug-in code runs on worker threads only, its loading and factory included: a call that
+  // hangs must not stop this thread from answering signals and from noticing the hang
+  // (step-watch.ts).
+  const plugins = runsPluginCode(spec);
+  const prepared = plugins ? null : (options.prepared ?? (await prepareRollout(spec)));
   const callerRuns = (options.callerRuns ?? true) && !plugins;
   if (workers === 1 && prepared && !plugins) return runInline(prepared, options);
   return runThreaded(spec, prepared, options, workers, callerRuns);
@@ -72,12 +74,8 @@ export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promi
  * they load while the caller prepares the spec (early-workers.ts). Null for any other spec.
  */
 export function startCodeWorkers(spec: RolloutSpec, workers: number): EarlyWorkers | null {
-  if (workers < 2 || isFiniteSpec(spec)) return null;
+  if (workers < 2 || !runsPluginCode(spec)) return null;
   return new EarlyWorkers(workerUrl('worker.js'), spec, workers);
-}
-
-function runsPluginCode(prepared: PreparedRollout): boolean {
-  return prepared.env.kind === 'module' || prepared.policy.kind === 'code';
 }
 
 const MIN_BLOCK = 16;
@@ -133,10 +131,6 @@ function workerUrl(file: string): string {
   return path.join(path.dirname(here), file);
 }
 
-function isFiniteSpec(spec: RolloutSpec): boolean {
-  return (spec.env.json as { kind?: unknown } | null)?.kind !== 'module';
-}
-
 /**
  * What the worker threads run. A finite MDP with a tabulated policy, compiled once in this
  * thread, goes to light workers (table-worker.ts) as its tables: they skip the definitions
@@ -157,7 +151,7 @@ function workerEntry(spec: RolloutSpec, prepared: PreparedRollout | null): { url
   return { url: workerUrl('worker.js'), data: spec, watched: true };
 }
 
-function rebuildError(message: Extract<FromWorker, { type: 'error' }>): Error {
+export function rebuildError(message: Extract<FromWorker, { type: 'error' }>): Error {
   if ((message.name === 'InputError' || message.name === 'NotFoundError') && message.detail !== undefined) {
     return new InputError(message.where ?? '', message.detail);
   }

@@ -5,16 +5,16 @@ import type { RiskRequest } from '../options/risk-options.js';
 import type { RiskFigures } from './risk.js';
 import { runEpisodes, startCodeWorkers } from '../engine/pool.js';
 import type { EarlyWorkers } from '../engine/early-workers.js';
-import { prepareRollout } from '../engine/prepare.js';
+import { prepareForRun, type ReadyRun } from './prepare-for-run.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import type { NoiseMode } from '../engine/noise.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
 import type { CiMethod, ProjectionRow } from '../stats/index.js';
 import { computeFigures, checkIntervalPossible, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
-import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
+import type { EnvironmentFacts } from './environment-facts.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import { RunningMoments } from './running-moments.js';
-import { InputError } from '../errors.js';
+import { InputError, StoppedEarly } from '../errors.js';
 import { chooseSequence, isSequenceMethod, makeRunningInterval, targetReached, type SequenceChoice, type SequenceSettings } from './sequence.js';
 
 /** A fixed-sample interval method, or a sequence for a run that stops at a target error. */
@@ -130,8 +130,14 @@ export async function runEstimate(request: EstimateRequest): Promise<EstimateRes
 
 async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null): Promise<EstimateResult> {
   const { spec } = request;
-  const prepared = await prepareRollout(spec);
-  const facts = environmentFacts(prepared.env, prepared.policy, prepared.startIndex);
+  let ready: ReadyRun;
+  try {
+    ready = await prepareForRun(spec, request.signal);
+  } catch (e) {
+    if (e instanceof StoppedEarly) throw new StoppedEarly(request.prior?.returns.length ?? 0, request.episodes, true);
+    throw e;
+  }
+  const { prepared, facts } = ready;
   const bounds = request.bounds ?? facts.returnBounds;
   const sigma = request.sigma ?? null;
   let method: IntervalChoice;
@@ -191,7 +197,7 @@ async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null
   let outcomeSeconds = 0;
   if (!reached && buffer.count < request.episodes) {
     const outcome = await runEpisodes(spec, {
-      prepared,
+      prepared: prepared ?? undefined,
       early,
       first: first + buffer.count,
       count: request.episodes - buffer.count,
@@ -223,6 +229,8 @@ async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null
     });
     outcomeSeconds = outcome.seconds;
   }
+  // Stopped before any figure can be computed: kept as an interrupted run, not failed.
+  if (buffer.count < 2 && request.signal?.aborted && !reached) throw new StoppedEarly(buffer.count, request.episodes);
   const timing = { steps: buffer.lengthSum, seconds: priorSeconds + outcomeSeconds, workers: request.workers };
   return computeFigures(
     buffer,

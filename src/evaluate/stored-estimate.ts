@@ -1,6 +1,6 @@
 import { parseEvent, type RiskRequest } from '../options/risk-options.js';
 import type { RolloutSpec } from '../engine/spec.js';
-import { InputError } from '../errors.js';
+import { InputError, StoppedEarly } from '../errors.js';
 import { definitionHash } from '../store/definition-hash.js';
 import { definitionFiles, displayPath, firstChangedFile } from '../store/definition-files.js';
 import { machineFacts } from '../store/machine.js';
@@ -130,11 +130,20 @@ export async function resumeStoredEstimate(
   const options: StoredOptions = { ...stored, workers: extra.workers ?? stored.workers, stepTimeout: extra.stepTimeout ?? stored.stepTimeout };
   claimRun(db, run.id);
   const prior = loadEpisodes(db, run);
-  return execute(
-    { db, spec, options, toolVersion: run.toolVersion, shard: run.shard, first: run.firstEpisode, signal: extra.signal, onProgress: extra.onProgress },
-    { prior, seconds: run.seconds },
-    () => run.id,
-  );
+  try {
+    return await execute(
+      { db, spec, options, toolVersion: run.toolVersion, shard: run.shard, first: run.firstEpisode, signal: extra.signal, onProgress: extra.onProgress },
+      { prior, seconds: run.seconds },
+      () => run.id,
+    );
+  } catch (e) {
+    // Stopped while its code was still being loaded: the run is left as it was, interrupted.
+    if (e instanceof StoppedEarly && e.runId === null) {
+      e.runId = run.id;
+      finishRun(db, run.id, 'interrupted', null);
+    }
+    throw e;
+  }
 }
 
 async function execute(
@@ -172,7 +181,10 @@ async function execute(
     finishRun(db, runId, result.interrupted ? 'interrupted' : 'done', result.interrupted ? null : summaryOf(result));
     return { runId, result };
   } catch (e) {
-    if (runId) finishRun(db, runId, 'failed', null, e instanceof Error ? e.message : String(e));
+    if (e instanceof StoppedEarly) {
+      e.runId = runId || null;
+      if (runId) finishRun(db, runId, 'interrupted', null);
+    } else if (runId) finishRun(db, runId, 'failed', null, e instanceof Error ? e.message : String(e));
     throw e;
   } finally {
     stopBeating();

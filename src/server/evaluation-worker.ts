@@ -7,7 +7,7 @@
  * queued run already has the id the request was answered with.
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { InputError } from '../errors.js';
+import { InputError, StoppedEarly } from '../errors.js';
 import { runStoredComparison } from '../evaluate/stored-compare.js';
 import { runStoredEstimate } from '../evaluate/stored-estimate.js';
 import { openStore } from '../store/open.js';
@@ -73,8 +73,12 @@ try {
   const result = await runTask(db, data.task);
   send({ type: 'end', status: result.interrupted ? 'interrupted' : 'done', error: null, input: null });
 } catch (e) {
-  const input = e instanceof InputError ? { where: e.where, detail: e.detail } : null;
-  send({ type: 'end', status: 'failed', error: e instanceof Error ? e.message : String(e), input });
+  // Stopped before two episodes: kept as interrupted (the store says so already), not failed.
+  if (e instanceof StoppedEarly) send({ type: 'end', status: 'interrupted', error: null, input: null });
+  else {
+    const input = e instanceof InputError ? { where: e.where, detail: e.detail } : null;
+    send({ type: 'end', status: 'failed', error: e instanceof Error ? e.message : String(e), input });
+  }
 } finally {
   db.close();
   port.close();

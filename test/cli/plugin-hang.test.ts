@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { spawn } from 'node:child_process';
 import path from 'node:path';
+import { existsSync } from 'node:fs';
 import Database from 'better-sqlite3';
 import { CLI, reckon, tempFiles } from './run-cli.js';
 import { STREAM, seedStream } from '../../src/engine/streams.js';
@@ -116,4 +117,67 @@ describe('a plug-in that hangs', () => {
     expect((db.prepare('SELECT status FROM runs').get() as { status: string }).status).toBe('interrupted');
     db.close();
   }, 120_000);
+});
+
+/**
+ * Plug-ins that are slow before the first episode ends: a factory that never returns (the
+ * thread sleeps on a lock nobody releases, so the test costs no CPU), and a step that takes a
+ * second, so that the first episode needs four.
+ */
+const slowDir = tempFiles({
+  'stalls.json': { kind: 'module', path: './stalls.js' },
+  'crawls.json': { kind: 'module', path: './crawls.js' },
+  'uniform.json': { kind: 'uniform' },
+  'stalls.js': `export default () => { Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0); };`,
+  'crawls.js': `const lock = new Int32Array(new SharedArrayBuffer(4));
+  export default () => ({
+    actions: ['a'], discount: 0.9, horizon: 4, rewardBounds: [0, 1],
+    reset: () => 0,
+    step(state, action, rng, out) { Atomics.wait(lock, 0, 0, 1000); out.state = state + 1; out.reward = rng.uniform(); out.done = false; return out; },
+  });`,
+});
+
+/** Starts an estimate, waits until its store exists (its signal handlers are then in place), sends `signal`. */
+async function signalled(env: string, signal: NodeJS.Signals, store: string): Promise<{ code: number | null | string; stderr: string; ms: number }> {
+  const child = spawn(process.execPath, [CLI, 'estimate', '--env', path.join(slowDir, env), '--policy', path.join(slowDir, 'uniform.json'), '--episodes', '50', '--seed', '3', '--workers', '1', '--step-timeout', '600', '--store', store], {
+    env: { ...process.env, RECKON_NO_PROGRESS: '1' },
+  });
+  let stderr = '';
+  child.stderr.on('data', (d) => (stderr += d));
+  const exited = new Promise<number | null>((r) => child.on('exit', (code) => r(code)));
+  for (let waited = 0; !existsSync(store); waited += 100) {
+    if (waited > 60_000) throw new Error('the run never opened its store');
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  await new Promise((r) => setTimeout(r, 1000));
+  const sent = Date.now();
+  child.kill(signal);
+  const code = await Promise.race([exited, new Promise<string>((r) => setTimeout(() => r('still running'), 8000))]);
+  if (code === 'still running') child.kill('SIGKILL');
+  return { code, stderr, ms: Date.now() - sent };
+}
+
+describe('a run stopped before its first episode ends', () => {
+  it('Ctrl-C while a module factory never returns exits 130 at once and stores nothing', async () => {
+    const store = path.join(tempFiles({}), 'runs.sqlite');
+    const { code, stderr, ms } = await signalled('stalls.json', 'SIGINT', store);
+    expect(code).toBe(130);
+    expect(ms).toBeLessThan(8000);
+    expect(stderr).toContain('interrupted (SIGINT) while the environment and policy were being created');
+    expect(runStored(store)).toBe(false);
+  }, 90_000);
+
+  it('SIGTERM during the first episode marks the run interrupted, exits 143 and says how to resume', async () => {
+    const store = path.join(tempFiles({}), 'runs.sqlite');
+    const { code, stderr } = await signalled('crawls.json', 'SIGTERM', store);
+    expect(code).toBe(143);
+    expect(stderr).not.toContain('no episodes to summarise');
+    const resume = /reckon runs resume ([a-z2-9]{8})/.exec(stderr);
+    expect(resume).not.toBeNull();
+    const runs = JSON.parse(reckon(['runs', 'list', '--store', store, '--json']).stdout);
+    expect(runs).toHaveLength(1);
+    expect(runs[0].id).toBe(resume![1]);
+    expect(runs[0].status).toBe('interrupted');
+    expect(runs[0].episodes).toBe(0);
+  }, 90_000);
 });

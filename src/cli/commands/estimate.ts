@@ -2,7 +2,7 @@ import { readDefinitionFile } from '../../definitions/index.js';
 import type { RolloutSpec } from '../../engine/spec.js';
 import { runEstimate, type EstimateResult } from '../../evaluate/estimate.js';
 import { runStoredEstimate } from '../../evaluate/stored-estimate.js';
-import { InputError } from '../../errors.js';
+import { InputError, StoppedEarly } from '../../errors.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
 import { parseShard, shardInfo, shardRange } from '../shard.js';
@@ -15,7 +15,7 @@ import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
 import { noiseMode } from '../../options/noise-option.js';
 import { ProgressLine } from '../progress.js';
-import { StopSignals } from '../stop-signals.js';
+import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 import { prepareRecorder } from '../../evaluate/record-log.js';
 
@@ -169,6 +169,10 @@ export async function run(args: string[]): Promise<number> {
         targetEvent,
       });
     }
+  } catch (e) {
+    if (!(e instanceof StoppedEarly)) throw e;
+    progress.clear();
+    return reportStoppedEarly(e, stop, (id) => `reckon runs resume ${id}${values.store ? ` --store ${storePath}` : ''}`);
   } finally {
     progress.clear();
     stop.dispose();

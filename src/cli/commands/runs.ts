@@ -1,6 +1,7 @@
 import { offPolicyText } from '../../report/offpolicy-text.js';
 import type { OffPolicyJson } from '../../report/offpolicy-json.js';
-import { InputError } from '../../errors.js';
+import { InputError, StoppedEarly } from '../../errors.js';
+import type { EstimateResult } from '../../evaluate/estimate.js';
 import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-estimate.js';
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
@@ -19,7 +20,7 @@ import { existsSync, rmSync } from 'node:fs';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { ProgressLine } from '../progress.js';
-import { StopSignals } from '../stop-signals.js';
+import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 
 export const HELP = `reckon runs: review, re-analyse, export, resume and merge stored runs
@@ -297,7 +298,14 @@ async function resume(args: string[]): Promise<number> {
   const stop = new StopSignals();
   try {
     const run = getRun(db, id, label);
-    const { result } = await resumeStoredEstimate(db, run, { signal: stop.signal, onProgress: (p) => progress.update(p), workers, stepTimeout });
+    let result: EstimateResult;
+    try {
+      ({ result } = await resumeStoredEstimate(db, run, { signal: stop.signal, onProgress: (p) => progress.update(p), workers, stepTimeout }));
+    } catch (e) {
+      if (!(e instanceof StoppedEarly)) throw e;
+      progress.clear();
+      return reportStoppedEarly(e, stop, (runId) => `reckon runs resume ${runId}${values.store ? ` --store ${label}` : ''}`);
+    }
     progress.clear();
     const labels = { env: run.env.label, policy: run.policy.label };
     if (values.json) process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version(), run.id), null, 2)}\n`);
