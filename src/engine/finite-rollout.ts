@@ -58,7 +58,7 @@ export function rolloutFinite(
   const startIndex = startStates.states;
   const lastStart = startIndex.length - 1;
   const lastAction = actionCount - 1;
-  const { returns, lengths, first, count } = block;
+  const { returns, lengths, finals, first, count } = block;
   const words = new Int32Array(4);
   let steps = 0;
   for (let i = 0; i < count; i++) {
@@ -139,6 +139,7 @@ export function rolloutFinite(
     }
     returns[i] = g;
     lengths[i] = t;
+    finals[i] = s;
     steps += t;
   }
   return steps;
@@ -172,7 +173,7 @@ export function rolloutFiniteActing(
   const { terminal, outcomeStart, outcomeNext, outcomeCumulative, outcomeReward, actionCount, discount, horizon, stateNames } = mdp;
   const startStates = startSupport(mdp);
   const lastStart = startStates.states.length - 1;
-  const { returns, lengths, first, count } = block;
+  const { returns, lengths, finals, first, count } = block;
   const clock = pluginClock();
   let steps = 0;
   for (let i = 0; i < count; i++) {
@@ -205,6 +206,7 @@ export function rolloutFiniteActing(
     }
     returns[i] = g;
     lengths[i] = t;
+    finals[i] = s;
     steps += t;
   }
   return steps;

@@ -4,7 +4,7 @@ import { PluginError } from '../errors.js';
 import { checkedAction } from './checked-action.js';
 import { pluginRngs } from './episode-rng.js';
 import { STREAM, seedStream } from './streams.js';
-import type { EpisodeBlock } from './episode-block.js';
+import { NO_FINAL_STATE, type EpisodeBlock } from './episode-block.js';
 import { pluginClock } from './plugin-clock.js';
 
 /**
@@ -23,7 +23,8 @@ export function rolloutModule(
   const { env, discount, horizon } = built;
   const actionCount = built.actionNames.length;
   const out: StepResult = { state: undefined, reward: 0, done: false };
-  const { returns, lengths, first, count } = block;
+  const { returns, lengths, finals, first, count } = block;
+  finals.fill(NO_FINAL_STATE);
   const clock = pluginClock();
   const lowReward = built.rewardRange ? built.rewardRange[0] : -Infinity;
   const highReward = built.rewardRange ? built.rewardRange[1] : Infinity;

@@ -254,7 +254,7 @@ async function runThreaded(
         const now = performance.now();
         sizer.observe(message.count, (now - lastArrival) / 1000);
         lastArrival = now;
-        accept({ first: message.first, count: message.count, returns: message.returns, lengths: message.lengths }, message.steps);
+        accept({ first: message.first, count: message.count, returns: message.returns, lengths: message.lengths, finals: message.finals }, message.steps);
         issue();
         wake?.();
       } else {

@@ -36,7 +36,7 @@ export function rolloutFiniteVisit(
   const count = visits.count;
   const stamp = visits.stamp;
   const g = new Threefry20();
-  const { returns, lengths, first } = block;
+  const { returns, lengths, finals, first } = block;
   let steps = 0;
   for (let i = 0; i < block.count; i++) {
     const episode = first + i;
@@ -87,6 +87,7 @@ export function rolloutFiniteVisit(
     }
     returns[i] = ret;
     lengths[i] = t;
+    finals[i] = s;
     steps += t;
   }
   return steps;
@@ -109,7 +110,7 @@ export function rolloutFiniteActingVisit(
   const visits = visitCountsFor(mdp, mdp.stateCount);
   const g = new Threefry20();
   const policyRng = new VisitPolicyRng();
-  const { returns, lengths, first } = block;
+  const { returns, lengths, finals, first } = block;
   let steps = 0;
   for (let i = 0; i < block.count; i++) {
     const episode = first + i;
@@ -149,6 +150,7 @@ export function rolloutFiniteActingVisit(
     }
     returns[i] = ret;
     lengths[i] = t;
+    finals[i] = s;
     steps += t;
   }
   return steps;

@@ -23,8 +23,8 @@ export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock) =
       const block = newBlock(message.first, message.count);
       const steps = runBlock(block);
       send(
-        { type: 'block', first: block.first, count: block.count, returns: block.returns, lengths: block.lengths, steps },
-        [block.returns.buffer as ArrayBuffer, block.lengths.buffer as ArrayBuffer],
+        { type: 'block', first: block.first, count: block.count, returns: block.returns, lengths: block.lengths, finals: block.finals, steps },
+        [block.returns.buffer as ArrayBuffer, block.lengths.buffer as ArrayBuffer, block.finals.buffer as ArrayBuffer],
       );
     } catch (e) {
       send(describeError(e));

@@ -12,6 +12,7 @@ import type { EstimateResult } from './estimate.js';
 import { differenceWarnings } from './interval-advice.js';
 import { computeFigures, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
+import { resolveEvent } from './episode-events.js';
 import { chooseSequence, makeRunningInterval, sequenceInterval, targetReached, type SequenceChoice, type SequenceSettings } from './sequence.js';
 
 type Definition = RolloutSpec['env'];
@@ -91,6 +92,8 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
     prepared.push(ready);
     facts.push(environmentFacts(ready.env, ready.policy, ready.startIndex));
   }
+  // A misspelt terminal fails before any episode runs.
+  for (const event of request.risk?.events ?? []) resolveEvent(event, facts[0]);
   const k = specs.length;
   const pairs: [number, number][] = [];
   for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) pairs.push([i, j]);
@@ -145,6 +148,7 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
     }
     const batchReturns = blocks.map((list) => concat(list, 'returns') as Float64Array);
     const batchLengths = blocks.map((list) => concat(list, 'lengths') as Uint32Array);
+    const batchFinals = blocks.map((list) => concat(list, 'finals') as Int32Array);
     let keep = Math.min(...batchReturns.map((r) => r.length)); // shorter only when interrupted
     if (sequences.length > 0) {
       for (let e = 0; e < keep && !reached; e++) {
@@ -164,10 +168,11 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
     for (let p = 0; p < k; p++) {
       const returns = batchReturns[p].subarray(0, keep);
       const lengths = batchLengths[p].subarray(0, keep);
-      buffers[p].append(returns, lengths);
+      const finals = batchFinals[p].subarray(0, keep);
+      buffers[p].append(returns, lengths, finals);
       let steps = 0;
       for (let e = 0; e < keep; e++) steps += lengths[e];
-      request.onEpisodes?.(p, { first: done, count: keep, returns, lengths }, steps, seconds);
+      request.onEpisodes?.(p, { first: done, count: keep, returns, lengths, finals }, steps, seconds);
     }
     done += keep;
     if (sequences.length > 0) {
@@ -299,9 +304,9 @@ export function summarizeComparison(
   };
 }
 
-function concat(blocks: readonly EpisodeBlock[], key: 'returns' | 'lengths'): Float64Array | Uint32Array {
+function concat(blocks: readonly EpisodeBlock[], key: 'returns' | 'lengths' | 'finals'): Float64Array | Uint32Array | Int32Array {
   const total = blocks.reduce((n, b) => n + b.count, 0);
-  const out = key === 'returns' ? new Float64Array(total) : new Uint32Array(total);
+  const out = key === 'returns' ? new Float64Array(total) : key === 'lengths' ? new Uint32Array(total) : new Int32Array(total);
   let offset = 0;
   for (const b of blocks) {
     out.set(b[key], offset);

@@ -1,6 +1,7 @@
 import type { BuiltEnvironment, BuiltPolicy } from '../definitions/built.js';
 import { truncationBound } from '../definitions/horizon.js';
 import { moduleReturnBounds, returnBounds } from '../exact/index.js';
+import { terminalStates, type TerminalState } from '../definitions/terminal-states.js';
 
 /** What a report says about the environment a run used, beside the estimate. */
 export interface EnvironmentFacts {
@@ -16,6 +17,12 @@ export interface EnvironmentFacts {
   readonly returnBounds: [number, number] | null;
   /** γ^H·max|r|/(1−γ): how far the horizon-H value can be from the untruncated one; null when γ = 1 or unknown. */
   readonly truncationBound: number | null;
+  /**
+   * The terminal states of a finite environment, by index, name and cell letter: what
+   * `terminal=X` events are resolved against. Absent for module environments and for runs
+   * stored before it was recorded.
+   */
+  readonly terminals?: readonly TerminalState[];
 }
 
 export function environmentFacts(env: BuiltEnvironment, policy: BuiltPolicy | null, startIndex = -1): EnvironmentFacts {
@@ -33,6 +40,7 @@ export function environmentFacts(env: BuiltEnvironment, policy: BuiltPolicy | nu
       rewardRange: mdp.rewardRange,
       returnBounds: returnBounds(mdp, matrix, startIndex >= 0 ? startIndex : undefined),
       truncationBound: truncationBound(mdp.discount, mdp.horizon, maxAbs),
+      terminals: terminalStates(mdp),
     };
   }
   const range = env.rewardRange;

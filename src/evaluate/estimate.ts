@@ -8,7 +8,8 @@ import type { EarlyWorkers } from '../engine/early-workers.js';
 import { prepareForRun, type ReadyRun } from './prepare-for-run.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import type { NoiseMode } from '../engine/noise.js';
-import type { EpisodeBlock } from '../engine/episode-block.js';
+import { blockPrefix, type EpisodeBlock } from '../engine/episode-block.js';
+import { resolveEvent } from './episode-events.js';
 import type { CiMethod, ProjectionRow } from '../stats/index.js';
 import { computeFigures, checkIntervalPossible, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
 import type { EnvironmentFacts } from './environment-facts.js';
@@ -49,7 +50,7 @@ export interface EstimateRequest {
   /** Index of the run's first episode (a shard starts later); default 0. */
   readonly first?: number;
   /** Episodes already run and stored (a resumed run), from `first` on. */
-  readonly prior?: { returns: Float64Array; lengths: Uint32Array };
+  readonly prior?: { returns: Float64Array; lengths: Uint32Array; finals?: Int32Array | null };
   readonly priorSeconds?: number;
   readonly signal?: AbortSignal;
   /** Told how far a slow figure has got, once the episodes are done. */
@@ -161,20 +162,29 @@ async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null
     if (fixed !== 'betting') checkIntervalPossible(fixed, bounds, request.level);
     method = fixed;
   }
+  // A misspelt terminal, or a terminal event on a module environment, fails before any episode runs.
+  for (const event of request.risk?.events ?? []) resolveEvent(event, facts);
   request.onFacts?.(facts, method);
 
   // A fixed-size run knows its size; a target-error run's cap may be far more than it will use.
   const buffer = new ReturnsBuffer(request.targetError === null ? request.episodes : Math.min(request.episodes, 1 << 16), facts.horizon);
   const moments = new RunningMoments();
-  const sequence = targetEvent ? makeEventSequence(targetEvent, sequenceSettings!) : sequenceSettings ? makeRunningInterval(sequenceSettings) : null;
+  const eventSequence = targetEvent ? makeEventSequence(targetEvent, sequenceSettings!, facts) : null;
+  const sequence = eventSequence ?? (sequenceSettings ? makeRunningInterval(sequenceSettings) : null);
   const single = new Float64Array(1);
   let reached = false;
-  const offer = (returns: Float64Array): number => {
-    // How many of these returns the run keeps: all, unless the target is reached among them.
+  const offer = (returns: Float64Array, lengths: Uint32Array, finals: Int32Array | null): number => {
+    // How many of these episodes the run keeps: all, unless the target is reached among them.
     if (!sequence || !sequenceSettings) return returns.length;
+    if (eventSequence && targetEvent!.subject === 'terminal' && !finals) {
+      throw new InputError('--target-event', `"${targetEvent!.text}": the stored episodes of this run do not record where they ended, so it cannot continue on a terminal event`);
+    }
     for (let i = 0; i < returns.length; i++) {
-      single[0] = returns[i];
-      sequence.add(single);
+      if (eventSequence) eventSequence.addEpisode(returns[i], lengths[i], finals ? finals[i] : Number.NaN);
+      else {
+        single[0] = returns[i];
+        sequence.add(single);
+      }
       if (targetReached(sequence, sequenceSettings)) {
         reached = true;
         return i + 1;
@@ -186,8 +196,9 @@ async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null
 
   const first = request.first ?? 0;
   if (request.prior && request.prior.returns.length > 0) {
-    const keep = offer(request.prior.returns);
-    buffer.append(request.prior.returns.subarray(0, keep), request.prior.lengths.subarray(0, keep));
+    const finals = request.prior.finals ?? null;
+    const keep = offer(request.prior.returns, request.prior.lengths, finals);
+    buffer.append(request.prior.returns.subarray(0, keep), request.prior.lengths.subarray(0, keep), finals?.subarray(0, keep) ?? null);
     moments.addAll(request.prior.returns.subarray(0, keep));
   }
   const priorSeconds = request.priorSeconds ?? 0;
@@ -206,14 +217,11 @@ async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null
       signal,
       onBlock: (block) => {
         if (reached) return;
-        const keep = offer(block.returns);
-        const kept: EpisodeBlock =
-          keep === block.count
-            ? block
-            : { first: block.first, count: keep, returns: block.returns.subarray(0, keep), lengths: block.lengths.subarray(0, keep) };
+        const keep = offer(block.returns, block.lengths, block.finals);
+        const kept = blockPrefix(block, keep);
         let steps = 0;
         for (let i = 0; i < kept.count; i++) steps += kept.lengths[i];
-        buffer.append(kept.returns, kept.lengths);
+        buffer.append(kept.returns, kept.lengths, kept.finals);
         moments.addAll(kept.returns);
         request.onBlock?.(kept, steps, priorSeconds + (performance.now() - started) / 1000);
         request.onProgress?.({

@@ -1,33 +1,48 @@
-import { InputError } from '../errors.js';
-import { eventHappens, type EventSpec } from '../options/risk-options.js';
+import type { EventSpec } from '../options/risk-options.js';
 import type { RunningInterval, SequentialInterval } from '../stats/index.js';
+import { episodeTest, resolveEvent, type EpisodeEvent } from './episode-events.js';
+import type { EnvironmentFacts } from './environment-facts.js';
 import { makeRunningInterval, type SequenceSettings } from './sequence.js';
 
 /**
- * A confidence sequence on the probability of an event: each return becomes its indicator (1 when
- * the event happens), a bounded mean on [0, 1], so the betting sequence applies as it does to
- * returns (Waudby-Smith & Ramdas 2024) and a run may stop when the event's interval is narrow.
+ * A confidence sequence on the probability of an event: each episode becomes its indicator (1
+ * when the event happens: its return, its length or the terminal it ended in), a bounded mean
+ * on [0, 1], so the betting sequence applies as it does to returns (Waudby-Smith & Ramdas 2024)
+ * and a run may stop when the event's interval is narrow.
  */
 export class EventIndicatorSequence implements RunningInterval {
   private readonly single = new Float64Array(1);
+  private readonly happens: (ret: number, length: number, final: number) => boolean;
   count = 0;
 
   constructor(
-    readonly event: EventSpec,
+    readonly event: EpisodeEvent,
     private readonly inner: RunningInterval,
-  ) {}
+  ) {
+    this.happens = episodeTest(event);
+  }
 
   get episodes(): number {
     return this.inner.episodes;
   }
 
+  /** Adds one episode, in episode order. */
+  addEpisode(ret: number, length: number, final: number): void {
+    const happened = this.happens(ret, length, final);
+    if (happened) this.count++;
+    this.single[0] = happened ? 1 : 0;
+    this.inner.add(this.single);
+  }
+
+  /** Adds episodes in order (lengths and final states are needed for length and terminal events). */
+  addEpisodes(returns: Float64Array, lengths: Uint32Array | null, finals: Int32Array | null): void {
+    for (let i = 0; i < returns.length; i++) this.addEpisode(returns[i], lengths ? lengths[i] : Number.NaN, finals ? finals[i] : Number.NaN);
+  }
+
+  /** Returns alone: enough for a return event only. */
   add(values: Float64Array | number[]): void {
-    for (let i = 0; i < values.length; i++) {
-      const happened = eventHappens(this.event, values[i]);
-      if (happened) this.count++;
-      this.single[0] = happened ? 1 : 0;
-      this.inner.add(this.single);
-    }
+    if (this.event.spec.subject !== 'return') throw new Error(`the sequence of ${this.event.spec.text} needs lengths and final states, not returns alone`);
+    for (let i = 0; i < values.length; i++) this.addEpisode(values[i], Number.NaN, Number.NaN);
   }
 
   interval(): SequentialInterval {
@@ -46,9 +61,7 @@ export function eventSequenceSettings(level: number, targetError: number, planne
   return { method: 'betting', level, bounds: [0, 1], sigma: null, targetError, plannedEpisodes };
 }
 
-export function makeEventSequence(event: EventSpec, settings: SequenceSettings): EventIndicatorSequence {
-  if (event.subject !== 'return') {
-    throw new InputError('--target-event', `"${event.text}": a run can stop on return events only (return<X, return>=X, …); episode lengths are not kept in order`);
-  }
-  return new EventIndicatorSequence(event, makeRunningInterval(settings));
+/** The event's sequence, the event resolved against the run's environment (a terminal's name checked). */
+export function makeEventSequence(event: EventSpec, settings: SequenceSettings, facts: Pick<EnvironmentFacts, 'kind' | 'terminals'>): EventIndicatorSequence {
+  return new EventIndicatorSequence(resolveEvent(event, facts, '--target-event'), makeRunningInterval(settings));
 }

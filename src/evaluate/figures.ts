@@ -2,6 +2,7 @@ import { EventIndicatorSequence, eventSequenceSettings, makeEventSequence } from
 import type { EventSpec } from '../options/risk-options.js';
 import type { RiskRequest } from '../options/risk-options.js';
 import { riskFigures } from './risk.js';
+import { InputError } from '../errors.js';
 import { confidenceInterval, projectionTable, summarize, type CiMethod, type ProjectionRow, type RunningInterval } from '../stats/index.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import type { NoiseMode } from '../engine/noise.js';
@@ -27,9 +28,15 @@ export interface FigureSettings {
   readonly risk?: RiskRequest | null;
   /**
    * The run stopped when the probability of this event was known to ±error (`--target-event`);
-   * `live` is the event's sequence a fresh run already fed.
+   * `live` is the event's sequence a fresh run already fed; a re-analysis gives the episodes'
+   * lengths and final states instead, which length and terminal events are replayed from.
    */
-  readonly targetEvent?: { readonly event: EventSpec; readonly error: number; readonly live?: RunningInterval | null } | null;
+  readonly targetEvent?: {
+    readonly event: EventSpec;
+    readonly error: number;
+    readonly live?: RunningInterval | null;
+    readonly episodes?: { readonly lengths: Uint32Array; readonly finals: Int32Array | null };
+  } | null;
   /** False when a sequence is read without a planned size or cap (a comparison's members); default: the requested episodes. */
   readonly plannedEpisodes?: false;
   /** How the episodes' draws were keyed (engine/noise.ts). */
@@ -125,8 +132,14 @@ export function computeFigures(
     const { event, error } = settings.targetEvent;
     const eventSettings = eventSequenceSettings(settings.level, error, requestedEpisodes);
     const live = settings.targetEvent.live;
-    const sequence = live instanceof EventIndicatorSequence && live.episodes === returns.length ? live : makeEventSequence(event, eventSettings);
-    if (sequence !== live) sequence.add(returns);
+    const sequence = live instanceof EventIndicatorSequence && live.episodes === returns.length ? live : makeEventSequence(event, eventSettings, facts);
+    if (sequence !== live) {
+      const episodes = settings.targetEvent.episodes;
+      if (event.subject === 'terminal' && !episodes?.finals) {
+        throw new InputError(`P(${event.text})`, 'where this run\'s episodes ended was not recorded, so the sequence it stopped on cannot be replayed');
+      }
+      sequence.addEpisodes(returns, episodes?.lengths ?? null, episodes?.finals ?? null);
+    }
     const reached = targetReached(sequence, eventSettings);
     const interval = sequenceInterval(sequence, eventSettings, reached, sequence.count / Math.max(1, returns.length));
     targetEvent = { event: event.text, count: sequence.count, estimate: sequence.count / Math.max(1, returns.length), interval: { ...interval } };
@@ -182,7 +195,7 @@ export function computeFigures(
     });
     projection = withAnalysis(projection, perRunAnalysis, summary.n);
   }
-  const risk = settings.risk ? riskFigures(buffer, settings.risk, { level: settings.level, bounds, seed: settings.seed }) : null;
+  const risk = settings.risk ? riskFigures(buffer, settings.risk, { level: settings.level, bounds, seed: settings.seed, facts }) : null;
   const analysisSeconds = analysisSoFar();
   return {
     facts,

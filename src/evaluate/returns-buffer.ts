@@ -1,10 +1,13 @@
+import { NO_FINAL_STATE } from '../engine/episode-block.js';
+
 /** Horizons up to this keep a histogram of episode lengths (for length events of the risk report). */
 const MAX_HISTOGRAM_HORIZON = 1_000_000;
 
 /**
  * Every episode's return, in episode order, 8 bytes each: what re-analysis (bootstrap,
  * another interval method) needs. Lengths are not kept one by one, only summed and counted
- * in a histogram over 0 … horizon.
+ * in a histogram over 0 … horizon; final states only counted, per state index (enough for the
+ * probability of ending in a terminal).
  */
 export class ReturnsBuffer {
   private data: Float64Array;
@@ -17,12 +20,17 @@ export class ReturnsBuffer {
   /** lengthCounts[k]: episodes of exactly k steps; null for very long horizons. */
   readonly lengthCounts: Float64Array | null;
 
+  private finalCounts = new Float64Array(16);
+  /** False once an episode came without a final state (module environments, older stored runs). */
+  private finalsKnown = true;
+
   constructor(capacity: number, private readonly horizon: number) {
     this.data = new Float64Array(Math.max(16, capacity));
     this.lengthCounts = horizon <= MAX_HISTOGRAM_HORIZON ? new Float64Array(horizon + 1) : null;
   }
 
-  append(returns: Float64Array, lengths: Uint32Array): void {
+  /** Appends episodes in order; `finals` (the state each ended in) may be missing, which makes {@link endedIn} unknown. */
+  append(returns: Float64Array, lengths: Uint32Array, finals?: Int32Array | null): void {
     const needed = this.count + returns.length;
     if (needed > this.data.length) {
       const grown = new Float64Array(Math.max(needed, this.data.length * 2));
@@ -38,11 +46,36 @@ export class ReturnsBuffer {
       if (length >= this.horizon) this.atHorizon++;
       if (this.lengthCounts) this.lengthCounts[Math.min(length, this.horizon)]++;
     }
+    if (!finals || finals.length !== returns.length) {
+      if (returns.length > 0) this.finalsKnown = false;
+      return;
+    }
+    let counts = this.finalCounts;
+    for (let i = 0; i < finals.length; i++) {
+      const s = finals[i];
+      if (s === NO_FINAL_STATE) {
+        this.finalsKnown = false;
+        continue;
+      }
+      if (s >= counts.length) {
+        const grown = new Float64Array(Math.max(s + 1, counts.length * 2));
+        grown.set(counts);
+        counts = this.finalCounts = grown;
+      }
+      counts[s]++;
+    }
   }
 
   /** A view of the returns so far (no copy). */
   view(): Float64Array {
     return this.data.subarray(0, this.count);
   }
-}
 
+  /** Episodes that ended in one of these states, or null when final states were not recorded. */
+  endedIn(states: readonly number[]): number | null {
+    if (!this.finalsKnown) return null;
+    let n = 0;
+    for (const s of states) if (s < this.finalCounts.length) n += this.finalCounts[s];
+    return n;
+  }
+}

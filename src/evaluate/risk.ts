@@ -5,6 +5,8 @@ import { clopperPearson, episodesForZeroEventBound, wilson, type ProportionInter
 import { quantileInterval, type QuantileInterval } from '../stats/quantile-interval.js';
 import { tailMean, type TailMean } from '../stats/tail-mean.js';
 import type { ReturnsBuffer } from './returns-buffer.js';
+import type { EnvironmentFacts } from './environment-facts.js';
+import { resolveEvent } from './episode-events.js';
 
 /** Below this many tail episodes (n·α) the bootstrap of the tail mean falls short of its level. */
 export const BOOTSTRAP_TAIL_EPISODES = 50;
@@ -40,7 +42,7 @@ export interface RiskFigures {
 export function riskFigures(
   buffer: ReturnsBuffer,
   request: RiskRequest,
-  options: { level: number; bounds: readonly [number, number] | null; seed: number },
+  options: { level: number; bounds: readonly [number, number] | null; seed: number; facts: Pick<EnvironmentFacts, 'kind' | 'terminals'> },
 ): RiskFigures {
   const returns = buffer.view();
   const n = returns.length;
@@ -49,7 +51,7 @@ export function riskFigures(
   const { level, bounds } = options;
   const quantiles = request.quantiles.map((p) => quantileInterval(sorted, p, level, bounds));
   const tail = tailMean(sorted, request.tail, level, bounds, options.seed);
-  const events = request.events.map((event) => eventFigure(event, buffer, sorted, level));
+  const events = request.events.map((event) => eventFigure(event, buffer, sorted, level, options.facts));
   const warnings: string[] = [];
   if (!bounds) warnings.push('no return bounds: the tail mean has only the approximate bootstrap interval; give --bounds LOW,HIGH for one that holds at any n');
   if (n * request.tail < BOOTSTRAP_TAIL_EPISODES) {
@@ -60,10 +62,14 @@ export function riskFigures(
   return { level, quantiles, tail, events, dkwEpsilon: dkwEpsilon(n, level), warnings };
 }
 
-function eventFigure(event: EventSpec, buffer: ReturnsBuffer, sorted: Float64Array, level: number): EventFigure {
+function eventFigure(event: EventSpec, buffer: ReturnsBuffer, sorted: Float64Array, level: number, facts: Pick<EnvironmentFacts, 'kind' | 'terminals'>): EventFigure {
   const n = sorted.length;
   let count: number;
-  if (event.subject === 'return') {
+  if (event.subject === 'terminal') {
+    const ended = buffer.endedIn(resolveEvent(event, facts).states!);
+    if (ended === null) throw new InputError('--event', `"${event.text}": where this run's episodes ended was not recorded (episodes stored before reckon kept it); run it again to count terminal events`);
+    count = ended;
+  } else if (event.subject === 'return') {
     count = 0;
     for (let i = 0; i < n; i++) if (eventHappens(event, sorted[i])) count++;
   } else {

@@ -150,9 +150,9 @@ export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: Ana
   if (members.length < 2) throw new InputError(`run ${run.id}`, 'is a comparison whose member runs are missing');
   const facts = members.map((m) => m.facts as EnvironmentFacts);
   const buffers = members.map((m, p) => {
-    const { returns, lengths } = loadEpisodes(db, m);
+    const { returns, lengths, finals } = loadEpisodes(db, m);
     const buffer = new ReturnsBuffer(returns.length, facts[p].horizon);
-    buffer.append(returns, lengths);
+    buffer.append(returns, lengths, finals);
     return buffer;
   });
   const count = Math.min(...buffers.map((b) => b.count));

@@ -148,7 +148,7 @@ export async function resumeStoredEstimate(
 
 async function execute(
   request: StoredEstimateRequest,
-  resume: { prior: { returns: Float64Array; lengths: Uint32Array }; seconds: number } | null,
+  resume: { prior: { returns: Float64Array; lengths: Uint32Array; finals: Int32Array | null }; seconds: number } | null,
   open: (facts: EnvironmentFacts, method: IntervalChoice) => string,
 ): Promise<{ runId: string; result: EstimateResult }> {
   const { db, spec, options } = request;
@@ -227,7 +227,7 @@ export function analyzeStoredRun(db: Db, run: RunRecord, overrides: AnalysisOver
     throw new InputError(`run ${run.id}`, `has ${episodes.returns.length} stored episode(s), too few for an interval; resume it with 'reckon runs resume ${run.id}'`);
   }
   const buffer = new ReturnsBuffer(episodes.returns.length, facts.horizon);
-  buffer.append(episodes.returns, episodes.lengths);
+  buffer.append(episodes.returns, episodes.lengths, episodes.finals);
   return computeFigures(
     buffer,
     facts,
@@ -242,7 +242,7 @@ export function analyzeStoredRun(db: Db, run: RunRecord, overrides: AnalysisOver
       onAnalysis: overrides.onAnalysis,
       noise: run.noise,
       risk: overrides.risk ?? null,
-      ...(stored.targetEvent && !fixedOverride ? { targetError: null, plannedEpisodes: false as const, targetEvent: { event: parseEvent(stored.targetEvent), error: stored.targetError! } } : {}),
+      ...(stored.targetEvent && !fixedOverride ? { targetError: null, plannedEpisodes: false as const, targetEvent: { event: parseEvent(stored.targetEvent), error: stored.targetError!, episodes } } : {}),
     },
     { steps: run.steps, seconds: run.seconds, workers: stored.workers },
     run.episodesRequested,

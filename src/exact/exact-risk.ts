@@ -1,5 +1,7 @@
 import type { FiniteMdp, PolicyMatrix } from '../definitions/finite-mdp.js';
 import { eventHappens, type RiskRequest } from '../options/risk-options.js';
+import { InputError } from '../errors.js';
+import { describeTerminals, terminalStates, terminalsNamed } from '../definitions/terminal-states.js';
 import { exactEndings, exactQuantile, exactReturnDistribution, exactTailMean, type EpisodeEndings, type ReturnDistribution } from './return-distribution.js';
 
 /** Exact risk figures of a policy on a finite MDP: the oracle the sampled ones are checked against. */
@@ -18,7 +20,17 @@ export function exactRisk(mdp: FiniteMdp, policy: PolicyMatrix, start: number | 
   const endings = exactEndings(mdp, policy, start);
   const enumerated = exactReturnDistribution(mdp, policy, start);
   const distribution = enumerated.ok ? enumerated.distribution : null;
+  const terminals = terminalStates(mdp);
   const events = request.events.map((event) => {
+    if (event.subject === 'terminal') {
+      const states = terminalsNamed(event.terminal!, terminals);
+      if (states.length === 0) {
+        throw new InputError('--event', `"${event.text}": no terminal cell letter or terminal state is named "${event.terminal}"; ${terminals.length === 0 ? 'this environment has no terminal states' : `its terminals are ${describeTerminals(terminals)}`}`);
+      }
+      let probability = 0;
+      for (const s of states) probability += endings.terminalProbability[s];
+      return { event: event.text, probability };
+    }
     if (event.subject === 'length') {
       // P(length = k) = P(≥ k) − P(≥ k + 1); lengths run 0 … H.
       let probability = 0;

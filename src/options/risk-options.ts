@@ -5,9 +5,12 @@ import { InputError } from '../errors.js';
 export interface EventSpec {
   /** As the user wrote it, e.g. "return<0". */
   readonly text: string;
-  readonly subject: 'return' | 'length';
+  readonly subject: 'return' | 'length' | 'terminal';
   readonly relation: '<' | '<=' | '>' | '>=' | '=';
+  /** The threshold of a return or length event (NaN for a terminal event). */
   readonly value: number;
+  /** For a terminal event: the cell letter or state name the episode must end in. */
+  readonly terminal?: string;
 }
 
 /** What `--risk` computes: the quantile levels, the tail fraction, the events. */
@@ -44,13 +47,18 @@ export function parseTail(text: string): number {
   return tail;
 }
 
-/** `--event 'return<0'` or `--event 'length>=200'`. */
-export function parseEvent(text: string): EventSpec {
-  if (/^\s*terminal\s*=/i.test(text)) {
-    throw new InputError('--event', `"${text}": reckon does not record where each episode ended, so terminal events cannot be counted yet; use return<X (a terminal's reward often tells it) or length>=H`);
+const TERMINAL_EVENT = /^\s*terminal\s*=(.*)$/i;
+
+/** `--event 'return<0'`, `--event 'length>=200'` or `--event 'terminal=X'` (a cell letter or state name). */
+export function parseEvent(text: string, where = '--event'): EventSpec {
+  const terminal = TERMINAL_EVENT.exec(text);
+  if (terminal) {
+    const name = terminal[1].trim();
+    if (name === '') throw new InputError(where, `"${text}" names no terminal; write terminal=X with a gridworld cell letter or a state name (e.g. --event 'terminal=P')`);
+    return { text: `terminal=${name}`, subject: 'terminal', relation: '=', value: Number.NaN, terminal: name };
   }
   const match = EVENT.exec(text);
-  if (!match) throw new InputError('--event', `"${text}" is not an event; write return<X, return<=X, return>X, return>=X, length>=K or length=K (e.g. --event 'return<0')`);
+  if (!match) throw new InputError(where, `"${text}" is not an event; write return<X, return<=X, return>X, return>=X, length>=K, length=K or terminal=X (e.g. --event 'return<0')`);
   return { text: text.replace(/\s+/g, ''), subject: match[1].toLowerCase() as 'return' | 'length', relation: match[2] as EventSpec['relation'], value: Number(match[3]) };
 }
 
@@ -76,6 +84,6 @@ export function riskRequestFrom(values: { risk?: boolean; quantiles?: string; ta
   return {
     quantiles: values.quantiles === undefined ? [...DEFAULT_QUANTILES] : parseQuantiles(values.quantiles),
     tail: values.tail === undefined ? DEFAULT_TAIL : parseTail(values.tail),
-    events: (values.event ?? []).map(parseEvent),
+    events: (values.event ?? []).map((text) => parseEvent(text)),
   };
 }

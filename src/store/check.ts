@@ -42,7 +42,7 @@ export function checkStore(db: Db): StoreCheck {
   } catch (e) {
     note(`the runs table cannot be read (${(e as Error).message})`);
   }
-  const chunksOf = db.prepare('SELECT first, count, length(returns) AS returns_bytes, length(lengths) AS lengths_bytes FROM episode_chunks WHERE run_id = ? ORDER BY first');
+  const chunksOf = db.prepare('SELECT first, count, length(returns) AS returns_bytes, length(lengths) AS lengths_bytes, length(finals) AS finals_bytes FROM episode_chunks WHERE run_id = ? ORDER BY first');
   const membersOf = db.prepare('SELECT COUNT(*) AS n FROM runs WHERE parent_id = ?');
   let episodes = 0;
   for (const run of runs) {
@@ -52,13 +52,16 @@ export function checkStore(db: Db): StoreCheck {
         if (n < 2) note(`run ${run.id}: a comparison with ${n} member run(s); it needs one a policy`);
         continue;
       }
-      const chunks = chunksOf.all(run.id) as { first: number; count: number; returns_bytes: number; lengths_bytes: number }[];
+      const chunks = chunksOf.all(run.id) as { first: number; count: number; returns_bytes: number; lengths_bytes: number; finals_bytes: number | null }[];
       let expected = run.first_episode;
       let counted = 0;
       for (const chunk of chunks) {
         if (chunk.first !== expected) note(`run ${run.id}: its episodes jump from ${expected} to ${chunk.first}`);
         if (chunk.returns_bytes !== chunk.count * 8 || chunk.lengths_bytes !== chunk.count * 4) {
           note(`run ${run.id}: the chunk of episodes ${chunk.first}… holds ${chunk.returns_bytes} bytes of returns and ${chunk.lengths_bytes} of lengths for ${chunk.count} episodes`);
+        }
+        if (chunk.finals_bytes !== null && chunk.finals_bytes !== chunk.count * 4) {
+          note(`run ${run.id}: the chunk of episodes ${chunk.first}… holds ${chunk.finals_bytes} bytes of final states for ${chunk.count} episodes`);
         }
         expected = chunk.first + chunk.count;
         counted += chunk.count;

@@ -69,7 +69,7 @@ export function mergeShards(sources: readonly MergeSource[], into: Db, describe:
     for (const { run, source } of parts) {
       const episodes = loadEpisodes(source.db, run);
       seconds += run.seconds;
-      appendChunk(into, runId, { first: run.firstEpisode, returns: episodes.returns, lengths: episodes.lengths }, run.steps, seconds);
+      appendChunk(into, runId, { first: run.firstEpisode, returns: episodes.returns, lengths: episodes.lengths, finals: episodes.finals }, run.steps, seconds);
     }
   } catch (e) {
     finishRun(into, runId, 'failed', null, (e as Error).message);

@@ -82,6 +82,12 @@ export const MIGRATIONS: readonly string[] = [
   ) WITHOUT ROWID;
   CREATE INDEX offpolicy_logs_by_hash ON offpolicy_logs (sha256);
   `,
+  // 6: the state each episode of a finite environment ended in (int32 state indices, one per
+  // episode), so terminal events can be counted again from the store. NULL for chunks of module
+  // environments and for chunks stored before it was recorded.
+  `
+  ALTER TABLE episode_chunks ADD COLUMN finals BLOB;
+  `,
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS.length;

@@ -5,6 +5,7 @@ import type { Db } from './open.js';
 import { ownerAlive } from './owner.js';
 import type { DefinitionFileHash } from './definition-files.js';
 import { LEGACY_NOISE, NOISE_MODES, type NoiseMode } from '../engine/noise.js';
+import { NO_FINAL_STATE } from '../engine/episode-block.js';
 
 export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
 export type RunKind = 'estimate' | 'comparison' | 'offpolicy';
@@ -180,7 +181,7 @@ export function createRun(db: Db, run: NewRun): string {
 }
 
 /** Little-endian bytes of a typed array, copied out of its (possibly larger) buffer. */
-function bytesOf(array: Float64Array | Uint32Array): Buffer {
+function bytesOf(array: Float64Array | Uint32Array | Int32Array): Buffer {
   return Buffer.from(array.buffer, array.byteOffset, array.byteLength);
 }
 
@@ -191,14 +192,16 @@ function bytesOf(array: Float64Array | Uint32Array): Buffer {
 export function appendChunk(
   db: Db,
   runId: string,
-  chunk: { first: number; returns: Float64Array; lengths: Uint32Array },
+  chunk: { first: number; returns: Float64Array; lengths: Uint32Array; finals?: Int32Array | null },
   steps: number,
   seconds: number,
 ): void {
-  const insert = db.prepare('INSERT INTO episode_chunks (run_id, first, count, returns, lengths) VALUES (?, ?, ?, ?, ?)');
+  const insert = db.prepare('INSERT INTO episode_chunks (run_id, first, count, returns, lengths, finals) VALUES (?, ?, ?, ?, ?, ?)');
+  // A module environment's episodes have no final state index: nothing is stored for them.
+  const finals = chunk.finals && chunk.finals.length === chunk.returns.length && chunk.finals.length > 0 && chunk.finals[0] !== NO_FINAL_STATE ? bytesOf(chunk.finals) : null;
   const update = db.prepare('UPDATE runs SET episodes_done = episodes_done + ?, steps = steps + ?, seconds = ?, heartbeat_at = ? WHERE id = ?');
   db.transaction(() => {
-    insert.run(runId, chunk.first, chunk.returns.length, bytesOf(chunk.returns), bytesOf(chunk.lengths));
+    insert.run(runId, chunk.first, chunk.returns.length, bytesOf(chunk.returns), bytesOf(chunk.lengths), finals);
     update.run(chunk.returns.length, steps, seconds, new Date().toISOString(), runId);
   })();
 }
@@ -342,14 +345,26 @@ export function deleteRun(db: Db, id: string): boolean {
   return db.prepare('DELETE FROM runs WHERE id = ?').run(id).changes > 0;
 }
 
+/** A run's stored episodes in episode order. */
+export interface StoredEpisodes {
+  readonly returns: Float64Array;
+  readonly lengths: Uint32Array;
+  /**
+   * The state index each episode ended in; null when any chunk lacks them (a module
+   * environment, or episodes stored before final states were recorded).
+   */
+  readonly finals: Int32Array | null;
+}
+
 /** Every stored episode of a run in episode order (checked to be one contiguous range). */
-export function loadEpisodes(db: Db, run: RunRecord): { returns: Float64Array; lengths: Uint32Array } {
+export function loadEpisodes(db: Db, run: RunRecord): StoredEpisodes {
   const rows = db
-    .prepare('SELECT first, count, returns, lengths FROM episode_chunks WHERE run_id = ? ORDER BY first')
-    .all(run.id) as { first: number; count: number; returns: Buffer; lengths: Buffer }[];
+    .prepare('SELECT first, count, returns, lengths, finals FROM episode_chunks WHERE run_id = ? ORDER BY first')
+    .all(run.id) as { first: number; count: number; returns: Buffer; lengths: Buffer; finals: Buffer | null }[];
   const total = rows.reduce((n, r) => n + r.count, 0);
   const returns = new Float64Array(total);
   const lengths = new Uint32Array(total);
+  let finals: Int32Array | null = rows.every((r) => r.finals !== null && r.finals.length === r.count * 4) ? new Int32Array(total) : null;
   let expected = run.firstEpisode;
   let offset = 0;
   for (const row of rows) {
@@ -357,10 +372,12 @@ export function loadEpisodes(db: Db, run: RunRecord): { returns: Float64Array; l
     // Copy out: SQLite's buffers need not be aligned for a typed-array view.
     new Uint8Array(returns.buffer, offset * 8, row.count * 8).set(row.returns);
     new Uint8Array(lengths.buffer, offset * 4, row.count * 4).set(row.lengths);
+    if (finals) new Uint8Array(finals.buffer, offset * 4, row.count * 4).set(row.finals!);
     offset += row.count;
     expected += row.count;
   }
-  return { returns, lengths };
+  if (total === 0) finals = null;
+  return { returns, lengths, finals };
 }
 
 /** Finished shard runs of a store (or one given run, for re-reading after a merge). */

@@ -34,7 +34,10 @@ describe('risk on the command line', () => {
   it('bad risk options exit 2 with a line that says what to write', () => {
     for (const [args, message] of [
       [['--event', 'return<<0'], /not an event; write return<X/],
-      [['--event', 'terminal=X'], /terminal events cannot be counted yet/],
+      [['--event', 'terminal=Q'], /--event: "terminal=Q": no terminal cell letter or terminal state is named "Q"; its terminals are 'G' \(0,4\), 'X' \(2,4\)/],
+      [['--event', 'terminal='], /--event: "terminal=" names no terminal/],
+      [['--event', 'terminal=.'], /no terminal cell letter or terminal state is named "\."/],
+      [['--target-event', 'terminal=Q', '--target-error', '0.1'], /--target-event: "terminal=Q": no terminal/],
       [['--tail', '1.5'], /--tail: must be a fraction strictly between 0 and 1/],
       [['--quantiles', '0.5,x'], /--quantiles: each level must be a number/],
       [['--target-event', 'return<0'], /--target-event: needs --target-error/],

@@ -6,6 +6,7 @@ import { exactRisk } from '../../src/exact/exact-risk.js';
 import { returnBounds } from '../../src/exact/index.js';
 import { ReturnsBuffer } from '../../src/evaluate/returns-buffer.js';
 import { riskFigures } from '../../src/evaluate/risk.js';
+import { environmentFacts } from '../../src/evaluate/environment-facts.js';
 import { parseEvent, type RiskRequest } from '../../src/options/risk-options.js';
 import { readFileSync } from 'node:fs';
 import { ENVS } from '../cli/run-cli.js';
@@ -26,7 +27,7 @@ const LOADED_MACHINE_MS = 300_000;
 const envFile = (name: string) => JSON.parse(readFileSync(`${ENVS}/${name}`, 'utf8'));
 const envsSource = { label: 'envs', baseDir: ENVS };
 
-const laneRequest: RiskRequest = { quantiles: [0.5], tail: 0.1, events: [parseEvent('return<0'), parseEvent('length>=12')] };
+const laneRequest: RiskRequest = { quantiles: [0.5], tail: 0.1, events: [parseEvent('return<0'), parseEvent('length>=12'), parseEvent('terminal=X'), parseEvent('terminal=G')] };
 
 async function coverage(spec: (seed: number) => RolloutSpec, n: number, request: RiskRequest) {
   const prepared = await prepareRollout(spec(0));
@@ -35,14 +36,15 @@ async function coverage(spec: (seed: number) => RolloutSpec, n: number, request:
   const exact = exactRisk(prepared.env.mdp, prepared.policy.matrix, start, request);
   if (!exact.distribution) throw new Error(`no exact distribution: ${exact.reason}`);
   const bounds = returnBounds(prepared.env.mdp, prepared.policy.matrix, start);
-  const covered = { median: 0, tailDkw: 0, tailBootstrap: 0, clopperPearson: [0, 0], wilson: [0, 0] };
+  const facts = environmentFacts(prepared.env, prepared.policy, prepared.startIndex);
+  const covered = { median: 0, tailDkw: 0, tailBootstrap: 0, clopperPearson: request.events.map(() => 0), wilson: request.events.map(() => 0) };
   for (let seed = 1; seed <= SEEDS; seed++) {
     const run = await prepareRollout(spec(7000 + seed));
     const block = newBlock(0, n);
     run.runBlock(block);
     const buffer = new ReturnsBuffer(n, prepared.env.mdp.horizon);
-    buffer.append(block.returns, block.lengths);
-    const risk = riskFigures(buffer, request, { level: 0.95, bounds, seed });
+    buffer.append(block.returns, block.lengths, block.finals);
+    const risk = riskFigures(buffer, request, { level: 0.95, bounds, seed, facts });
     const inside = (x: number, ci: { low: number; high: number }) => ci.low <= x + 1e-12 && x - 1e-12 <= ci.high;
     if (inside(exact.quantiles![0].value, risk.quantiles[0])) covered.median++;
     if (inside(exact.tailMean!.value, risk.tail.dkw!)) covered.tailDkw++;
@@ -58,14 +60,18 @@ async function coverage(spec: (seed: number) => RolloutSpec, n: number, request:
 describe('risk intervals cover the exact values over 200 seeds', () => {
   const laneSpec = (seed: number): RolloutSpec => ({ env: { json: envFile('loading-lane.json'), source: envsSource }, policy: { json: envFile('lane-explorer.json'), source: envsSource }, seed, start: null });
   for (const n of [200, 2000]) {
-    it(`on a lane with two terminal cells, n = ${n}: median, tail mean (DKW), and both events (Clopper–Pearson, Wilson)`, async () => {
+    it(`on a lane with two terminal cells, n = ${n}: median, tail mean (DKW), and the return, length and terminal events (Clopper–Pearson, Wilson)`, async () => {
       const { covered, exact } = await coverage(laneSpec, n, laneRequest);
       // the oracle itself is a real mixture: both terminals and long episodes happen
-      expect(exact.events[0].probability!).toBeGreaterThan(0.05);
-      expect(exact.events[1].probability!).toBeGreaterThan(0.05);
+      for (const k of [0, 1]) expect(exact.events[k].probability!).toBeGreaterThan(0.05);
+      // the drop-off edge is rare (0.013): a terminal event at n·p ≈ 2.6 and 26
+      expect(exact.events[2].probability!).toBeGreaterThan(0.01);
+      expect(exact.events[3].probability!).toBeLessThan(0.99);
+      // the two terminals' absorption probabilities and truncation account for every episode
+      expect(exact.events[2].probability! + exact.events[3].probability! + exact.endings.truncated).toBeCloseTo(1, 12);
       expect(covered.median).toBeGreaterThanOrEqual(MIN_COVERED);
       expect(covered.tailDkw).toBeGreaterThanOrEqual(MIN_COVERED);
-      for (const k of [0, 1]) {
+      for (const k of [0, 1, 2, 3]) {
         expect(covered.clopperPearson[k]).toBeGreaterThanOrEqual(MIN_COVERED);
         expect(covered.wilson[k]).toBeGreaterThanOrEqual(MIN_COVERED);
       }

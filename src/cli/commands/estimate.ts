@@ -53,9 +53,12 @@ Options:
   --quantiles P,P,...   quantile levels for --risk (default 0.05,0.5,0.95)
   --tail A              the worst fraction whose mean --risk reports (default 0.05)
   --event E             an event to count, repeatable: return<X, return<=X, return>X,
-                        return>=X, length>=K, length=K (implies --risk)
-  --target-event E      with --target-error: run until the probability of a return event
-                        (e.g. 'return<0') is known to ±E, on an anytime-valid betting interval
+                        return>=X, length>=K, length=K, or terminal=X (finite environments:
+                        the episode ended in a cell with letter X or the state named X)
+                        (implies --risk)
+  --target-event E      with --target-error: run until the probability of an event
+                        (e.g. 'return<0', 'terminal=X', 'length>=40') is known to ±E, on an
+                        anytime-valid betting interval
   --json                print one JSON object on stdout instead of the report
   --step-timeout SECONDS
                         how long one call into a code environment or policy may take
@@ -75,6 +78,7 @@ Examples:
   reckon estimate --env envs/warehouse.json --policy envs/picker-careful.json --ci bernstein --json
   reckon estimate --env envs/restock-env.json --policy envs/restock-base-stock.json --target-error 2
   reckon estimate --env envs/restock-env.json --policy envs/restock-base-stock.json --risk --event 'return<300'
+  reckon estimate --env envs/loading-lane.json --policy envs/lane-explorer.json --risk --event 'terminal=X'
 `;
 
 const OPTIONS = {
