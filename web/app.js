@@ -199,10 +199,63 @@ function centred(run) {
   return Math.abs(centre - run.mean) <= 1e-9 * Math.max(1, Math.abs(run.mean)) + 1e-3 * run.ci.half_width;
 }
 
-/** The run's risk figures (GET /api/runs/:id?risk=true): quantiles and the worst-5% mean with their intervals. */
-async function riskTable(id) {
-  const run = await api(`/api/runs/${encodeURIComponent(id)}?risk=true`).catch(() => null);
-  const risk = run?.risk;
+/** The events the risk table shows at first: ending in each terminal (by letter or name), and running the whole horizon. */
+function defaultEvents(run) {
+  const terminals = (run.terminals ?? []).slice(0, 12).map((t) => `terminal=${t.name}`);
+  return [...terminals, `length>=${run.horizon}`];
+}
+
+/** A probability as the command line prints it: 3 significant digits, small ones in e-notation. */
+function probability(p) {
+  if (p === 0 || p === 1) return String(p);
+  return p < 1e-3 ? p.toExponential(2) : p.toPrecision(3);
+}
+
+/**
+ * The run's risk figures (GET /api/runs/:id?risk=true&event=…): quantiles and the worst-5% mean
+ * with their intervals, and the probability of each event with Clopper–Pearson and Wilson
+ * intervals. A field below adds an event of the user's own (return<0, length>=20, terminal=X).
+ */
+async function riskTable(id, run) {
+  const events = defaultEvents(run);
+  const box = el('div', { id: 'risk-box' });
+  const message = el('span', { class: 'field-error', id: 'error-event', role: 'alert' });
+  const input = el('input', { type: 'text', id: 'risk-event', name: 'event', placeholder: 'return<0', 'aria-label': 'event', size: 18 });
+  const form = el('form', { class: 'risk-event' }, el('label', { for: 'risk-event' }, 'Probability of '), input, ' ', el('button', { type: 'submit' }, 'Add event'), ' ', message);
+  const draw = async (list) => {
+    const query = ['risk=true', ...list.map((e) => `event=${encodeURIComponent(e)}`)].join('&');
+    const shown = await api(`/api/runs/${encodeURIComponent(id)}?${query}`);
+    const table = riskFigureTable(shown.risk);
+    if (table) box.replaceChildren(table, form);
+  };
+  form.addEventListener('submit', async (event) => {
+    event.preventDefault();
+    const text = input.value.trim();
+    if (!text) return;
+    try {
+      await draw([...events, text]);
+      events.push(text);
+      input.value = '';
+      message.textContent = '';
+    } catch (error) {
+      message.textContent = error.message;
+    }
+  });
+  try {
+    await draw(events);
+  } catch {
+    // Terminal or length events this run cannot count (stored before they were recorded): the tail alone.
+    try {
+      events.length = 0;
+      await draw(events);
+    } catch {
+      return null;
+    }
+  }
+  return box.children.length ? box : null;
+}
+
+function riskFigureTable(risk) {
   if (!risk) return null;
   const level = `${+(risk.level * 100).toFixed(2)}%`;
   const bound = (x) => (x === null ? '–' : num(x));
@@ -215,8 +268,17 @@ async function riskTable(id) {
     el('th', { scope: 'row' }, `mean of the worst ${+(t.tail * 100).toFixed(2)}%`),
     el('td', { class: 'number' }, num(t.estimate)),
     el('td', {}, [t.dkw ? `${num(t.dkw.low)} to ${num(t.dkw.high)} (DKW, distribution-free)` : 'no return bounds: no distribution-free interval', t.bootstrap ? `; ${num(t.bootstrap.low)} to ${num(t.bootstrap.high)} (bootstrap, approximate)` : ''].join(''))));
+  for (const e of risk.events) {
+    const cp = e.clopper_pearson;
+    const w = e.wilson;
+    const zero = e.zero_events ? `; never happened: p ≤ ${probability(e.zero_events.upper)} (one-sided)` : '';
+    rows.push(el('tr', { class: 'event' },
+      el('th', { scope: 'row' }, `P(${e.event})`),
+      el('td', { class: 'number' }, `${probability(e.estimate)} (${count(e.count)} of ${count(e.episodes)})`),
+      el('td', {}, `${probability(cp.low)} to ${probability(cp.high)} (Clopper–Pearson); ${probability(w.low)} to ${probability(w.high)} (Wilson)${zero}`)));
+  }
   return el('table', { class: 'projection', id: 'risk' },
-    el('caption', {}, `Risk: the return's tail, ${level} intervals`),
+    el('caption', {}, `Risk: the return's tail and event probabilities, ${level} intervals`),
     el('thead', {}, el('tr', {}, el('th', { scope: 'col' }, 'figure'), el('th', { scope: 'col' }, 'value'), el('th', { scope: 'col' }, 'interval'))),
     el('tbody', {}, rows));
 }
@@ -267,7 +329,7 @@ async function renderRun(id) {
       el('h3', {}, run.policy), el('pre', {}, JSON.stringify(definitions.policy, null, 2))) : null,
   );
   if (run.episodes >= 2 && !live) {
-    const risk = await riskTable(id);
+    const risk = await riskTable(id, run);
     if (risk) plots.before(risk);
     await Promise.all([...plots.children].map((figure) => plotInto(figure, id, figure.dataset.kind)));
   }

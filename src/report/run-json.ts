@@ -1,3 +1,4 @@
+import type { EnvironmentFacts } from '../evaluate/environment-facts.js';
 import type { EstimateResult } from '../evaluate/estimate.js';
 import { estimateJson } from '../report/estimate-json.js';
 import type { RunRecord } from '../store/runs.js';
@@ -80,7 +81,20 @@ export function runShowJson(run: RunRecord, result: EstimateResult) {
   return {
     ...estimateJson(result, { env: run.env.label, policy: run.policy.label }, run.toolVersion, run.id),
     ...provenance(run),
+    terminals: terminalsJson(result.facts),
   };
+}
+
+/**
+ * The names `terminal=X` events of a run can use (the review page offers them): each cell
+ * letter once with its number of cells, or each tabular state; null for module environments
+ * and runs stored before terminals were recorded.
+ */
+function terminalsJson(facts: EnvironmentFacts): { name: string; states: number }[] | null {
+  if (!facts.terminals) return null;
+  const byName = new Map<string, number>();
+  for (const t of facts.terminals) byName.set(t.cell ?? t.state, (byName.get(t.cell ?? t.state) ?? 0) + 1);
+  return [...byName.entries()].map(([name, states]) => ({ name, states }));
 }
 
 /** What can be said of a run with fewer than two episodes stored (queued, or just started). */

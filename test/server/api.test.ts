@@ -60,6 +60,21 @@ describe('review server API (fastify inject)', () => {
     expect(again.ci.method).toBe(JSON.parse(reckon(['runs', 'show', storedId, '--json', '--ci', 'bootstrap', '--store', storePath]).stdout).ci.method);
   });
 
+  it('counts terminal and length events given as repeated event options, as runs show --risk does, and names the terminals', async () => {
+    const url = `/api/runs/${storedId}?risk=true&event=${encodeURIComponent('terminal=+')}&event=${encodeURIComponent('terminal=-')}&event=${encodeURIComponent('length>=2000')}`;
+    const response = await app.inject({ url });
+    expect(response.statusCode).toBe(200);
+    const body = response.json();
+    const cli = JSON.parse(reckon(['runs', 'show', storedId, '--json', '--risk', '--event', 'terminal=+', '--event', 'terminal=-', '--event', 'length>=2000', '--store', storePath]).stdout);
+    expect(body.risk).toEqual(cli.risk);
+    expect(body.terminals).toEqual([{ name: '+', states: 1 }, { name: '-', states: 1 }]);
+    const [plus, minus, truncated] = body.risk.events;
+    expect(plus.count + minus.count + truncated.count).toBe(body.episodes); // every episode ends in one of them
+    const bad = await app.inject({ url: `/api/runs/${storedId}?risk=true&event=${encodeURIComponent('terminal=Q')}` });
+    expect(bad.statusCode).toBe(400);
+    expect(bad.json().error).toMatch(/no terminal cell letter or terminal state is named "Q"/);
+  });
+
   it('gives the risk figures as runs show --risk does, and the CDF plot; a bad risk option is a 400', async () => {
     const withRisk = (await app.inject({ url: `/api/runs/${storedId}?risk=true&event=return<0` })).json();
     const cli = JSON.parse(reckon(['runs', 'show', storedId, '--json', '--risk', '--event', 'return<0', '--store', storePath]).stdout);

@@ -79,6 +79,15 @@ describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
     expect(await page.$$eval('#plot-histogram g.mark-rect path', (bars) => bars.length)).toBeGreaterThan(1);
     expect(await page.textContent('#projection')).toMatch(/episodes needed/);
     expect(await page.textContent('#risk')).toMatch(/mean of the worst 5%.*DKW/s);
+    // Events: ending in the packing station and running the whole horizon, then one typed in.
+    expect(await page.textContent('#risk')).toMatch(/P\(terminal=P\).*Clopper–Pearson.*Wilson/s);
+    expect(await page.textContent('#risk')).toMatch(/P\(length>=\d+\)/);
+    await page.fill('#risk-event', 'return<12');
+    await page.click('#risk-box button[type="submit"]');
+    await page.waitForFunction(() => document.querySelector('#risk')?.textContent?.includes('P(return<12)'));
+    await page.fill('#risk-event', 'terminal=Q');
+    await page.click('#risk-box button[type="submit"]');
+    await page.waitForFunction(() => (document.querySelector('#error-event')?.textContent ?? '').includes('no terminal'));
     expect(await page.textContent('h1')).toMatch(/picker-careful\.json on warehouse\.json\s*done/);
 
     // The runs list shows it, filterable by environment.

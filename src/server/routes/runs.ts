@@ -4,7 +4,7 @@ import { riskRequestFrom } from '../../options/risk-options.js';
 import { InputError } from '../../errors.js';
 import { getRun, listMembers, listRuns, type RunRecord } from '../../store/runs.js';
 import type { ServerContext } from '../context.js';
-import { queryOptions } from '../query.js';
+import { queryList, queryOptions } from '../query.js';
 import { runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
 import type { JobState } from '../run-queue.js';
 
@@ -45,14 +45,15 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
   });
 
   app.get<{ Params: { id: string } }>('/api/runs/:id', async (request) => {
-    const q = queryOptions(request.query, ['ci', 'confidence', 'ignore_stop', 'risk', 'quantiles', 'tail', 'event']);
+    const q = queryOptions(request.query, ['ci', 'confidence', 'ignore_stop', 'risk', 'quantiles', 'tail', 'event'], ['event']);
     const method = q.ci === undefined ? undefined : parseOption('ci', 'interval', q.ci);
     if (q.ignore_stop !== undefined && q.ignore_stop !== 'true' && q.ignore_stop !== 'false') {
       throw new InputError('ignore_stop', `must be true or false (got "${q.ignore_stop}")`);
     }
     const ignoreStop = q.ignore_stop === 'true';
     if (q.risk !== undefined && q.risk !== 'true' && q.risk !== 'false') throw new InputError('risk', `must be true or false (got "${q.risk}")`);
-    const risk = riskRequestFrom({ risk: q.risk === 'true', quantiles: q.quantiles, tail: q.tail, event: q.event === undefined ? undefined : [q.event] });
+    const events = queryList(request.query, 'event');
+    const risk = riskRequestFrom({ risk: q.risk === 'true', quantiles: q.quantiles, tail: q.tail, event: events.length ? events : undefined });
     const level = q.confidence === undefined ? undefined : parseOption('confidence', 'confidence', q.confidence);
     const run = findStoredRun(ctx, request.params.id);
     const live = liveState(ctx, run);
