@@ -51,6 +51,8 @@ export interface OffPolicyOptions {
   readonly returnBounds: readonly [number, number] | null;
   /** The largest possible W from the two policies' probabilities, or null when the behaviour's distribution is not logged. */
   readonly maxWeight: number | null;
+  /** Why the largest weight is unknown, when the caller knows (said in the two-sided interval's note). */
+  readonly maxWeightMissing?: string | null;
 }
 
 /**
@@ -198,7 +200,7 @@ function lowerBounds(episodes: WeightedEpisodes, options: OffPolicyOptions): Bou
   out.push(
     twoSided
       ? { method: 'betting', low: gMin + range * twoSided[0], high: gMin + range * twoSided[1] }
-      : { method: 'betting', low: Number.NaN, high: null, note: 'needs the largest possible weight: give --behaviour FILE with a gridworld or tabular --env' },
+      : { method: 'betting', low: Number.NaN, high: null, note: `needs the largest possible weight: ${options.maxWeightMissing ?? 'give --behaviour FILE with a gridworld or tabular --env, or a log with behaviour_probs and that --env'}` },
   );
   return out;
 }

@@ -10,7 +10,7 @@
  */
 import type { FiniteMdp, PolicyMatrix } from '../definitions/finite-mdp.js';
 
-export function largestWeight(mdp: FiniteMdp, target: PolicyMatrix, behaviour: PolicyMatrix, starts: readonly number[]): number {
+export function largestWeight(mdp: FiniteMdp, target: Pick<PolicyMatrix, 'probability'>, behaviour: Pick<PolicyMatrix, 'probability'>, starts: readonly number[]): number {
   const { stateCount, actionCount, terminal, outcomeStart, outcomeNext } = mdp;
   let previous = new Float64Array(stateCount).fill(1);
   let current = new Float64Array(stateCount);

@@ -12,6 +12,7 @@ import type { FiniteMdp } from '../definitions/finite-mdp.js';
 import { returnBounds } from '../exact/return-bounds.js';
 import { evaluateLog, type EstimatorName, type OffPolicyResult } from './evaluate-log.js';
 import { largestWeight } from './largest-weight.js';
+import { loggedLargestWeight } from './logged-largest-weight.js';
 import { targetOnLog, type TargetOnLog } from './target-on-log.js';
 
 export interface OffPolicyRequest {
@@ -34,8 +35,10 @@ export interface OffPolicyRun {
   readonly horizon: number | null;
   readonly rewardBounds: readonly [number, number] | null;
   readonly returnBounds: readonly [number, number] | null;
-  /** The largest weight any episode can have, from the two policies (null without --behaviour). */
+  /** The largest weight any episode can have, from the two policies (null when the behaviour is not known everywhere). */
   readonly maxWeight: number | null;
+  /** Where the behaviour's probabilities behind maxWeight came from: its file (--behaviour) or the log's behaviour_probs. */
+  readonly maxWeightSource: 'behaviour' | 'logged' | null;
   readonly result: OffPolicyResult;
   readonly seconds: number;
 }
@@ -60,7 +63,19 @@ export async function runOffPolicy(request: OffPolicyRequest): Promise<OffPolicy
     throw new InputError(request.envPath!, 'is a code (module) environment: give a log with a header instead of --env (the target is matched to the log\'s states by name)');
   }
   const target = await targetOnLog(log, request.policyPath, env && env.built.kind === 'finite' ? env.built : null, request.envPath);
-  const maxWeight = request.behaviourPath ? await behaviourLargestWeight(log, target, env, request.behaviourPath, request.envPath) : null;
+  let maxWeight = request.behaviourPath ? await behaviourLargestWeight(log, target, env, request.behaviourPath, request.envPath) : null;
+  let maxWeightSource: OffPolicyRun['maxWeightSource'] = maxWeight === null ? null : 'behaviour';
+  let maxWeightMissing: string | null = null;
+  if (maxWeight === null && env && env.built.kind === 'finite' && target.environmentMatrix) {
+    // Without the behaviour's file, its logged distributions may still cover every state it can reach.
+    const logged = loggedLargestWeight(log, env.built.mdp, target.environmentMatrix, loggedStarts(log, env.built.mdp));
+    if (logged.ok) {
+      maxWeight = logged.weight;
+      maxWeightSource = 'logged';
+    } else {
+      maxWeightMissing = `the behaviour can reach state ${JSON.stringify(logged.missing)}, whose behaviour_probs no line gives; give --behaviour FILE`;
+    }
+  }
   const returnBounds = (env && env.built.kind === 'finite' ? exactReturnBounds(log, env.built.mdp) : null) ?? (rewardBounds ? returnBoundsOf(rewardBounds, discount, horizon) : null);
   const result = evaluateLog(log, target, {
     estimators: request.estimators,
@@ -72,8 +87,9 @@ export async function runOffPolicy(request: OffPolicyRequest): Promise<OffPolicy
     horizon,
     returnBounds,
     maxWeight,
+    maxWeightMissing,
   });
-  return { log, env, discount, horizon, rewardBounds, returnBounds, maxWeight, result, seconds: (performance.now() - started) / 1000 };
+  return { log, env, discount, horizon, rewardBounds, returnBounds, maxWeight, maxWeightSource, result, seconds: (performance.now() - started) / 1000 };
 }
 
 /** Agreement required between a logged behaviour_prob and the behaviour policy's probability. */
@@ -103,9 +119,14 @@ async function behaviourLargestWeight(log: EpisodeLog, target: TargetOnLog, env:
       );
     }
   }
+  return largestWeight(mdp, target.environmentMatrix, matrix, loggedStarts(log, mdp));
+}
+
+/** The environment states the log's episodes start in. */
+function loggedStarts(log: EpisodeLog, mdp: FiniteMdp): number[] {
   const starts = new Set<number>();
-  for (let i = 0; i < log.episodeIds.length; i++) starts.add(stateOf[log.state[log.episodeStart[i]]]);
-  return largestWeight(mdp, target.environmentMatrix, matrix, [...starts]);
+  for (let i = 0; i < log.episodeIds.length; i++) starts.add(mdp.stateIndex.get(log.stateNames[log.state[log.episodeStart[i]]])!);
+  return [...starts];
 }
 
 /** Fewest start states for which the exact bounds are worth their dynamic programme each. */

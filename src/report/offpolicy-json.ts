@@ -15,7 +15,7 @@ const finite = (x: number | null | undefined) => (x === null || x === undefined 
 /** What `offpolicy --json` prints and the store keeps as the run's summary. */
 export type OffPolicyJson = ReturnType<typeof offPolicyJson>;
 
-export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'horizon' | 'rewardBounds' | 'returnBounds' | 'maxWeight' | 'result' | 'seconds'>, labels: OffPolicyLabels, runId: string | null = null) {
+export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'horizon' | 'rewardBounds' | 'returnBounds' | 'maxWeight' | 'result' | 'seconds'> & { maxWeightSource?: OffPolicyRun['maxWeightSource'] }, labels: OffPolicyLabels, runId: string | null = null) {
   const { result, log } = run;
   const d = result.diagnostics;
   return {
@@ -29,6 +29,7 @@ export function offPolicyJson(run: Pick<OffPolicyRun, 'log' | 'discount' | 'hori
     reward_bounds: run.rewardBounds,
     return_bounds: run.returnBounds,
     max_weight: run.maxWeight,
+    max_weight_source: run.maxWeightSource ?? (run.maxWeight === null ? null : 'behaviour'),
     level: result.level,
     seed: labels.seed,
     resamples: result.resamples,

@@ -4,6 +4,7 @@
  * 0.2/0.7, 0.8/0.3, 0.1/0.5, 0.9/0.5 (closed form; scripts/methods/off_policy.py prints the same
  * W for the third episode of the 3-episode log).
  */
+import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { loadEnvironmentFile, loadPolicyFile } from '../../src/definitions/load.js';
@@ -44,5 +45,38 @@ describe('the largest possible weight', () => {
       /three-episodes\.jsonl: line 2: behaviour_prob 0\.3 differs from .*other\.json's 0\.5/,
     );
     await expect(runOffPolicy({ ...request, envPath: null })).rejects.toThrow(InputError);
+  });
+
+  it('is known from the logged behaviour_probs alone when they cover every state the behaviour can reach, and gives the same interval', async () => {
+    // The 3-episode file with the behaviour's distribution on each line: (0.7, 0.3) in state 0, (0.5, 0.5) in state 1.
+    const lines = readFileSync(path.join(OP, 'three-episodes.jsonl'), 'utf8').trim().split('\n');
+    const withProbs = (keep: (state: number) => boolean) =>
+      [lines[0], ...lines.slice(1).map((l) => {
+        const step = JSON.parse(l);
+        return JSON.stringify(keep(step.state) ? { ...step, behaviour_probs: step.state === 0 ? [0.7, 0.3] : [0.5, 0.5] } : step);
+      })].join('\n');
+    const dir = tempFiles({ 'all.jsonl': withProbs(() => true), 'state-0-only.jsonl': withProbs((s) => s === 0) });
+    const request = {
+      logPath: path.join(dir, 'all.jsonl'),
+      policyPath: path.join(OP, 'two-state-target.json'),
+      envPath: path.join(OP, 'two-state-env.json'),
+      estimators: ['is' as const],
+      level: 0.95,
+      seed: 1,
+      resamples: 200,
+      folds: 2,
+    };
+    const logged = await runOffPolicy(request);
+    expect(logged.maxWeightSource).toBe('logged');
+    expect(logged.maxWeight).toBeCloseTo((8 / 3) ** 3, 12);
+    const known = await runOffPolicy({ ...request, behaviourPath: path.join(OP, 'two-state-behaviour.json') });
+    expect(known.maxWeightSource).toBe('behaviour');
+    expect(logged.result.bounds.find((b) => b.method === 'betting')).toStrictEqual(known.result.bounds.find((b) => b.method === 'betting'));
+    // State 1 is reachable (0 → 1 with probability 0.2 under either action) but its distribution is never logged.
+    const partial = await runOffPolicy({ ...request, logPath: path.join(dir, 'state-0-only.jsonl') });
+    expect(partial.maxWeight).toBeNull();
+    expect(partial.result.bounds.find((b) => b.method === 'betting')!.note).toMatch(/the behaviour can reach state "1", whose behaviour_probs no line gives; give --behaviour FILE/);
+    // Without the environment nothing bounds the weights.
+    expect((await runOffPolicy({ ...request, envPath: null })).maxWeight).toBeNull();
   });
 });

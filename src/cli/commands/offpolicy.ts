@@ -33,7 +33,9 @@ Options:
                       every logged state and action exists there
   --behaviour FILE    the behaviour policy, when known (needs a gridworld or tabular --env):
                       every logged probability is checked against it, and the largest
-                      possible weight gives a two-sided betting interval
+                      possible weight gives a two-sided betting interval; without it, a
+                      log's behaviour_probs give that weight too when they cover every state
+                      the behaviour can reach on --env
   --estimator LIST    ${ESTIMATORS.join(', ')} or all (default all), comma-separated
   --confidence L      confidence level (default 0.95)
   --resamples B       bootstrap resamples (default ${DEFAULT_RESAMPLES})
