@@ -51,7 +51,8 @@ function uniformPolicy(env: BuiltEnvironment): BuiltPolicy {
     return { kind: 'matrix', matrix: matrixFromRows(stateCount, actionCount, () => uniformRow(actionCount)) };
   }
   const n = env.actionNames.length;
-  return { kind: 'code', matrix: null, acting: { act: (_state, rng) => rng.integer(n) } };
+  const row = uniformRow(n);
+  return { kind: 'code', matrix: null, acting: { act: (_state, rng) => rng.integer(n) }, probabilitiesAt: () => row };
 }
 
 /** With probability ε (one uniform draw u < ε) a uniform action, else the base policy's. */
@@ -67,7 +68,14 @@ function epsilonPolicy(def: EpsilonPolicyDefinition, env: BuiltEnvironment, base
     act: (state, rng) => (rng.uniform() < epsilon ? rng.integer(n) : inner.act(state, rng)),
   };
   const matrix = env.kind === 'finite' && base.matrix ? epsilonMix(base.matrix, env.mdp.stateCount, epsilon) : null;
-  return { kind: 'code', acting, matrix };
+  const baseProbabilities = base.probabilitiesAt;
+  const probabilitiesAt = baseProbabilities
+    ? (state: unknown) => {
+        const row = Float64Array.from(baseProbabilities(state), (p) => (1 - epsilon) * p + epsilon / n);
+        return row;
+      }
+    : undefined;
+  return { kind: 'code', acting, matrix, ...(probabilitiesAt ? { probabilitiesAt } : {}) };
 }
 
 interface ChainLink {

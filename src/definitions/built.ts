@@ -45,6 +45,12 @@ export interface CodePolicy {
   readonly acting: ActingPolicy;
   /** The policy as a matrix when it can be tabulated on a finite env (module policy with `probabilities`). */
   readonly matrix: PolicyMatrix | null;
+  /**
+   * On a module environment, the action distribution at one of its states (by action index),
+   * when the policy can give it: what a recorded log's behaviour probabilities are. Absent for
+   * a module policy without `probabilities`.
+   */
+  readonly probabilitiesAt?: (state: unknown) => Float64Array;
 }
 
 /** Chooses an action index for a state; `stateName` is the env's name for it (for table lookups). */

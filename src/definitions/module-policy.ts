@@ -51,7 +51,10 @@ export async function buildModulePolicy(
   const where = `${source.label}: ${label}`;
   if (env.kind === 'module') {
     const acting: ActingPolicy = { act: (state, rng) => actionIndexOf(policy.act(state, rng), actions, where) };
-    return { kind: 'code', acting, matrix: null };
+    if (!policy.probabilities) return { kind: 'code', acting, matrix: null };
+    const describe = (state: unknown) => (env.env.stateName ? env.env.stateName(state) : String(state));
+    const probabilitiesAt = (state: unknown) => probabilityRow(policy, state, actions, (detail) => new InputError(source.label, `${label}: probabilities("${describe(state)}") ${detail}`));
+    return { kind: 'code', acting, matrix: null, probabilitiesAt };
   }
   const mdp = env.mdp;
   const nameOf = (state: unknown): string => (typeof state === 'number' ? mdp.stateNames[state] : String(state));
@@ -64,29 +67,33 @@ function tabulate(policy: Policy, mdp: FiniteMdp, fileLabel: string, label: stri
   return matrixFromRows(mdp.stateCount, mdp.actionCount, (s) => {
     if (mdp.terminal[s]) return uniformRow(mdp.actionCount);
     const name = mdp.stateNames[s];
-    const fail = (detail: string) => new InputError(fileLabel, `${label}: probabilities("${name}") ${detail}`);
-    let given: unknown;
-    try {
-      given = policy.probabilities!(name);
-    } catch (e) {
-      throw fail(`threw: ${(e as Error)?.message ?? e}`);
-    }
-    const row = new Float64Array(mdp.actionCount);
-    if (Array.isArray(given)) {
-      if (given.length !== mdp.actionCount) throw fail(`returned ${given.length} numbers for ${mdp.actionCount} actions`);
-      given.forEach((p, a) => (row[a] = p as number));
-    } else if (given !== null && typeof given === 'object') {
-      for (const [action, p] of Object.entries(given)) {
-        const a = mdp.actionNames.indexOf(action);
-        if (a < 0) throw fail(`names "${action}", which is not an action`);
-        row[a] = p as number;
-      }
-    } else {
-      throw fail(`returned ${describeValue(given)}; expected {action: probability} or an array by action index`);
-    }
-    if (!row.every((p) => Number.isFinite(p) && p >= 0)) throw fail('returned a negative or non-numeric probability');
-    const sum = row.reduce((a, b) => a + b, 0);
-    if (Math.abs(sum - 1) > SUM_TOLERANCE) throw fail(`sums to ${formatNumber(sum)}, not 1`);
-    return row;
+    return probabilityRow(policy, name, mdp.actionNames, (detail) => new InputError(fileLabel, `${label}: probabilities("${name}") ${detail}`));
   });
+}
+
+/** `probabilities(state)` as a checked row over the actions: non-negative, summing to 1. */
+function probabilityRow(policy: Policy, state: unknown, actions: readonly string[], fail: (detail: string) => Error): Float64Array {
+  let given: unknown;
+  try {
+    given = policy.probabilities!(state);
+  } catch (e) {
+    throw fail(`threw: ${(e as Error)?.message ?? e}`);
+  }
+  const row = new Float64Array(actions.length);
+  if (Array.isArray(given)) {
+    if (given.length !== actions.length) throw fail(`returned ${given.length} numbers for ${actions.length} actions`);
+    given.forEach((p, a) => (row[a] = p as number));
+  } else if (given !== null && typeof given === 'object') {
+    for (const [action, p] of Object.entries(given)) {
+      const a = actions.indexOf(action);
+      if (a < 0) throw fail(`names "${action}", which is not an action`);
+      row[a] = p as number;
+    }
+  } else {
+    throw fail(`returned ${describeValue(given)}; expected {action: probability} or an array by action index`);
+  }
+  if (!row.every((p) => Number.isFinite(p) && p >= 0)) throw fail('returned a negative or non-numeric probability');
+  const sum = row.reduce((a, b) => a + b, 0);
+  if (Math.abs(sum - 1) > SUM_TOLERANCE) throw fail(`sums to ${formatNumber(sum)}, not 1`);
+  return row;
 }

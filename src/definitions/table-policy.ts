@@ -68,9 +68,15 @@ export function buildTablePolicyCode(
   };
   const samplers = new Map([...rows].map(([name, row]) => [name, toSampler(row)] as const));
   const fallbackSampler = fallback ? toSampler(fallback) : null;
+  const nameOf = (state: unknown) => (env.stateName ? env.stateName(state) : String(state));
   return {
     kind: 'code',
     matrix: null,
+    probabilitiesAt(state) {
+      const row = rows.get(nameOf(state)) ?? fallback;
+      if (!row) throw new InputError(source.label, `no action for state "${nameOf(state)}" and no "default"`);
+      return row;
+    },
     acting: {
       act(state, rng) {
         const name = env.stateName ? env.stateName(state) : String(state);

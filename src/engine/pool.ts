@@ -124,7 +124,7 @@ async function runInline(prepared: PreparedRollout, options: RunOptions): Promis
   return { episodes: next - options.first, steps, seconds: (performance.now() - started) / 1000 };
 }
 
-function workerUrl(file: string): string {
+export function workerUrl(file: string): string {
   const here = fileURLToPath(import.meta.url);
   // Under the test runner this file is TypeScript source; workers always run the compiled build.
   if (here.endsWith('.ts')) return path.resolve(path.dirname(here), '../../dist/engine', file);

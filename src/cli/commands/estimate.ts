@@ -70,7 +70,8 @@ Options:
                         ~/.local/share/reckon/runs.sqlite)
   --no-store            do not keep this run
   --record FILE         also write the run's episodes as a log (JSON Lines, with the policy's
-                        probabilities) for 'reckon offpolicy'; finite environments only
+                        probabilities) for 'reckon offpolicy'; the policy must give its
+                        probabilities (any built-in kind, or a module with probabilities)
   -h, --help            this help
 
 Examples:
@@ -133,10 +134,10 @@ export async function run(args: string[]): Promise<number> {
   if (values.record !== undefined && values.noise === 'visit') {
     throw new InputError('--record', 'replays step-keyed draws only: leave out --noise visit to record the run');
   }
-  const recorder = values.record === undefined ? null : await prepareRecorder(values.record, envPath, policyPath, start);
   const envFile = readDefinitionFile(envPath);
   const policyFile = readDefinitionFile(policyPath);
   const spec: RolloutSpec = { env: envFile, policy: policyFile, seed, start, noise: noiseMode(values.noise, 'estimate', envFile.json) };
+  const recorder = values.record === undefined ? null : await prepareRecorder(values.record, spec, { env: envPath, policy: policyPath }, stepTimeout);
   const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());
   const db = storePath === null ? null : openStore(storePath);
 
@@ -174,6 +175,7 @@ export async function run(args: string[]): Promise<number> {
       });
     }
   } catch (e) {
+    await recorder?.close();
     if (!(e instanceof StoppedEarly)) throw e;
     progress.clear();
     return reportStoppedEarly(e, stop, (id) => `reckon runs resume ${id}${values.store ? ` --store ${storePath}` : ''}`);
@@ -183,7 +185,13 @@ export async function run(args: string[]): Promise<number> {
     db?.close();
   }
   const labels = { env: envPath, policy: policyPath };
-  if (recorder && !result.interrupted) recorder.write(seed, range.first, result.episodes);
+  if (recorder) {
+    try {
+      if (!result.interrupted) await recorder.write(range.first, result.episodes);
+    } finally {
+      await recorder.close();
+    }
+  }
   if (values.json) {
     process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version(), runId), null, 2)}\n`);
   } else {
