@@ -18,14 +18,14 @@ export interface LoadedPolicy {
   readonly built: BuiltPolicy;
 }
 
-export async function loadEnvironmentFile(path: string): Promise<LoadedEnvironment> {
-  const { json, source } = readDefinitionFile(path);
+export async function loadEnvironmentFile(path: string, label: string = path): Promise<LoadedEnvironment> {
+  const { json, source } = readDefinitionFile(path, label);
   const definition = parseEnvironment(json, source);
   return { definition, source, built: await buildEnvironment(definition, source) };
 }
 
-export async function loadPolicyFile(path: string, env: BuiltEnvironment): Promise<LoadedPolicy> {
-  const { json, source } = readDefinitionFile(path);
+export async function loadPolicyFile(path: string, env: BuiltEnvironment, label: string = path): Promise<LoadedPolicy> {
+  const { json, source } = readDefinitionFile(path, label);
   const definition = parsePolicy(json, source);
   return { definition, source, built: await buildPolicy(definition, env, source) };
 }

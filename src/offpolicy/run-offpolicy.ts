@@ -21,6 +21,8 @@ export interface OffPolicyRequest {
   readonly envPath: string | null;
   /** The behaviour policy's file, when known: checks the logged probabilities and bounds the weights. */
   readonly behaviourPath?: string | null;
+  /** How messages name the files (default: their paths), e.g. the fields of an HTTP request. */
+  readonly labels?: { readonly log?: string; readonly policy?: string; readonly env?: string; readonly behaviour?: string };
   readonly estimators: readonly EstimatorName[];
   readonly level: number;
   readonly seed: number;
@@ -45,25 +47,26 @@ export interface OffPolicyRun {
 
 export async function runOffPolicy(request: OffPolicyRequest): Promise<OffPolicyRun> {
   const started = performance.now();
-  const env = request.envPath ? await loadEnvironmentFile(request.envPath) : null;
-  const log = await readEpisodeLog(request.logPath);
+  const envLabel = request.envPath ? (request.labels?.env ?? request.envPath) : null;
+  const env = request.envPath ? await loadEnvironmentFile(request.envPath, envLabel!) : null;
+  const log = await readEpisodeLog(request.logPath, request.labels?.log ?? request.logPath);
   const facts = environmentFacts(env?.built ?? null);
   const header = log.header;
-  const discount = settle('discount', header?.discount, facts.discount, log, request.envPath);
+  const discount = settle('discount', header?.discount, facts.discount, log, envLabel);
   if (discount === undefined) {
     throw new InputError(log.label, 'does not say its discount: add a first line {"kind": "header", "discount": 0.95, ...} or give --env');
   }
-  const horizon = settle('horizon', header?.horizon, facts.horizon, log, request.envPath) ?? null;
+  const horizon = settle('horizon', header?.horizon, facts.horizon, log, envLabel) ?? null;
   let rewardBounds: readonly [number, number] | null = header?.reward_bounds ?? null;
   if (!rewardBounds && facts.rewardBounds) {
-    checkRewardBounds(log, facts.rewardBounds, `${request.envPath}'s`);
+    checkRewardBounds(log, facts.rewardBounds, `${envLabel}'s`);
     rewardBounds = facts.rewardBounds;
   }
   if (env && env.built.kind !== 'finite') {
-    throw new InputError(request.envPath!, 'is a code (module) environment: give a log with a header instead of --env (the target is matched to the log\'s states by name)');
+    throw new InputError(envLabel!, 'is a code (module) environment: give a log with a header instead of --env (the target is matched to the log\'s states by name)');
   }
-  const target = await targetOnLog(log, request.policyPath, env && env.built.kind === 'finite' ? env.built : null, request.envPath);
-  let maxWeight = request.behaviourPath ? await behaviourLargestWeight(log, target, env, request.behaviourPath, request.envPath) : null;
+  const target = await targetOnLog(log, request.policyPath, env && env.built.kind === 'finite' ? env.built : null, envLabel, request.labels?.policy ?? request.policyPath);
+  let maxWeight = request.behaviourPath ? await behaviourLargestWeight(log, target, env, request.behaviourPath, envLabel, request.labels?.behaviour ?? request.behaviourPath) : null;
   let maxWeightSource: OffPolicyRun['maxWeightSource'] = maxWeight === null ? null : 'behaviour';
   let maxWeightMissing: string | null = null;
   if (maxWeight === null && env && env.built.kind === 'finite' && target.environmentMatrix) {
@@ -100,12 +103,12 @@ const BEHAVIOUR_TOLERANCE = 1e-6;
  * names the first line that differs), and the largest possible weight follows from the two
  * policies on the environment (largest-weight.ts).
  */
-async function behaviourLargestWeight(log: EpisodeLog, target: TargetOnLog, env: LoadedEnvironment | null, behaviourPath: string, envLabel: string | null): Promise<number> {
+async function behaviourLargestWeight(log: EpisodeLog, target: TargetOnLog, env: LoadedEnvironment | null, path: string, envLabel: string | null, behaviourPath: string): Promise<number> {
   if (!env || env.built.kind !== 'finite' || !target.environmentMatrix) {
     throw new InputError('--behaviour', 'needs --env with a gridworld or tabular environment, on which both policies are known everywhere');
   }
   const mdp = env.built.mdp;
-  const behaviour = await loadPolicyFile(behaviourPath, env.built);
+  const behaviour = await loadPolicyFile(path, env.built, behaviourPath);
   const matrix = behaviour.built.matrix;
   if (!matrix) throw new InputError(behaviourPath, 'is a code policy without probabilities(state); the behaviour\'s probabilities are needed');
   const stateOf = log.stateNames.map((name) => mdp.stateIndex.get(name)!);

@@ -26,8 +26,9 @@ export interface TargetOnLog {
 }
 
 /** The policy file's target probabilities at every logged state; refusals name the log line. */
-export async function targetOnLog(log: EpisodeLog, policyPath: string, env: FiniteEnvironment | null, envLabel: string | null): Promise<TargetOnLog> {
-  const { json, source } = readDefinitionFile(policyPath);
+export async function targetOnLog(log: EpisodeLog, path: string, env: FiniteEnvironment | null, envLabel: string | null, policyLabel: string = path): Promise<TargetOnLog> {
+  const { json, source } = readDefinitionFile(path, policyLabel);
+  const policyPath = policyLabel;
   const definition = parsePolicy(json, source);
   checkKnownStates(log, definition, source, policyPath);
   const mdp = env ? env.mdp : standInMdp(log, namedStates(definition, source));

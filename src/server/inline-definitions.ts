@@ -5,7 +5,7 @@ import { InputError } from '../errors.js';
  * run code from a request, and a `"path"` would let a request name files on the server's disk
  * (an epsilon policy's `base.path`). Both are refused with the place they occur.
  */
-export function refuseCodeAndPaths(json: unknown, field: 'env' | 'policy', trail: string[] = []): void {
+export function refuseCodeAndPaths(json: unknown, field: 'env' | 'policy' | 'behaviour', trail: string[] = []): void {
   if (Array.isArray(json)) {
     json.forEach((item, i) => refuseCodeAndPaths(item, field, [...trail, `[${i}]`]));
     return;

@@ -2,15 +2,10 @@ import { parseCommandArgs, required } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 import { parseOffPolicyOption } from '../../options/offpolicy-options.js';
 import { ESTIMATORS } from '../../offpolicy/evaluate-log.js';
-import { runOffPolicy } from '../../offpolicy/run-offpolicy.js';
-import { offPolicyJson } from '../../report/offpolicy-json.js';
+import { runStoredOffPolicy } from '../../offpolicy/stored-offpolicy.js';
 import { offPolicyText } from '../../report/offpolicy-text.js';
 import { DEFAULT_RESAMPLES } from '../../stats/bootstrap-resample.js';
-import { readDefinitionFile } from '../../definitions/read-file.js';
-import { definitionHash } from '../../store/definition-hash.js';
 import { defaultStorePath } from '../../store/location.js';
-import { machineFacts } from '../../store/machine.js';
-import { storeOffPolicyRun } from '../../store/offpolicy-runs.js';
 import { openStore } from '../../store/open.js';
 import { version } from '../version.js';
 
@@ -88,43 +83,19 @@ export async function run(args: string[]): Promise<number> {
     resamples: values.resamples === undefined ? DEFAULT_RESAMPLES : parseOffPolicyOption('resamples', values.resamples),
     folds: values.folds === undefined ? 5 : parseOffPolicyOption('folds', values.folds),
   };
-  const outcome = await runOffPolicy(request);
-  const labels = { log: logPath, policy: policyPath, env: request.envPath, seed };
-  const json = offPolicyJson(outcome, labels);
   const storePath = values['no-store'] ? null : (values.store ?? defaultStorePath());
-  let runId: string | null = null;
-  if (storePath !== null) {
-    const db = openStore(storePath);
-    try {
-      runId = storeOffPolicyRun(db, {
-        env: outcome.env ? storedDefinition(request.envPath!, outcome.env.definition, outcome.env.source.baseDir) : null,
-        policy: storedPolicy(policyPath),
-        log: { label: logPath, sha256: outcome.log.sha256, bytes: outcome.log.bytes, episodes: outcome.result.episodes, steps: outcome.result.steps },
-        seed,
-        options: { behaviour: request.behaviourPath, estimators: request.estimators, level: request.level, resamples: request.resamples, folds: request.folds },
-        toolVersion: version(),
-        machine: machineFacts(),
-        seconds: outcome.seconds,
-        weights: outcome.result.diagnostics.weights,
-        summary: json,
-      });
-    } finally {
-      db.close();
-    }
+  const db = storePath === null ? null : openStore(storePath);
+  let stored;
+  try {
+    stored = await runStoredOffPolicy(db, request, { toolVersion: version() });
+  } finally {
+    db?.close();
   }
+  const { json, runId } = stored;
   if (values.json) process.stdout.write(`${JSON.stringify({ ...json, run_id: runId }, null, 2)}\n`);
   else {
     process.stdout.write(offPolicyText(json));
     if (runId) process.stdout.write(`\n  Stored as run ${runId} in ${storePath}.\n`);
   }
   return 0;
-}
-
-function storedDefinition(label: string, json: unknown, baseDir: string) {
-  return { label, json, baseDir, hash: definitionHash(json, baseDir) };
-}
-
-function storedPolicy(path: string) {
-  const file = readDefinitionFile(path);
-  return storedDefinition(path, file.json, file.source.baseDir);
 }
