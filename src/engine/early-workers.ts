@@ -8,6 +8,8 @@ import type { CodeWorkerData } from './worker.js';
 export interface StartedWorker {
   readonly worker: Worker;
   readonly clock: SharedArrayBuffer;
+  /** When the thread was started (performance.timeOrigin + performance.now(), ms). */
+  readonly createdAt: number;
   /** Hands the thread to the pool: the handlers get the messages it sent so far, then the rest. */
   adopt(onMessage: (message: FromWorker) => void, onError: (error: Error) => void): void;
 }
@@ -25,6 +27,7 @@ export class EarlyWorkers {
   constructor(url: string, spec: RolloutSpec, count: number) {
     for (let i = 0; i < count; i++) {
       const clock = newClockBuffer();
+      const createdAt = performance.timeOrigin + performance.now();
       const worker = new Worker(url, { workerData: { spec, clock } satisfies CodeWorkerData });
       worker.unref();
       const said: FromWorker[] = [];
@@ -36,6 +39,7 @@ export class EarlyWorkers {
       this.waiting.push({
         worker,
         clock,
+        createdAt,
         adopt(onMessage, onError) {
           worker.off('message', keep);
           worker.off('error', remember);

@@ -14,6 +14,8 @@ import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-w
 import type { CodeWorkerData } from './worker.js';
 import { EarlyWorkers } from './early-workers.js';
 import { runsPluginCode } from './runs-plugin-code.js';
+import { ThreadTimingRecorder, type ThreadTiming } from './thread-timing.js';
+import { threadTimes } from './thread-times.js';
 
 export interface RunOptions {
   /** First episode index (a resumed or sharded run starts later). */
@@ -46,6 +48,8 @@ export interface RunOutcome {
   readonly steps: number;
   /** Seconds from the first episode to the last (excluding preparing the spec). */
   readonly seconds: number;
+  /** Where each thread's time went (start-up, busy, idle, its own CPU): for benchmarks and diagnosis. */
+  readonly threads: readonly ThreadTiming[];
 }
 
 export function defaultWorkers(): number {
@@ -106,6 +110,9 @@ function yieldToEventLoop(): Promise<void> {
 
 async function runInline(prepared: PreparedRollout, options: RunOptions): Promise<RunOutcome> {
   const started = performance.now();
+  const timing = new ThreadTimingRecorder('caller', sharedClock());
+  const times0 = threadTimes();
+  let previousEnd = sharedClock();
   const sizer = new BlockSizer(options.blockSeconds ?? 0.1);
   const end = options.first + options.count;
   let next = options.first;
@@ -115,13 +122,28 @@ async function runInline(prepared: PreparedRollout, options: RunOptions): Promis
     const block = newBlock(next, count);
     const t0 = performance.now();
     const blockSteps = prepared.runBlock(block);
-    sizer.observe(count, (performance.now() - t0) / 1000);
+    const t1 = performance.now();
+    sizer.observe(count, (t1 - t0) / 1000);
+    timing.ranBlock(count, blockSteps, performance.timeOrigin + t0, performance.timeOrigin + t1, previousEnd);
     steps += blockSteps;
     next += count;
     options.onBlock(block, blockSteps);
     await yieldToEventLoop();
+    previousEnd = sharedClock();
   }
-  return { episodes: next - options.first, steps, seconds: (performance.now() - started) / 1000 };
+  recordCallerTimes(timing, times0);
+  return { episodes: next - options.first, steps, seconds: (performance.now() - started) / 1000, threads: [timing.result(sharedClock())] };
+}
+
+/** Milliseconds on the clock every thread of the process shares (worker-loop.ts stamps its messages with it). */
+function sharedClock(): number {
+  return performance.timeOrigin + performance.now();
+}
+
+/** The calling thread's CPU and queue time since `before` (null where the system does not tell). */
+function recordCallerTimes(timing: ThreadTimingRecorder, before: ReturnType<typeof threadTimes>): void {
+  const after = threadTimes();
+  if (before && after) timing.callerTimes(after.cpuSeconds - before.cpuSeconds, after.queuedSeconds - before.queuedSeconds);
 }
 
 export function workerUrl(file: string): string {
@@ -175,6 +197,11 @@ async function runThreaded(
   callerRuns: boolean,
 ): Promise<RunOutcome> {
   const started = performance.now();
+  const runStart = performance.timeOrigin + started;
+  const timings: ThreadTimingRecorder[] = [];
+  const callerTiming = callerRuns ? new ThreadTimingRecorder('caller', runStart) : null;
+  if (callerTiming) timings.push(callerTiming);
+  const callerTimes0 = callerRuns ? threadTimes() : null;
   const end = options.first + options.count;
   const blockSeconds = options.blockSeconds ?? 0.1;
   const entry = workerEntry(spec, prepared);
@@ -226,9 +253,12 @@ async function runThreaded(
   for (let w = callerRuns ? 1 : 0; w < workerCount; w++) {
     const started = entry.watched ? (options.early?.take() ?? null) : null;
     const clock = started ? started.clock : entry.watched ? newClockBuffer() : null;
+    const createdAt = started?.createdAt ?? sharedClock();
     const worker =
       started?.worker ?? new Worker(entry.url, { workerData: clock ? ({ spec: entry.data as RolloutSpec, clock } satisfies CodeWorkerData) : entry.data });
     const sizer = new BlockSizer(blockSeconds);
+    const timing = new ThreadTimingRecorder('worker', runStart);
+    timings.push(timing);
     let lastArrival = 0;
     let inHand = 0;
     if (clock) watches.push(new StepWatch(clock, () => inHand > 0));
@@ -245,6 +275,7 @@ async function runThreaded(
     };
     const onMessage = (message: FromWorker) => {
       if (message.type === 'ready') {
+        timing.ready(message, createdAt);
         lastArrival = performance.now();
         issue();
       } else if (message.type === 'block') {
@@ -254,6 +285,7 @@ async function runThreaded(
         const now = performance.now();
         sizer.observe(message.count, (now - lastArrival) / 1000);
         lastArrival = now;
+        timing.block(message);
         accept({ first: message.first, count: message.count, returns: message.returns, lengths: message.lengths, finals: message.finals }, message.steps);
         issue();
         wake?.();
@@ -294,6 +326,7 @@ async function runThreaded(
     : undefined;
   try {
     const sizer = callerSizer;
+    let previousEnd = sharedClock();
     for (;;) {
       if (failure) throw failure;
       const range = callerRuns && prepared ? take(sizer.size) : null;
@@ -301,9 +334,12 @@ async function runThreaded(
         const block = newBlock(range.first, range.count);
         const t0 = performance.now();
         const blockSteps = prepared!.runBlock(block);
-        sizer.observe(range.count, (performance.now() - t0) / 1000);
+        const t1 = performance.now();
+        sizer.observe(range.count, (t1 - t0) / 1000);
+        callerTiming?.ranBlock(range.count, blockSteps, performance.timeOrigin + t0, performance.timeOrigin + t1, previousEnd);
         accept(block, blockSteps);
         await yieldToEventLoop();
+        previousEnd = sharedClock();
       } else if (!abandoned && (inFlight > 0 || (!stopped() && next < end))) {
         // Blocks are still running on other threads, or (callerRuns false) threads are starting.
         await new Promise<void>((resolve) => (wake = resolve));
@@ -318,5 +354,12 @@ async function runThreaded(
     clearInterval(watchTimer);
     for (const t of threads) void t.terminate();
   }
-  return { episodes: delivered - options.first, steps, seconds: (performance.now() - started) / 1000 };
+  if (callerTiming) recordCallerTimes(callerTiming, callerTimes0);
+  const runEnd = sharedClock();
+  return {
+    episodes: delivered - options.first,
+    steps,
+    seconds: (performance.now() - started) / 1000,
+    threads: timings.map((t) => t.result(runEnd)),
+  };
 }

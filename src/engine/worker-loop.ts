@@ -1,5 +1,6 @@
 import type { MessagePort } from 'node:worker_threads';
 import { newBlock, type EpisodeBlock } from './episode-block.js';
+import { threadTimes } from './thread-times.js';
 import type { FromWorker, ToWorker } from './worker-messages.js';
 
 /** A thrown value as the error message the pool turns back into an error (keeping InputError's parts). */
@@ -8,12 +9,20 @@ export function describeError(e: unknown): FromWorker {
   return { type: 'error', name: err?.name ?? 'Error', message: err?.message ?? String(e), where: err?.where, detail: err?.detail };
 }
 
+/** Milliseconds on the clock every thread of the process shares. */
+function wallClock(): number {
+  return performance.timeOrigin + performance.now();
+}
+
 /**
  * The message loop every worker entry runs once it can roll out: announce readiness, then run
  * each requested block and send its results back with their buffers transferred, not copied.
+ * Each message carries the thread's timings (start-up, busy and idle time, its own CPU), so
+ * the pool can tell where a run's time went.
  */
 export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock) => number): void {
   const send = (message: FromWorker, transfer: ArrayBuffer[] = []) => port.postMessage(message, transfer);
+  let lastEnd = wallClock();
   port.on('message', (message: ToWorker) => {
     if (message.type === 'stop') {
       port.close();
@@ -21,14 +30,32 @@ export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock) =
     }
     try {
       const block = newBlock(message.first, message.count);
+      const start = wallClock();
       const steps = runBlock(block);
+      const end = wallClock();
+      const times = threadTimes();
       send(
-        { type: 'block', first: block.first, count: block.count, returns: block.returns, lengths: block.lengths, finals: block.finals, steps },
+        {
+          type: 'block',
+          first: block.first,
+          count: block.count,
+          returns: block.returns,
+          lengths: block.lengths,
+          finals: block.finals,
+          steps,
+          at: end,
+          busySeconds: (end - start) / 1000,
+          idleSeconds: Math.max(0, start - lastEnd) / 1000,
+          cpuSeconds: times?.cpuSeconds ?? null,
+          queuedSeconds: times?.queuedSeconds ?? null,
+        },
         [block.returns.buffer as ArrayBuffer, block.lengths.buffer as ArrayBuffer, block.finals.buffer as ArrayBuffer],
       );
+      lastEnd = wallClock();
     } catch (e) {
       send(describeError(e));
     }
   });
-  send({ type: 'ready' });
+  lastEnd = wallClock();
+  send({ type: 'ready', at: lastEnd, cpuSeconds: threadTimes()?.cpuSeconds ?? null });
 }
