@@ -4,8 +4,15 @@
 // in a fresh child process (trial.mjs) and is repeated; tables show medians, and the same
 // figures (with every repeat) are written as JSON to bench-results/.
 //
-// Usage: npm run build && node scripts/bench/index.mjs [--repeats 3] [--only workload,states,...]
-// Groups: workload, states, horizon, memory, store, startup.
+// Usage: npm run build && node scripts/bench/index.mjs [--repeats 3] [--only GROUP|WORKLOAD,...]
+//        [--threads] [--pin]
+// Groups: workload, throughput, states, horizon, memory, store, sequence, analysis, commands,
+// startup; a workload id (a, b, c, d1, d2, d3) selects that workload's rows of the workload and
+// throughput tables, so `--only d1,d2` gives the code environments' rows alone.
+// --threads prints where each worker thread's time went in the throughput runs (start-up,
+// busy share, idle, its own CPU, time queued for a core); --pin adds the module rows pinned
+// by taskset (all workers on one core, on two, and one worker on one core). --render FILE prints
+// the tables of a saved run (bench-results/bench-latest.json) again, without running anything.
 import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { availableParallelism, cpus, loadavg, totalmem, type as osType, release } from 'node:os';
@@ -17,8 +24,24 @@ const HERE = path.dirname(fileURLToPath(import.meta.url));
 const ROOT = path.resolve(HERE, '../..');
 
 const { values: args } = parseArgs({
-  options: { repeats: { type: 'string', default: '3' }, only: { type: 'string' }, out: { type: 'string', default: path.join(ROOT, 'bench-results') } },
+  options: {
+    repeats: { type: 'string', default: '3' },
+    only: { type: 'string' },
+    out: { type: 'string', default: path.join(ROOT, 'bench-results') },
+    threads: { type: 'boolean', default: false },
+    pin: { type: 'boolean', default: false },
+    render: { type: 'string' },
+  },
 });
+if (args.render) {
+  // Tables again from a saved run (its JSON), without running anything.
+  const { readFileSync } = await import('node:fs');
+  const report = await import('./report.mjs');
+  const saved = JSON.parse(readFileSync(args.render, 'utf8'));
+  const summary = report.summarise(saved.trials, saved.summary.workloads, saved.machine);
+  process.stdout.write(report.render(summary) + (args.threads ? report.renderThreads(summary) : ''));
+  process.exit(0);
+}
 const repeats = Number(args.repeats);
 if (!(Number.isInteger(repeats) && repeats >= 1)) throw new Error(`bench: --repeats must be a positive integer, got ${args.repeats}`);
 if (!existsSync(path.join(ROOT, 'dist', 'engine', 'pool.js'))) {
@@ -28,7 +51,7 @@ if (!existsSync(path.join(ROOT, 'dist', 'engine', 'pool.js'))) {
 
 // Imported after the check above: they load the compiled engine.
 const { prepareWorkloads } = await import('./workloads.mjs');
-const { buildTrials, STATE_COUNTS, HORIZONS } = await import('./trials.mjs');
+const { buildTrials, TRIAL_GROUPS, STATE_COUNTS, HORIZONS } = await import('./trials.mjs');
 const { compiledMdp, randomMdpRows, uniformPolicyMatrix } = await import('./random-mdp.mjs');
 const { writeFiniteMdp } = await import('./export-mdp.mjs');
 const report = await import('./report.mjs');
@@ -68,9 +91,12 @@ function scalingTables() {
   return { states, horizons };
 }
 
+/** Runs one trial in a fresh process (under `taskset -c CPUS` when the trial is pinned). */
 function runTrial(trial) {
+  const argv = [process.execPath, path.join(HERE, 'trial.mjs'), JSON.stringify(trial.run)];
+  if (trial.pin) argv.unshift('taskset', '-c', trial.pin);
   try {
-    const out = execFileSync(process.execPath, [path.join(HERE, 'trial.mjs'), JSON.stringify(trial.run)], {
+    const out = execFileSync(argv[0], argv.slice(1), {
       encoding: 'utf8',
       stdio: ['ignore', 'pipe', 'pipe'],
       timeout: 120_000,
@@ -83,12 +109,35 @@ function runTrial(trial) {
   }
 }
 
+function hasTaskset() {
+  try {
+    execFileSync('taskset', ['-c', '0', process.execPath, '-e', '0'], { stdio: 'ignore' });
+    return true;
+  } catch {
+    return false;
+  }
+}
+
 const cores = availableParallelism();
 const c = compileC();
 const prepared = await prepareWorkloads(scratch);
 const scaling = scalingTables();
-const groups = args.only ? new Set(args.only.split(',')) : null;
-const trials = buildTrials({ prepared, scaling, cores, binary: c.binary, root: ROOT }).filter((t) => !groups || groups.has(t.group));
+const only = args.only ? new Set(args.only.split(',').map((x) => x.trim())) : null;
+const workloadIds = new Set(prepared.map((w) => w.id));
+if (only) {
+  const unknown = [...only].filter((x) => !workloadIds.has(x) && !TRIAL_GROUPS.includes(x));
+  if (unknown.length) {
+    console.error(`bench: --only: unknown ${unknown.join(', ')} (groups: ${TRIAL_GROUPS.join(', ')}; workloads: ${[...workloadIds].join(', ')})`);
+    process.exit(2);
+  }
+}
+if (args.pin && !hasTaskset()) {
+  console.error('bench: --pin needs taskset (util-linux), which is not on this machine');
+  process.exit(2);
+}
+/** A trial is selected by its group, or by its workload for the workload, throughput and pinned rows. */
+const selected = (t) => !only || only.has(t.group) || (t.workload !== undefined && only.has(t.workload));
+const trials = buildTrials({ prepared, scaling, cores, binary: c.binary, root: ROOT, pin: args.pin }).filter(selected);
 const loadBefore = loadavg();
 console.error(`bench: ${trials.length} trials x ${repeats} repeats, each in a fresh process (set-up took ${((performance.now() - began) / 1000).toFixed(1)} s)`);
 
@@ -117,7 +166,7 @@ const machine = {
   seconds: Number(((performance.now() - began) / 1000).toFixed(1)),
 };
 const summary = report.summarise(trials, prepared, machine);
-const text = report.render(summary);
+const text = report.render(summary) + (args.threads ? report.renderThreads(summary) : '');
 process.stdout.write(text);
 const stamp = machine.date.replace(/[:.]/g, '-');
 const json = JSON.stringify({ machine, summary, trials: trials.map(({ run, ...rest }) => ({ ...rest, run })) }, null, 2);

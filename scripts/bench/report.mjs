@@ -84,17 +84,22 @@ export function summarise(trials, prepared, machine) {
     const all = pick('engine-all');
     if (!one || !all || one.error || all.error) return [];
     const hashes = [one, all].flatMap((x) => x.hashes);
+    const unqueued = (runnerLabel) => median(ok(find(trials, { group: 'throughput', workload: id, runnerLabel }).runs).map(unqueuedSeconds));
     return [{
       id,
       episodes: one.episodes,
       one,
       all,
       allOverOne: all.stepsPerSecond / one.stepsPerSecond,
+      // The same ratio from the times less each run's waits for a core (NaN without per-thread figures).
+      allOverOneUnqueued: unqueued('engine-1') / unqueued('engine-all'),
       // CPU seconds a step costs on all workers over on one (as in the workload table).
       cpuPerStepAllOverOne: one.stepsPerCpuSecond / all.stepsPerCpuSecond,
       identical: new Set(hashes).size === 1,
     }];
   });
+  const pinned = pinnedRows(trials);
+  const threads = threadRows(trials);
   const scalingOf = (id) => throughputScaling.find((t) => t.id === id)?.allOverOne ?? byId[id]?.allWorkersOverOne;
   for (const w of workloads) {
     const ref = w.reference ? byId[w.reference] : null;
@@ -207,7 +212,100 @@ export function summarise(trials, prepared, machine) {
   const betting = sequences.find((q) => q.method === 'betting');
   goal('betting sequence, 10⁶ episodes, one core (CPU time)', '<= 2 s', betting?.cpuSeconds, betting?.cpuSeconds <= 2);
 
-  return { machine, workloads, throughputScaling, costs, states, horizons, memory, store, sequences, startup, analysis, commands, goals };
+  return { machine, workloads, throughputScaling, pinned, threads, costs, states, horizons, memory, store, sequences, startup, analysis, commands, goals };
+}
+
+/** The median over repeats of a ratio taken within each repeat (trials of one repeat ran back to back). */
+function medianRatio(top, bottom) {
+  const n = Math.min(top.runs.length, bottom.runs.length);
+  const ratios = [];
+  for (let r = 0; r < n; r++) {
+    const a = top.runs[r];
+    const b = bottom.runs[r];
+    if (!a.error && !b.error) ratios.push(a.seconds / b.seconds);
+  }
+  return median(ratios);
+}
+
+/** The pinned module runs (taskset): wall times and, repeat by repeat, their ratios. */
+function pinnedRows(trials) {
+  const ids = [...new Set(trials.filter((t) => t.group === 'pinned').map((t) => t.workload))];
+  return ids.map((id) => {
+    const pick = (runnerLabel) => find(trials, { group: 'pinned', workload: id, runnerLabel });
+    const one = pick('1 worker, core 0');
+    const twoOnOne = pick('2 workers, core 0');
+    const twoOnTwo = pick('2 workers, cores 0,1');
+    const seconds = (t) => (t ? median(ok(t.runs).map((r) => r.seconds)) : NaN);
+    const hashes = [one, twoOnOne, twoOnTwo].filter(Boolean).flatMap((t) => ok(t.runs).map((r) => r.hash));
+    return {
+      id,
+      episodes: ok(one?.runs ?? [])[0]?.episodes ?? NaN,
+      oneSeconds: seconds(one),
+      twoOnOneSeconds: seconds(twoOnOne),
+      twoOnTwoSeconds: seconds(twoOnTwo),
+      // What the second core buys the two-worker run, and the speed-up over one worker on one core.
+      secondCoreGain: twoOnOne && twoOnTwo ? medianRatio(twoOnOne, twoOnTwo) : NaN,
+      speedUp: one && twoOnTwo ? medianRatio(one, twoOnTwo) : NaN,
+      // Two workers sharing one core against one worker there: the pool's own cost (1 = none).
+      poolCostOnOneCore: one && twoOnOne ? medianRatio(twoOnOne, one) : NaN,
+      identical: hashes.length ? new Set(hashes).size === 1 : null,
+    };
+  });
+}
+
+/**
+ * Where each thread's time went in the throughput and pinned runs
+ * (medians over repeats, thread by thread in the order they were started).
+ */
+function threadRows(trials) {
+  return trials
+    .filter((t) => (t.group === 'throughput' || t.group === 'pinned') && ok(t.runs).some((r) => r.threads?.length))
+    .map((t) => {
+      const runs = ok(t.runs);
+      const count = Math.max(...runs.map((r) => r.threads.length));
+      const perThread = Array.from({ length: count }, (_, i) => {
+        const of = (f) => median(runs.map((r) => (r.threads[i] ? f(r.threads[i], r) : NaN)));
+        return {
+          thread: runs[0].threads[i]?.thread ?? 'worker',
+          startupSeconds: of((x) => x.startupSeconds),
+          startupCpuSeconds: of((x) => x.startupCpuSeconds ?? NaN),
+          readyAt: of((x) => x.readyAt),
+          doneAt: of((x) => x.doneAt),
+          busyShare: of((x, r) => x.busySeconds / r.seconds),
+          idleSeconds: of((x) => x.idleSeconds),
+          cpuSeconds: of((x) => x.cpuSeconds ?? NaN),
+          queuedSeconds: of((x) => x.queuedSeconds ?? NaN),
+          warmNsPerStep: of((x) => (x.cpuSeconds !== null && x.startupCpuSeconds !== null ? ((x.cpuSeconds - x.startupCpuSeconds) / x.steps) * 1e9 : NaN)),
+          episodeShare: of((x, r) => x.episodes / r.episodes),
+        };
+      });
+      return {
+        id: t.workload,
+        group: t.group,
+        label: t.runnerLabel,
+        seconds: median(runs.map((r) => r.seconds)),
+        coresUsed: median(runs.map(coresUsed)),
+        unqueuedSeconds: median(runs.map(unqueuedSeconds)),
+        threads: perThread,
+      };
+    });
+}
+
+/** Cores the run's threads held on average: their CPU seconds over the run's wall time. */
+function coresUsed(run) {
+  const workers = run.threads?.filter((x) => x.cpuSeconds !== null) ?? [];
+  return workers.length ? workers.reduce((n, x) => n + x.cpuSeconds, 0) / run.seconds : NaN;
+}
+
+/**
+ * The run's wall time less the time its threads waited for a core: for each worker, when its
+ * last block ended minus the time it sat in the run queue, and the latest of those. What the
+ * run would have taken had nothing else wanted the cores, an estimate that holds up while other
+ * work loads the machine. (A worker's start-up before the run began is counted in neither.)
+ */
+function unqueuedSeconds(run) {
+  const workers = run.threads?.filter((x) => x.queuedSeconds !== null) ?? [];
+  return workers.length ? Math.max(...workers.map((x) => x.doneAt - x.queuedSeconds)) : NaN;
 }
 
 const fmt = (x, digits = 1) => (Number.isFinite(x) ? x.toFixed(digits) : '–');
@@ -236,11 +334,22 @@ export function render(s) {
   if (errors.length) lines.push('', ...errors.map((e) => `Failed: ${e}`));
   if (s.throughputScaling?.length) {
     lines.push('', 'Worker scaling on longer runs (thread start-up and JIT warm-up amortised), engine only:', '');
-    lines.push('| workload | episodes | 1 worker: s | M steps/s | all workers: M steps/s | all ÷ 1 | CPU/step vs 1 worker | same returns |');
-    lines.push('|---|---:|---:|---:|---:|---:|---:|:---:|');
+    lines.push('| workload | episodes | 1 worker: s | M steps/s | all workers: M steps/s | all ÷ 1 | all ÷ 1, less queueing | CPU/step vs 1 worker | same returns |');
+    lines.push('|---|---:|---:|---:|---:|---:|---:|---:|:---:|');
     for (const t of s.throughputScaling) {
       lines.push(
-        `| (${t.id}) | ${t.episodes.toLocaleString('en')} | ${fmt(t.one.seconds, 2)} | ${millions(t.one.stepsPerSecond)} | ${millions(t.all.stepsPerSecond)} | ${ratio(t.allOverOne)} | ${ratio(t.cpuPerStepAllOverOne)} | ${yesNo(t.identical)} |`,
+        `| (${t.id}) | ${t.episodes.toLocaleString('en')} | ${fmt(t.one.seconds, 2)} | ${millions(t.one.stepsPerSecond)} | ${millions(t.all.stepsPerSecond)} | ${ratio(t.allOverOne)} | ${ratio(t.allOverOneUnqueued)} | ${ratio(t.cpuPerStepAllOverOne)} | ${yesNo(t.identical)} |`,
+      );
+    }
+  }
+  if (s.pinned?.length) {
+    lines.push('', 'Code environments pinned by taskset, repeats interleaved (ratios taken within each repeat, then the median):', '');
+    lines.push('| workload | episodes | 1 worker, core 0: s | 2 workers, core 0: s | 2 workers, cores 0,1: s | 2 workers, two cores ÷ one | 1 worker on one core ÷ 2 on two | pool cost on one core | same returns |');
+    lines.push('|---|---:|---:|---:|---:|---:|---:|---:|:---:|');
+    for (const p of s.pinned) {
+      lines.push(
+        `| (${p.id}) | ${Number.isFinite(p.episodes) ? p.episodes.toLocaleString('en') : '–'} | ${fmt(p.oneSeconds, 2)} | ${fmt(p.twoOnOneSeconds, 2)} | ${fmt(p.twoOnTwoSeconds, 2)} | ` +
+          `${ratio(p.secondCoreGain)} | ${ratio(p.speedUp)} | ${ratio(p.poolCostOnOneCore)} | ${yesNo(p.identical)} |`,
       );
     }
   }
@@ -338,6 +447,27 @@ export function render(s) {
   for (const g of s.goals) {
     const measured = g.name.includes('identical') ? (g.met === null ? '–' : g.met ? 'same' : 'differ') : g.name.includes('overhead') ? `${fmt(100 * g.measured, 1)}%` : g.name.includes('help') ? `${fmt(g.measured, 0)} ms` : g.name.includes('memory') ? `${fmt(g.measured, 1)} B` : g.name.includes('sequence') ? `${fmt(g.measured, 2)} s` : ratio(g.measured);
     lines.push(`| ${g.name} | ${g.target} | ${measured} | ${yesNo(g.met)} |`);
+  }
+  lines.push('');
+  return lines.join('\n');
+}
+
+/** `--threads`: the per-thread table of the long runs. */
+export function renderThreads(s) {
+  if (!s.threads?.length) return '';
+  const lines = ['', 'Threads of the long runs (medians over repeats; times in seconds from the run\'s start; CPU and queue time from Linux\'s per-thread scheduler figures):', ''];
+  lines.push('| run | thread | start-up (its CPU) | ready at | last block at | run | busy | idle | episodes | CPU | queued for a core | CPU ns/step after start-up | cores held | run less queueing |');
+  lines.push('|---|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|---:|');
+  for (const row of s.threads) {
+    const name = `(${row.id}) ${row.group === 'pinned' ? row.label : row.label === 'engine-1' ? '1 worker' : 'all workers'}`;
+    row.threads.forEach((t, i) => {
+      const pct = (x) => (Number.isFinite(x) ? `${(100 * x).toFixed(0)}%` : '–');
+      lines.push(
+        `| ${i === 0 ? name : ''} | ${i + 1}${t.thread === 'caller' ? ' (caller)' : ''} | ${fmt(t.startupSeconds, 2)} (${fmt(t.startupCpuSeconds, 2)}) | ${fmt(t.readyAt, 2)} | ${fmt(t.doneAt, 2)} | ${fmt(row.seconds, 2)} | ` +
+          `${pct(t.busyShare)} | ${fmt(t.idleSeconds, 3)} | ${pct(t.episodeShare)} | ${fmt(t.cpuSeconds, 2)} | ${fmt(t.queuedSeconds, 2)} | ${fmt(t.warmNsPerStep, 1)} | ` +
+          `${i === 0 ? fmt(row.coresUsed, 2) : ''} | ${i === 0 ? fmt(row.unqueuedSeconds, 2) : ''} |`,
+      );
+    });
   }
   lines.push('');
   return lines.join('\n');

@@ -53,6 +53,7 @@ const RUNNERS = {
       episodes: result.episodes,
       sum: check.sum,
       hash: check.hash,
+      threads: result.threads,
     };
   },
 

@@ -8,8 +8,26 @@ import { WORKLOADS, RUN_SEED } from './workloads.mjs';
 export const STATE_COUNTS = [100, 1_000, 10_000, 100_000];
 /** Horizons for "time per episode against the horizon", on a 400-state MDP without terminal states. */
 export const HORIZONS = [10, 100, 1_000, 10_000];
-/** Workloads rerun longer (episodes × factor) to measure how throughput scales with workers. */
-export const THROUGHPUT_FACTORS = [['a', 5], ['b', 3], ['d1', 8], ['d2', 3]];
+/**
+ * Workloads rerun longer (episodes × factor) to measure how throughput scales with workers.
+ * The module rows are sized so one worker takes over 2 s on a quiet machine (d1 about 2.5 s,
+ * d2 about 2.2 s), the length the scaling target is stated for.
+ */
+export const THROUGHPUT_FACTORS = [['a', 5], ['b', 3], ['d1', 16], ['d2', 8]];
+/**
+ * The module rows again with the process pinned by `taskset`: all workers on one core and on
+ * two, and one worker on one core. Within one bench run and interleaved, their ratios show
+ * what the second core buys and what the pool costs when there is none, even on a machine
+ * whose other work makes single wall times unreliable.
+ */
+export const PINNED = [
+  { label: '1 worker, core 0', cpus: '0', workers: 1 },
+  { label: '2 workers, core 0', cpus: '0', workers: 2 },
+  { label: '2 workers, cores 0,1', cpus: '0,1', workers: 2 },
+];
+export const PINNED_WORKLOADS = ['d1', 'd2'];
+/** Every trial group, for `--only`. */
+export const TRIAL_GROUPS = ['workload', 'throughput', 'pinned', 'states', 'horizon', 'memory', 'sequence', 'analysis', 'commands', 'store', 'startup'];
 /** Episodes a policy for the analysis trials: each figure computed after sampling, timed alone. */
 export const ANALYSIS_EPISODES = [10_000, 100_000, 1_000_000];
 /** Episodes a policy for the whole-command trials of the analysis goals. */
@@ -24,7 +42,7 @@ export const MEMORY_EPISODES = [200_000, 1_200_000];
  * @param binary    the compiled C loop, or null when there is no compiler
  * @param root      the repository root
  */
-export function buildTrials({ prepared, scaling, cores, binary, root }) {
+export function buildTrials({ prepared, scaling, cores, binary, root, pin = false }) {
   const trials = [];
   const seed = RUN_SEED;
   for (const w of prepared) {
@@ -42,6 +60,9 @@ export function buildTrials({ prepared, scaling, cores, binary, root }) {
     const base = { env: w.env, policy: w.policy, seed, episodes: w.episodes * factor, cold: false };
     trials.push({ group: 'throughput', workload: id, runnerLabel: 'engine-1', run: { runner: 'engine', ...base, workers: 1 } });
     trials.push({ group: 'throughput', workload: id, runnerLabel: 'engine-all', run: { runner: 'engine', ...base, workers: cores } });
+    if (pin && PINNED_WORKLOADS.includes(id)) {
+      for (const p of PINNED) trials.push({ group: 'pinned', workload: id, runnerLabel: p.label, pin: p.cpus, run: { runner: 'engine', ...base, workers: p.workers } });
+    }
   }
   for (const states of STATE_COUNTS) {
     const table = scaling.states[states];
