@@ -1,5 +1,5 @@
 import { PluginError } from '../errors.js';
-import { clockPosition, clockView } from './plugin-clock.js';
+import { clockPosition } from './plugin-clock.js';
 
 /** Default for `--step-timeout`: far beyond any sane step, short enough to notice a hang. */
 export const DEFAULT_STEP_TIMEOUT_SECONDS = 10;
@@ -17,7 +17,7 @@ export class StepWatch {
   private lastMoved = performance.now();
 
   constructor(buffer: SharedArrayBuffer, private readonly busy: () => boolean) {
-    this.view = clockView(buffer);
+    this.view = new Float64Array(buffer);
   }
 
   /** A PluginError if the worker has been stuck in one call for more than `timeoutSeconds`. */
