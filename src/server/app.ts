@@ -7,6 +7,7 @@ import { requestGate } from './auth.js';
 import type { ServerContext } from './context.js';
 import { RunAnalysisCache } from './run-analysis.js';
 import { RunQueue } from './run-queue.js';
+import { EvaluationThreads } from './evaluation-threads.js';
 import { comparisonRoutes } from './routes/comparisons.js';
 import { offPolicyRoutes } from './routes/offpolicy.js';
 import { evaluationRoutes } from './routes/evaluations.js';
@@ -42,10 +43,11 @@ export interface ServerOptions {
 export async function buildApp(options: ServerOptions): Promise<FastifyInstance> {
   const app = Fastify({ logger: options.logger ?? false, bodyLimit: options.bodyLimit ?? 1024 * 1024 });
   const db = openStore(options.storePath);
+  const concurrency = options.concurrency ?? 1;
   const ctx: ServerContext = {
     db,
     storePath: options.storePath,
-    queue: new RunQueue(options.concurrency ?? 1, options.queueSize ?? 8),
+    queue: new RunQueue(concurrency, options.queueSize ?? 8),
     limits: {
       maxEpisodes: options.maxEpisodes ?? 10_000_000,
       workers: options.workers ?? defaultWorkers(),
@@ -53,6 +55,7 @@ export async function buildApp(options: ServerOptions): Promise<FastifyInstance>
     },
     analysis: new RunAnalysisCache(db),
     toolVersion: options.toolVersion,
+    threads: new EvaluationThreads({ storePath: options.storePath, toolVersion: options.toolVersion }, concurrency),
   };
 
   app.addHook('onRequest', requestGate(options.token ?? null));
@@ -78,6 +81,7 @@ export async function buildApp(options: ServerOptions): Promise<FastifyInstance>
 
   app.addHook('onClose', async () => {
     await ctx.queue.close();
+    await ctx.threads.close();
     db.close();
   });
   return app;

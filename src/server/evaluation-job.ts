@@ -1,31 +1,22 @@
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.js';
 import type { Db } from '../store/open.js';
 import { findRun, finishRun } from '../store/runs.js';
-import { GATE_GO, GATE_STOP, type EvaluationTask, type EvaluationWorkerData, type FromEvaluationWorker } from './evaluation-messages.js';
+import { GATE_GO, GATE_STOP, type EvaluationTask, type FromEvaluationWorker, type ToEvaluationWorker } from './evaluation-messages.js';
+import type { EvaluationThreads } from './evaluation-threads.js';
 import type { JobProgress, QueueJob } from './run-queue.js';
-
-function workerUrl(): string {
-  const here = fileURLToPath(import.meta.url);
-  // Under the test runner this file is TypeScript source; the worker always runs the build.
-  if (here.endsWith('.ts')) return path.resolve(path.dirname(here), '../../dist/server/evaluation-worker.js');
-  return path.join(path.dirname(here), 'evaluation-worker.js');
-}
 
 type Outcome = { status: string; error: string | null };
 
 /**
- * Starts an evaluation's thread and resolves once its run exists in the store (the id to
- * answer with) with a queue job that lets it go; a bad request rejects with the InputError the
- * command line would print. Until the job runs, the thread waits without using the CPU.
+ * Hands an evaluation to a thread (a warm one when there is one) and resolves once its run
+ * exists in the store (the id to answer with) with a queue job that lets it go; a bad request
+ * rejects with the InputError the command line would print. Until the job runs, the thread
+ * waits without using the CPU. When the task ends the thread goes back to `threads`.
  */
-export function prepareEvaluation(db: Db, storePath: string, task: EvaluationTask, toolVersion: string): Promise<QueueJob> {
+export function prepareEvaluation(db: Db, threads: EvaluationThreads, task: EvaluationTask): Promise<QueueJob> {
   const gate = new SharedArrayBuffer(4);
   const flag = new Int32Array(gate);
-  const data: EvaluationWorkerData = { storePath, task, toolVersion, gate };
-  const worker = new Worker(workerUrl(), { workerData: data });
+  const worker = threads.take();
   let report: ((p: JobProgress) => void) | null = null;
   let runId: string | null = null;
   let outcome: Outcome | null = null;
@@ -37,7 +28,18 @@ export function prepareEvaluation(db: Db, storePath: string, task: EvaluationTas
   };
 
   return new Promise<QueueJob>((resolveJob, rejectJob) => {
-    worker.on('message', (message: FromEvaluationWorker) => {
+    /** The task is over (ended, or its thread died): mark a failed run, answer whoever waits, free the thread. */
+    const conclude = (final: Outcome, threadAlive: boolean) => {
+      worker.off('message', onMessage);
+      worker.off('error', onError);
+      worker.off('exit', onExit);
+      if (runId === null) rejectJob(new Error(final.error ?? 'the evaluation thread stopped'));
+      else if (final.status === 'failed' && findRun(db, runId)?.status === 'running') finishRun(db, runId, 'failed', null, final.error);
+      // (A comparison's member runs are marked by runStoredComparison itself when it fails.)
+      if (threadAlive) threads.give(worker);
+      settle!(final);
+    };
+    const onMessage = (message: FromEvaluationWorker) => {
       if (message.type === 'created') {
         runId = message.runId;
         const id = message.runId;
@@ -55,21 +57,18 @@ export function prepareEvaluation(db: Db, storePath: string, task: EvaluationTas
         report?.(message.progress);
       } else {
         outcome = { status: message.status, error: message.error };
-        if (runId === null) {
-          rejectJob(message.input ? new InputError(message.input.where, message.input.detail) : new Error(message.error ?? 'the evaluation failed'));
-        }
+        if (runId === null && message.input) rejectJob(new InputError(message.input.where, message.input.detail));
+        conclude(outcome, true);
       }
-    });
-    worker.on('error', (e) => {
+    };
+    const onError = (e: Error) => {
       outcome ??= { status: 'failed', error: e.message };
       if (runId === null) rejectJob(e);
-    });
-    worker.on('exit', () => {
-      const final = outcome ?? { status: 'failed', error: 'the evaluation thread stopped unexpectedly' };
-      if (runId === null) rejectJob(new Error(final.error ?? 'the evaluation thread stopped'));
-      else if (final.status === 'failed' && findRun(db, runId)?.status === 'running') finishRun(db, runId, 'failed', null, final.error);
-      // (A comparison's member runs are marked by runStoredComparison itself when it fails.)
-      settle!(final);
-    });
+    };
+    const onExit = () => conclude(outcome ?? { status: 'failed', error: 'the evaluation thread stopped unexpectedly' }, false);
+    worker.on('message', onMessage);
+    worker.on('error', onError);
+    worker.on('exit', onExit);
+    worker.postMessage({ type: 'task', task, gate } satisfies ToEvaluationWorker);
   });
 }

@@ -8,13 +8,20 @@ export type EvaluationTask =
   | { readonly kind: 'estimate'; readonly spec: RolloutSpec; readonly options: StoredOptions }
   | { readonly kind: 'comparison'; readonly request: CompareRequest };
 
+/** What an evaluation thread is started with; it then runs one task after another (ToEvaluationWorker). */
 export interface EvaluationWorkerData {
   readonly storePath: string;
-  readonly task: EvaluationTask;
   readonly toolVersion: string;
-  /** One Int32: 0 wait, 1 go, 2 stop. The worker waits on it once its run exists in the store. */
-  readonly gate: SharedArrayBuffer;
 }
+
+export type ToEvaluationWorker =
+  | {
+      readonly type: 'task';
+      readonly task: EvaluationTask;
+      /** One Int32: 0 wait, 1 go, 2 stop. The worker waits on it once its run exists in the store. */
+      readonly gate: SharedArrayBuffer;
+    }
+  | { readonly type: 'close' };
 
 export const GATE_WAIT = 0;
 export const GATE_GO = 1;

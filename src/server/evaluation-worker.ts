@@ -1,40 +1,39 @@
 /**
- * A worker thread that carries out one evaluation or comparison for the server, exactly as
- * `reckon estimate` and `reckon compare` do (`runStoredEstimate`, `runStoredComparison`), so neither the definitions' compilation, the
- * episodes, nor the figures computed after them (a bootstrap can take seconds) run on the
- * thread that answers requests. Once the run exists in the store the thread reports its id
- * and blocks on a shared gate until the server's queue lets it go (or tells it to stop), so a
- * queued run already has the id the request was answered with.
+ * A worker thread that carries out evaluations and comparisons for the server, one after
+ * another, exactly as `reckon estimate` and `reckon compare` do (`runStoredEstimate`,
+ * `runStoredComparison`), so neither the definitions' compilation, the episodes, nor the
+ * figures computed after them (a bootstrap can take seconds) run on the thread that answers
+ * requests. The thread is kept between tasks (evaluation-threads.ts): it loads the evaluation
+ * code and opens the store once, not per run. Once a task's run exists in the store the thread
+ * reports its id and blocks on the task's gate until the server's queue lets it go (or tells
+ * it to stop), so a queued run already has the id the request was answered with.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { InputError, StoppedEarly } from '../errors.js';
 import { runStoredComparison } from '../evaluate/stored-compare.js';
 import { runStoredEstimate } from '../evaluate/stored-estimate.js';
 import { openStore } from '../store/open.js';
-import { GATE_STOP, GATE_WAIT, type EvaluationTask, type EvaluationWorkerData, type FromEvaluationWorker } from './evaluation-messages.js';
+import { GATE_STOP, GATE_WAIT, type EvaluationTask, type EvaluationWorkerData, type FromEvaluationWorker, type ToEvaluationWorker } from './evaluation-messages.js';
 
 const data = workerData as EvaluationWorkerData;
 const port = parentPort!;
-const gate = new Int32Array(data.gate);
-const controller = new AbortController();
 
 function send(message: FromEvaluationWorker): void {
   port.postMessage(message);
 }
 
-/** Called between blocks too: a stop set on the gate while running ends the run as interrupted. */
-function checkStop(): void {
-  if (Atomics.load(gate, 0) === GATE_STOP) controller.abort();
-}
-
-/** Told the run's id once it exists: report it, then wait for the queue's word. */
-function created(runId: string): void {
-  send({ type: 'created', runId });
-  Atomics.wait(gate, 0, GATE_WAIT);
-  checkStop();
-}
-
-async function runTask(db: ReturnType<typeof openStore>, task: EvaluationTask): Promise<{ interrupted: boolean }> {
+async function runTask(db: ReturnType<typeof openStore>, task: EvaluationTask, gate: Int32Array): Promise<{ interrupted: boolean }> {
+  const controller = new AbortController();
+  /** Called between blocks too: a stop set on the gate while running ends the run as interrupted. */
+  const checkStop = () => {
+    if (Atomics.load(gate, 0) === GATE_STOP) controller.abort();
+  };
+  /** Told the run's id once it exists: report it, then wait for the queue's word. */
+  const created = (runId: string) => {
+    send({ type: 'created', runId });
+    Atomics.wait(gate, 0, GATE_WAIT);
+    checkStop();
+  };
   if (task.kind === 'estimate') {
     const { result } = await runStoredEstimate({
       db,
@@ -69,17 +68,23 @@ async function runTask(db: ReturnType<typeof openStore>, task: EvaluationTask): 
 }
 
 const db = openStore(data.storePath);
-try {
-  const result = await runTask(db, data.task);
-  send({ type: 'end', status: result.interrupted ? 'interrupted' : 'done', error: null, input: null });
-} catch (e) {
-  // Stopped before two episodes: kept as interrupted (the store says so already), not failed.
-  if (e instanceof StoppedEarly) send({ type: 'end', status: 'interrupted', error: null, input: null });
-  else {
-    const input = e instanceof InputError ? { where: e.where, detail: e.detail } : null;
-    send({ type: 'end', status: 'failed', error: e instanceof Error ? e.message : String(e), input });
+// The server hands this thread a task only when the last one has ended, so they never overlap.
+port.on('message', (message: ToEvaluationWorker) => {
+  if (message.type === 'close') {
+    db.close();
+    port.close();
+    return;
   }
-} finally {
-  db.close();
-  port.close();
-}
+  runTask(db, message.task, new Int32Array(message.gate)).then(
+    (result) => send({ type: 'end', status: result.interrupted ? 'interrupted' : 'done', error: null, input: null }),
+    (e: unknown) => {
+      // Stopped before two episodes: kept as interrupted (the store says so already), not failed.
+      if (e instanceof StoppedEarly) {
+        send({ type: 'end', status: 'interrupted', error: null, input: null });
+        return;
+      }
+      const input = e instanceof InputError ? { where: e.where, detail: e.detail } : null;
+      send({ type: 'end', status: 'failed', error: e instanceof Error ? e.message : String(e), input });
+    },
+  );
+});

@@ -16,7 +16,7 @@ export async function submitRun(ctx: ServerContext, reply: FastifyReply, task: E
   }
   let job;
   try {
-    job = await prepareEvaluation(ctx.db, ctx.storePath, task, ctx.toolVersion);
+    job = await prepareEvaluation(ctx.db, ctx.threads, task);
   } catch (e) {
     place.release();
     throw e;
