@@ -5,14 +5,15 @@
 // figures (with every repeat) are written as JSON to bench-results/.
 //
 // Usage: npm run build && node scripts/bench/index.mjs [--repeats 3] [--only GROUP|WORKLOAD,...]
-//        [--threads] [--pin]
+//        [--skip-pin] [--render FILE]
 // Groups: workload, throughput, states, horizon, memory, store, sequence, analysis, commands,
 // startup; a workload id (a, b, c, d1, d2, d3) selects that workload's rows of the workload and
 // throughput tables, so `--only d1,d2` gives the code environments' rows alone.
-// --threads prints where each worker thread's time went in the throughput runs (start-up,
-// busy share, idle, its own CPU, time queued for a core); --pin adds the module rows pinned
-// by taskset (all workers on one core, on two, and one worker on one core). --render FILE prints
-// the tables of a saved run (bench-results/bench-latest.json) again, without running anything.
+// The tables end with where each thread's time went in the long runs (start-up, busy share,
+// idle, its own CPU, time queued for a core), and the module rows run again pinned by taskset
+// (all workers on one core, on two, and one worker on one core; --skip-pin leaves them out,
+// as does a machine without taskset). --render FILE prints the tables of a saved run
+// (bench-results/bench-latest.json) again, without running anything.
 import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { availableParallelism, cpus, loadavg, totalmem, type as osType, release } from 'node:os';
@@ -28,8 +29,7 @@ const { values: args } = parseArgs({
     repeats: { type: 'string', default: '3' },
     only: { type: 'string' },
     out: { type: 'string', default: path.join(ROOT, 'bench-results') },
-    threads: { type: 'boolean', default: false },
-    pin: { type: 'boolean', default: false },
+    'skip-pin': { type: 'boolean', default: false },
     render: { type: 'string' },
   },
 });
@@ -39,7 +39,7 @@ if (args.render) {
   const report = await import('./report.mjs');
   const saved = JSON.parse(readFileSync(args.render, 'utf8'));
   const summary = report.summarise(saved.trials, saved.summary.workloads, saved.machine);
-  process.stdout.write(report.render(summary) + (args.threads ? report.renderThreads(summary) : ''));
+  process.stdout.write(report.render(summary) + report.renderThreads(summary));
   process.exit(0);
 }
 const repeats = Number(args.repeats);
@@ -131,13 +131,11 @@ if (only) {
     process.exit(2);
   }
 }
-if (args.pin && !hasTaskset()) {
-  console.error('bench: --pin needs taskset (util-linux), which is not on this machine');
-  process.exit(2);
-}
+const pin = !args['skip-pin'] && hasTaskset();
+if (!args['skip-pin'] && !pin) console.error('bench: no taskset (util-linux) on this machine, so no pinned rows');
 /** A trial is selected by its group, or by its workload for the workload, throughput and pinned rows. */
 const selected = (t) => !only || only.has(t.group) || (t.workload !== undefined && only.has(t.workload));
-const trials = buildTrials({ prepared, scaling, cores, binary: c.binary, root: ROOT, pin: args.pin }).filter(selected);
+const trials = buildTrials({ prepared, scaling, cores, binary: c.binary, root: ROOT, pin }).filter(selected);
 const loadBefore = loadavg();
 console.error(`bench: ${trials.length} trials x ${repeats} repeats, each in a fresh process (set-up took ${((performance.now() - began) / 1000).toFixed(1)} s)`);
 
@@ -166,7 +164,7 @@ const machine = {
   seconds: Number(((performance.now() - began) / 1000).toFixed(1)),
 };
 const summary = report.summarise(trials, prepared, machine);
-const text = report.render(summary) + (args.threads ? report.renderThreads(summary) : '');
+const text = report.render(summary) + report.renderThreads(summary);
 process.stdout.write(text);
 const stamp = machine.date.replace(/[:.]/g, '-');
 const json = JSON.stringify({ machine, summary, trials: trials.map(({ run, ...rest }) => ({ ...rest, run })) }, null, 2);
