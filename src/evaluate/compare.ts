@@ -1,4 +1,4 @@
-import type { RiskRequest } from '../options/risk-options.js';
+import type { EventSpec, RiskRequest } from '../options/risk-options.js';
 import { pairedRiskDifferences, type PairedRiskDifferences } from '../stats/paired-risk.js';
 import { runEpisodes } from '../engine/pool.js';
 import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
@@ -12,7 +12,7 @@ import type { EstimateResult } from './estimate.js';
 import { differenceWarnings } from './interval-advice.js';
 import { computeFigures, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
-import { resolveEvent } from './episode-events.js';
+import { episodeTest, resolveEvent } from './episode-events.js';
 import { chooseSequence, makeRunningInterval, sequenceInterval, targetReached, type SequenceChoice, type SequenceSettings } from './sequence.js';
 
 type Definition = RolloutSpec['env'];
@@ -115,7 +115,8 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
   }
   request.onStart?.(facts, sequence);
 
-  const buffers = facts.map((f) => new ReturnsBuffer(Math.min(request.episodes, 1 << 20), f.horizon));
+  const keepEpisodes = needsEpisodes(request.risk ?? null);
+  const buffers = facts.map((f) => new ReturnsBuffer(Math.min(request.episodes, 1 << 20), f.horizon, { keepEpisodes }));
   const single = new Float64Array(1);
   const started = performance.now();
   let reached = false;
@@ -262,15 +263,26 @@ export function summarizeComparison(
       for (const w of differenceWarnings(request.method, differences)) warnings.push(`[${pair.first}] − [${pair.second}]: ${w}`);
     }
   }
+  // Length and terminal events are paired from each episode's length and final state; they are
+  // left out (with a word) where those were not kept.
+  const pairedEvents = (request.risk?.events ?? []).filter((e) => e.subject === 'return' || eventIndicators(e, facts[0], buffers[0]) !== null);
+  for (const e of request.risk?.events ?? []) {
+    if (!pairedEvents.includes(e)) warnings.push(`P(${e.text}): not paired, since where or when these episodes ended was not kept; each policy's figure is above`);
+  }
   const riskDifferences = request.risk
-    ? comparison.pairs.map((pair) =>
-        pairedRiskDifferences(buffers[pair.first].view(), buffers[pair.second].view(), {
+    ? comparison.pairs.map((pair) => {
+        const indicators = pairedEvents.map((e) => {
+          if (e.subject === 'return') return null;
+          return [eventIndicators(e, facts[pair.first], buffers[pair.first])!, eventIndicators(e, facts[pair.second], buffers[pair.second])!] as const;
+        });
+        return pairedRiskDifferences(buffers[pair.first].view(), buffers[pair.second].view(), {
           tail: request.risk!.tail,
-          events: request.risk!.events.filter((e) => e.subject === 'return'),
+          events: pairedEvents,
           level: request.level,
           seed: request.seed,
-        }),
-      )
+          indicators,
+        });
+      })
     : null;
   if (riskDifferences) {
     comparison.pairs.forEach((pair, q) => {
@@ -312,5 +324,21 @@ function concat(blocks: readonly EpisodeBlock[], key: 'returns' | 'lengths' | 'f
     out.set(b[key], offset);
     offset += b.count;
   }
+  return out;
+}
+
+/** Whether paired differences of these events need each episode's length and final state. */
+export function needsEpisodes(risk: RiskRequest | null): boolean {
+  return risk !== null && risk.events.some((e) => e.subject !== 'return');
+}
+
+/** 1 where the event happened, episode by episode, or null when the buffer did not keep what it needs. */
+function eventIndicators(event: EventSpec, facts: EnvironmentFacts, buffer: ReturnsBuffer): Uint8Array | null {
+  const kept = buffer.episodes();
+  if (!kept || (event.subject === 'terminal' && !kept.finals)) return null;
+  const happens = episodeTest(resolveEvent(event, facts));
+  const returns = buffer.view();
+  const out = new Uint8Array(returns.length);
+  for (let i = 0; i < returns.length; i++) out[i] = happens(returns[i], kept.lengths[i], kept.finals ? kept.finals[i] : Number.NaN) ? 1 : 0;
   return out;
 }

@@ -23,10 +23,17 @@ export class ReturnsBuffer {
   private finalCounts = new Float64Array(16);
   /** False once an episode came without a final state (module environments, older stored runs). */
   private finalsKnown = true;
+  /** Every episode's length and final state, kept only when asked (paired event differences need them). */
+  private episodeLengths: Uint32Array | null = null;
+  private episodeFinals: Int32Array | null = null;
 
-  constructor(capacity: number, private readonly horizon: number) {
+  constructor(capacity: number, private readonly horizon: number, options: { keepEpisodes?: boolean } = {}) {
     this.data = new Float64Array(Math.max(16, capacity));
     this.lengthCounts = horizon <= MAX_HISTOGRAM_HORIZON ? new Float64Array(horizon + 1) : null;
+    if (options.keepEpisodes) {
+      this.episodeLengths = new Uint32Array(this.data.length);
+      this.episodeFinals = new Int32Array(this.data.length);
+    }
   }
 
   /** Appends episodes in order; `finals` (the state each ended in) may be missing, which makes {@link endedIn} unknown. */
@@ -37,8 +44,22 @@ export class ReturnsBuffer {
       grown.set(this.data.subarray(0, this.count));
       this.data = grown;
     }
-    this.data.set(returns, this.count);
+    const start = this.count;
+    this.data.set(returns, start);
     this.count = needed;
+    if (this.episodeLengths && this.episodeFinals) {
+      if (needed > this.episodeLengths.length) {
+        const lengthsGrown = new Uint32Array(this.data.length);
+        lengthsGrown.set(this.episodeLengths.subarray(0, start));
+        this.episodeLengths = lengthsGrown;
+        const finalsGrown = new Int32Array(this.data.length);
+        finalsGrown.set(this.episodeFinals.subarray(0, start));
+        this.episodeFinals = finalsGrown;
+      }
+      this.episodeLengths.set(lengths, start);
+      if (finals && finals.length === returns.length) this.episodeFinals.set(finals, start);
+      else this.episodeFinals.fill(NO_FINAL_STATE, start, needed);
+    }
     for (let i = 0; i < lengths.length; i++) {
       const length = lengths[i];
       this.lengthSum += length;
@@ -69,6 +90,12 @@ export class ReturnsBuffer {
   /** A view of the returns so far (no copy). */
   view(): Float64Array {
     return this.data.subarray(0, this.count);
+  }
+
+  /** Every episode's length and final state in order, when kept (`keepEpisodes`); finals null when not all were recorded. */
+  episodes(): { lengths: Uint32Array; finals: Int32Array | null } | null {
+    if (!this.episodeLengths || !this.episodeFinals) return null;
+    return { lengths: this.episodeLengths.subarray(0, this.count), finals: this.finalsKnown ? this.episodeFinals.subarray(0, this.count) : null };
   }
 
   /** Episodes that ended in one of these states, or null when final states were not recorded. */

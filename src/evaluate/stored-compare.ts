@@ -7,7 +7,7 @@ import { appendChunk, createRun, finishRun, keepHeartbeat, listMembers, loadEpis
 import { HEARTBEAT_SECONDS } from '../store/owner.js';
 import { InputError } from '../errors.js';
 import type { DifferenceMethod } from '../stats/index.js';
-import { runComparison, summarizeComparison, type CompareRequest, type ComparisonResult } from './compare.js';
+import { needsEpisodes, runComparison, summarizeComparison, type CompareRequest, type ComparisonResult } from './compare.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import type { AnalysisProgress } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
@@ -151,7 +151,7 @@ export function analyzeStoredComparison(db: Db, run: RunRecord, onAnalysis?: Ana
   const facts = members.map((m) => m.facts as EnvironmentFacts);
   const buffers = members.map((m, p) => {
     const { returns, lengths, finals } = loadEpisodes(db, m);
-    const buffer = new ReturnsBuffer(returns.length, facts[p].horizon);
+    const buffer = new ReturnsBuffer(returns.length, facts[p].horizon, { keepEpisodes: needsEpisodes(risk) });
     buffer.append(returns, lengths, finals);
     return buffer;
   });

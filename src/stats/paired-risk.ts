@@ -73,7 +73,15 @@ function weightedTailMean(values: Float64Array, order: Uint32Array, weights: Flo
 export function pairedRiskDifferences(
   first: Float64Array,
   second: Float64Array,
-  options: { tail: number; events: readonly EventSpec[]; level: number; seed: number; resamples?: number },
+  options: {
+    tail: number;
+    events: readonly EventSpec[];
+    level: number;
+    seed: number;
+    resamples?: number;
+    /** Per event, whether it happened in each episode of each policy; absent: a return event, told from the returns. */
+    indicators?: readonly (readonly [Uint8Array, Uint8Array] | null)[];
+  },
 ): PairedRiskDifferences {
   requireLevel(options.level);
   const n = Math.min(first.length, second.length);
@@ -82,9 +90,11 @@ export function pairedRiskDifferences(
   const orderOf = (x: Float64Array) => Uint32Array.from({ length: n }, (_, i) => i).sort((i, j) => x[i] - x[j] || i - j);
   const orderA = orderOf(a);
   const orderB = orderOf(b);
-  const indicator = options.events.map((event) => {
+  const indicator = options.events.map((event, e) => {
     const diff = new Int8Array(n);
-    for (let i = 0; i < n; i++) diff[i] = (eventHappens(event, a[i]) ? 1 : 0) - (eventHappens(event, b[i]) ? 1 : 0);
+    const given = options.indicators?.[e];
+    if (given) for (let i = 0; i < n; i++) diff[i] = given[0][i] - given[1][i];
+    else for (let i = 0; i < n; i++) diff[i] = (eventHappens(event, a[i]) ? 1 : 0) - (eventHappens(event, b[i]) ? 1 : 0);
     return diff;
   });
   const tailEstimate = tailMeanEstimate(Float64Array.from(a).sort(), options.tail) - tailMeanEstimate(Float64Array.from(b).sort(), options.tail);

@@ -45,7 +45,10 @@ const files = {
   // The same policy as code, so episodes take the rollout path that calls a policy.
   'half-wait.js': 'export default () => ({ act(state, rng) { return state === "aisle" && rng.uniform() >= 0.5 ? 1 : 0; } });\n',
   'half-wait-code.json': { kind: 'module', path: './half-wait.js' },
+  'straight.json': { kind: 'table', states: { aisle: 'go', dock: 'go' } },
 };
+// Going straight, the episode runs past two steps only by aisle → dock → aisle: 0.8·0.1 = 0.08.
+const P_STRAIGHT_LENGTH_AT_LEAST_3 = 0.08;
 
 describe('terminal and length events', () => {
   const dir = tempFiles(files);
@@ -123,6 +126,24 @@ describe('terminal and length events', () => {
       expect(two.target_event).toStrictEqual(out.target_event);
     }
   }, 120_000);
+
+  it('compare --risk pairs terminal and length events on the same episodes; runs show pairs them again from the store', () => {
+    const store = path.join(tempFiles({}), 'runs.sqlite');
+    const args = ['compare', ...env, '--policy', path.join(dir, 'half-wait.json'), '--policy', path.join(dir, 'straight.json'), '--episodes', '6000', '--seed', '5', '--risk', '--event', 'terminal=crashed', '--event', 'length>=3'];
+    const out = json(reckon([...args, '--json', '--store', store]));
+    const [crashed, long] = out.differences[0].risk.events;
+    expect(crashed.event).toBe('terminal=crashed');
+    // Waiting moves no mass: both policies crash with probability 5/23, so the difference is 0.
+    expect(crashed.low).toBeLessThanOrEqual(0);
+    expect(crashed.high).toBeGreaterThanOrEqual(0);
+    const difference = P_LENGTH_AT_LEAST_3 - P_STRAIGHT_LENGTH_AT_LEAST_3;
+    expect(long.low).toBeLessThanOrEqual(difference);
+    expect(long.high).toBeGreaterThanOrEqual(difference);
+    const shown = json(reckon(['runs', 'show', out.run_id, '--risk', '--event', 'terminal=crashed', '--event', 'length>=3', '--json', '--store', store]));
+    expect(shown.differences[0].risk).toStrictEqual(out.differences[0].risk);
+    const text = reckon([...args, '--no-store']);
+    expect(text.stdout).toMatch(/P\(terminal=crashed\)/);
+  });
 
   it('a gridworld terminal is named by its cell letter; a module environment refuses terminal events', () => {
     const lane = ['--env', path.join(ENVS, 'loading-lane.json'), '--policy', path.join(ENVS, 'lane-explorer.json')];
