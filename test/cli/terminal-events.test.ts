@@ -8,7 +8,7 @@ import { ENVS, reckon, tempFiles } from './run-cli.js';
  * `terminal=X` and length events: counted from where each episode ended, identical across
  * rollout paths, workers, resume and merge, and checked against absorption probabilities
  * worked out by hand (first-step analysis of an absorbing Markov chain: Grinstead & Snell,
- * Introduction to Probability, 1997, §11.2, Theorem 11.6, B = NR).
+ * Introduction to Probability, 1997, §11.2, B = NR; the theorem number 11.6 from memory).
  */
 function json(result: { code: number | null; stdout: string; stderr: string }) {
   if (result.code !== 0) throw new Error(`exit ${result.code}: ${result.stderr}`);
