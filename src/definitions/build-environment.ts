@@ -2,6 +2,7 @@
 import type { BuiltEnvironment, DefinitionSource } from './built.js';
 import { compileGridworld } from './gridworld.js';
 import { buildModuleEnvironment } from './module-environment.js';
+import { buildProcessEnvironment } from './process-environment.js';
 import type { EnvironmentDefinition } from './schemas.js';
 import { compileTabular } from './tabular.js';
 
@@ -13,5 +14,7 @@ export async function buildEnvironment(def: EnvironmentDefinition, source: Defin
       return { kind: 'finite', mdp: compileTabular(def, source) };
     case 'module':
       return buildModuleEnvironment(def, source);
+    case 'process':
+      return buildProcessEnvironment(def, source);
   }
 }

@@ -11,6 +11,7 @@ import { buildArrowsPolicy } from './arrows-policy.js';
 import type { ActingPolicy, BuiltEnvironment, BuiltPolicy, DefinitionSource } from './built.js';
 import { buildModulePolicy, environmentActions } from './module-policy.js';
 import { parsePolicy } from './parse.js';
+import { buildProcessPolicy } from './process-policy.js';
 import { epsilonMix, matrixFromRows, uniformRow } from './policy-matrix.js';
 import { isPolicyReference, type EpsilonPolicyDefinition, type PolicyDefinition, type PolicyReference } from './policy-schema.js';
 import { readDefinitionFile } from './read-file.js';
@@ -40,8 +41,15 @@ async function buildPolicyInChain(
       return buildArrowsPolicy(def, env.mdp, source);
     case 'module':
       return buildModulePolicy(def, env, source);
-    case 'epsilon':
-      return epsilonPolicy(def, env, await buildBase(def.base, env, source, chain));
+    case 'process':
+      return buildProcessPolicy(def, env, source);
+    case 'epsilon': {
+      const base = await buildBase(def.base, env, source, chain);
+      if (base.kind === 'code' && base.inProcess) {
+        throw new InputError(source.label, 'base: a "process" policy runs whole episodes inside its program, so it cannot be the base of an epsilon policy; mix the noise into the Python policy instead');
+      }
+      return epsilonPolicy(def, env, base);
+    }
   }
 }
 

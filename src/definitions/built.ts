@@ -1,5 +1,6 @@
 import type { Environment, Rng } from '../plugin.js';
 import type { FiniteMdp, PolicyMatrix } from './finite-mdp.js';
+import type { ProcessConnection } from './process-connection.js';
 
 /** Where a definition came from: `label` prefixes every error message; `baseDir` resolves relative paths. */
 export interface DefinitionSource {
@@ -26,6 +27,17 @@ export interface ModuleEnvironment {
   readonly horizon: number;
   readonly horizonDerived: boolean;
   readonly rewardRange: readonly [number, number] | null;
+  /** Set when the environment is a program of its own (`"kind": "process"`). */
+  readonly process?: ProcessLink;
+}
+
+/** A process environment's program: how it was started, what it serves, and (on a worker) the live connection. */
+export interface ProcessLink {
+  /** The program's name in messages and as the prefix of its stderr lines. */
+  readonly label: string;
+  readonly policies: readonly string[];
+  /** Kept open only on the threads that run episodes (keepProcessConnections). */
+  readonly connection: ProcessConnection | null;
 }
 
 /**
@@ -51,6 +63,8 @@ export interface CodePolicy {
    * a module policy without `probabilities`.
    */
   readonly probabilitiesAt?: (state: unknown) => Float64Array;
+  /** Set for a policy that acts inside a process environment's program (`"kind": "process"`). */
+  readonly inProcess?: { readonly name: string; readonly options: Record<string, unknown> };
 }
 
 /** Chooses an action index for a state; `stateName` is the env's name for it (for table lookups). */

@@ -26,6 +26,19 @@ export async function buildModuleEnvironment(
   } catch (e) {
     throw new InputError(source.label, `${label} threw while being created: ${(e as Error)?.message ?? e}`, { cause: e });
   }
+  return checkedCodeEnvironment(env, def.truncation_tolerance, label, source);
+}
+
+/**
+ * What a code environment declared, checked against the plug-in interface, with its horizon
+ * resolved: shared by module environments and process environments (process-environment.ts).
+ */
+export function checkedCodeEnvironment(
+  env: Environment,
+  truncationTolerance: number | undefined,
+  label: string,
+  source: DefinitionSource,
+): ModuleEnvironment {
   const checked = pluginEnvironmentSchema.safeParse(env);
   if (!checked.success) {
     throw new InputError(source.label, `${label}: ${describeIssues(checked.error.issues, env)}`, { cause: checked.error });
@@ -46,7 +59,7 @@ export async function buildModuleEnvironment(
     env.discount,
     env.horizon,
     maxAbsReward,
-    def.truncation_tolerance ?? DEFAULT_TRUNCATION_TOLERANCE,
+    truncationTolerance ?? DEFAULT_TRUNCATION_TOLERANCE,
     source.label,
   );
   return {

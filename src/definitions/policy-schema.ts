@@ -6,6 +6,7 @@ import { z } from 'zod';
 import { formatNumber } from './describe-value.js';
 import { modulePolicySchema, type ModulePolicyDefinition } from './module-schema.js';
 import { problem, reportProblems } from './problems.js';
+import { processPolicySchema, type ProcessPolicyDefinition } from './process-schema.js';
 import { describedFields, epsilonSchema, isSingleCharacter, strictObject, SUM_TOLERANCE, weightSchema } from './schema-parts.js';
 
 /** `{action: probability}`: non-negative, summing to 1 within {@link SUM_TOLERANCE}. */
@@ -59,12 +60,13 @@ export interface ArrowsPolicyDefinition {
   /** Extra or overriding symbols: an action, a distribution, or "uniform". */
   key: Record<string, ActionChoice>;
 }
-export type { ModulePolicyDefinition };
+export type { ModulePolicyDefinition, ProcessPolicyDefinition };
 export type PolicyDefinition =
   | UniformPolicyDefinition
   | TablePolicyDefinition
   | EpsilonPolicyDefinition
   | ModulePolicyDefinition
+  | ProcessPolicyDefinition
   | ArrowsPolicyDefinition;
 
 const uniformPolicySchema = strictObject({ kind: z.literal('uniform'), ...describedFields });
@@ -106,6 +108,7 @@ export const policySchema: z.ZodType<PolicyDefinition> = z.discriminatedUnion('k
   tablePolicySchema,
   epsilonPolicySchema,
   modulePolicySchema,
+  processPolicySchema,
   arrowsPolicySchema,
 ]);
 

@@ -5,6 +5,7 @@
 import { z } from 'zod';
 import { gridworldSchema, type GridworldDefinition } from './gridworld-schema.js';
 import { moduleEnvironmentSchema, type ModuleEnvironmentDefinition } from './module-schema.js';
+import { processEnvironmentSchema, type ProcessEnvironmentDefinition } from './process-schema.js';
 import { tabularSchema, type TabularDefinition } from './tabular-schema.js';
 
 export { policySchema, policyReferenceSchema, actionChoiceSchema, distributionSchema } from './policy-schema.js';
@@ -13,18 +14,20 @@ export type {
   ArrowsPolicyDefinition,
   EpsilonPolicyDefinition,
   ModulePolicyDefinition,
+  ProcessPolicyDefinition,
   PolicyDefinition,
   PolicyReference,
   TablePolicyDefinition,
   UniformPolicyDefinition,
 } from './policy-schema.js';
-export { gridworldSchema, tabularSchema, moduleEnvironmentSchema };
-export type { GridworldDefinition, TabularDefinition, ModuleEnvironmentDefinition };
+export { gridworldSchema, tabularSchema, moduleEnvironmentSchema, processEnvironmentSchema };
+export type { GridworldDefinition, TabularDefinition, ModuleEnvironmentDefinition, ProcessEnvironmentDefinition };
 
-export type EnvironmentDefinition = GridworldDefinition | TabularDefinition | ModuleEnvironmentDefinition;
+export type EnvironmentDefinition = GridworldDefinition | TabularDefinition | ModuleEnvironmentDefinition | ProcessEnvironmentDefinition;
 
 export const environmentSchema: z.ZodType<EnvironmentDefinition> = z.discriminatedUnion('kind', [
   gridworldSchema,
   tabularSchema,
   moduleEnvironmentSchema,
+  processEnvironmentSchema,
 ]);

@@ -8,7 +8,9 @@
  * Position codes: -1 the environment's reset, 2t the policy at step t, 2t + 1 the
  * environment's step t.
  */
-export const CLOCK_SLOTS = 2;
+export const CLOCK_SLOTS = 3;
+/** Slot of the clock where a worker that runs a process environment writes its program's pid (0: none). */
+export const CLOCK_PID = 2;
 
 /**
  * Bytes of a clock's buffer, far more than its slots need. Each worker writes its clock twice

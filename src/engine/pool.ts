@@ -9,7 +9,7 @@ import { rolloutTables } from './finite-rollout.js';
 import type { TableWorkerData } from './table-worker.js';
 import type { RolloutSpec } from './spec.js';
 import type { FromWorker } from './worker-messages.js';
-import { newClockBuffer } from './plugin-clock.js';
+import { CLOCK_PID, newClockBuffer } from './plugin-clock.js';
 import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-watch.js';
 import type { CodeWorkerData } from './worker.js';
 import { EarlyWorkers } from './early-workers.js';
@@ -153,6 +153,30 @@ export function workerUrl(file: string): string {
   return path.join(path.dirname(here), file);
 }
 
+function isProcessSpec(spec: RolloutSpec): boolean {
+  return (spec.env.json as { kind?: unknown } | null)?.kind === 'process';
+}
+
+/**
+ * A process environment's worker times its program out itself and asks it where it hung;
+ * the pool's own watch on the thread then only backs that up (a policy of ours stuck in JS).
+ */
+const PROCESS_WATCH_GRACE_SECONDS = 3;
+
+/** Ends the programs of process environments whose threads were terminated (one that hung would live on). */
+function killPrograms(clocks: readonly SharedArrayBuffer[]): void {
+  for (const buffer of clocks) {
+    const pid = new Float64Array(buffer)[CLOCK_PID];
+    if (pid > 0) {
+      try {
+        process.kill(pid, 'SIGKILL');
+      } catch {
+        // already gone
+      }
+    }
+  }
+}
+
 /**
  * What the worker threads run. A finite MDP with a tabulated policy, compiled once in this
  * thread, goes to light workers (table-worker.ts) as its tables: they skip the definitions
@@ -214,6 +238,9 @@ async function runThreaded(
   let failure: Error | null = null;
   let wake: (() => void) | null = null;
   const watches: StepWatch[] = [];
+  const clocks: SharedArrayBuffer[] = [];
+  const stepTimeout = options.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS;
+  const watchTimeout = stepTimeout + (isProcessSpec(spec) ? PROCESS_WATCH_GRACE_SECONDS : 0);
   /** Set once a stopped run has waited long enough for the blocks still running. */
   let abandoned = false;
 
@@ -261,14 +288,17 @@ async function runThreaded(
     timings.push(timing);
     let lastArrival = 0;
     let inHand = 0;
-    if (clock) watches.push(new StepWatch(clock, () => inHand > 0));
+    if (clock) {
+      watches.push(new StepWatch(clock, () => inHand > 0));
+      clocks.push(clock);
+    }
     /** Gives the worker blocks up to two in hand; one near the end, where queued work could not move to an idle thread. */
     const issue = () => {
       const wanted = end - next > 4 * workerCount * sizer.size ? 2 : 1;
       while (inHand < wanted) {
         const range = take(sizer.size);
         if (!range) return;
-        worker.postMessage({ type: 'run', first: range.first, count: range.count });
+        worker.postMessage({ type: 'run', first: range.first, count: range.count, stepTimeout });
         inFlight++;
         inHand++;
       }
@@ -314,15 +344,14 @@ async function runThreaded(
   };
   if (options.signal?.aborted) onAbort();
   options.signal?.addEventListener('abort', onAbort);
-  const stepTimeout = options.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS;
   const watchTimer = watches.length
     ? setInterval(() => {
         const now = performance.now();
         for (const watch of watches) {
-          const hang = watch.check(now, stepTimeout);
+          const hang = watch.check(now, watchTimeout);
           if (hang) fail(hang);
         }
-      }, watchInterval(stepTimeout))
+      }, watchInterval(watchTimeout))
     : undefined;
   try {
     const sizer = callerSizer;
@@ -353,6 +382,7 @@ async function runThreaded(
     clearTimeout(graceTimer);
     clearInterval(watchTimer);
     for (const t of threads) void t.terminate();
+    killPrograms(clocks);
   }
   if (callerTiming) recordCallerTimes(callerTiming, callerTimes0);
   const runEnd = sharedClock();

@@ -1,5 +1,10 @@
 import { parseEnvironment, parsePolicy, buildEnvironment, buildPolicy } from '../definitions/index.js';
-import type { BuiltEnvironment, BuiltPolicy } from '../definitions/built.js';
+import type { BuiltEnvironment, BuiltPolicy, CodePolicy, ModuleEnvironment } from '../definitions/built.js';
+import type { ProcessConnection } from '../definitions/process-connection.js';
+import { isCodeKind } from '../definitions/process-schema.js';
+import { CLOCK_PID, pluginClock } from './plugin-clock.js';
+import { rolloutProcessEpisodes } from './process-episodes.js';
+import { rolloutProcessSteps } from './process-steps.js';
 import { InputError } from '../errors.js';
 import type { EpisodeBlock } from './episode-block.js';
 import { rolloutFinite, rolloutFiniteActing } from './finite-rollout.js';
@@ -15,6 +20,11 @@ export interface PreparedRollout {
   readonly startIndex: number;
   /** Runs the block's episodes, fills its arrays, returns the number of steps taken. */
   runBlock(block: EpisodeBlock): number;
+  /**
+   * For a process environment, in place of runBlock (which throws): the same, waiting on the
+   * program; `stepTimeout` is how long it may stay silent. Only worker threads run it.
+   */
+  runBlockAsync?: (block: EpisodeBlock, stepTimeout: number) => Promise<number>;
 }
 
 export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout> {
@@ -48,6 +58,7 @@ export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout
   }
 
   if (policy.kind !== 'code') throw new Error('a policy on a code environment must act through code');
+  if (env.process) return prepareProcessRollout(spec, env, policy);
   const startName = spec.start;
   if (startName !== null) {
     if (typeof env.env.stateFromName !== 'function') {
@@ -63,12 +74,52 @@ export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout
   return { env, policy, startIndex: -1, runBlock: (block) => rolloutModule(env, acting, seed, startName, block) };
 }
 
+/** A process environment: reckon's policy acting step by step, or a policy of its program running whole episodes. */
+async function prepareProcessRollout(spec: RolloutSpec, env: ModuleEnvironment, policy: CodePolicy): Promise<PreparedRollout> {
+  if (spec.start !== null) {
+    throw new InputError('--start', `${spec.env.source.label} is a process environment: its episodes start where its reset(seed) puts them`);
+  }
+  const seed = spec.seed;
+  const noProgram = (): never => {
+    throw new Error('a process environment runs on worker threads only (engine/pool.ts)');
+  };
+  const base = { env, policy, startIndex: -1, runBlock: noProgram };
+  const connection = env.process!.connection;
+  if (connection === null) return base;
+  pluginClock()[CLOCK_PID] = connection.pid;
+  const inProcess = policy.inProcess;
+  if (!inProcess) {
+    const acting = policy.acting;
+    return { ...base, runBlockAsync: (block, stepTimeout) => rolloutProcessSteps(env, connection, acting, seed, block, stepTimeout) };
+  }
+  await openProcessPolicy(connection, inProcess, spec.policy.source.label, env.process!.label);
+  return { ...base, runBlockAsync: (block, stepTimeout) => rolloutProcessEpisodes(env, connection, inProcess.name, seed, block, stepTimeout) };
+}
+
+/** Asks the program to create the policy (its make_policy): a failure there is the policy file's error. */
+async function openProcessPolicy(connection: ProcessConnection, policy: { name: string; options: Record<string, unknown> }, where: string, label: string): Promise<void> {
+  connection.send(JSON.stringify({ op: 'policy', name: policy.name, options: policy.options }));
+  let answer: Record<string, unknown>;
+  try {
+    answer = await connection.receive(60);
+  } catch (e) {
+    throw new InputError(where, `policy "${policy.name}" of ${label}: ${(e as Error).message}`);
+  }
+  const error = answer.error as { message?: string; traceback?: string[]; what?: string } | undefined;
+  if (error) {
+    const trace = error.traceback?.length ? `\n  ${error.traceback.join('\n  ')}` : '';
+    const how = error.what === 'threw' ? 'threw while being created' : 'was refused';
+    throw new InputError(where, `policy "${policy.name}" of ${label} ${how}: ${error.message}${trace}`);
+  }
+}
+
 /**
  * Visit-keyed noise addresses draws by state index, which only a finite environment has; a
  * module environment's states are its own values. Refused before its code is loaded.
  */
 export function refuseVisitNoiseOnModule(spec: Pick<RolloutSpec, 'env' | 'noise'>): void {
-  if (spec.noise === 'visit' && (spec.env.json as { kind?: unknown } | null)?.kind === 'module') {
-    throw new InputError('--noise', `visit needs a finite environment (gridworld or tabular), and ${spec.env.source.label} is a module environment; use --noise step`);
+  if (spec.noise === 'visit' && isCodeKind(spec.env.json)) {
+    const kind = (spec.env.json as { kind: string }).kind;
+    throw new InputError('--noise', `visit needs a finite environment (gridworld or tabular), and ${spec.env.source.label} is a ${kind} environment; use --noise step`);
   }
 }

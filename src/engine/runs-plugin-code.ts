@@ -1,12 +1,13 @@
 import { readFileSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
+import { isCodeKind } from '../definitions/process-schema.js';
 import type { RolloutSpec } from './spec.js';
 
 /** Deeper chains of `base.path` than this are left to the policy builder, which names the loop. */
 const MAX_BASE_DEPTH = 16;
 
 /**
- * Whether building this spec calls user code: a module environment, or a module policy
+ * Whether building this spec calls user code: a module or process environment, or a module policy
  * anywhere in the chain of epsilon bases (inline or by `base.path`). Such a spec is only ever
  * built on worker threads, since a module's top level or factory that never returns would
  * otherwise hold the thread that answers Ctrl-C. Decided from the JSON alone, before any
@@ -14,7 +15,8 @@ const MAX_BASE_DEPTH = 16;
  * spec reports it.
  */
 export function runsPluginCode(spec: Pick<RolloutSpec, 'env' | 'policy'>): boolean {
-  if (kindOf(spec.env.json) === 'module') return true;
+  // A process environment starts a program (its make_env may never answer) and runs its episodes there.
+  if (isCodeKind(spec.env.json)) return true;
   return policyRunsCode(spec.policy.json, spec.policy.source.baseDir, 0);
 }
 

@@ -1,5 +1,6 @@
 import type { MessagePort } from 'node:worker_threads';
 import { newBlock, type EpisodeBlock } from './episode-block.js';
+import { DEFAULT_STEP_TIMEOUT_SECONDS } from './step-watch.js';
 import { threadTimes } from './thread-times.js';
 import type { FromWorker, ToWorker } from './worker-messages.js';
 
@@ -20,18 +21,14 @@ function wallClock(): number {
  * Each message carries the thread's timings (start-up, busy and idle time, its own CPU), so
  * the pool can tell where a run's time went.
  */
-export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock) => number): void {
+export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock, stepTimeout: number) => number | Promise<number>): void {
   const send = (message: FromWorker, transfer: ArrayBuffer[] = []) => port.postMessage(message, transfer);
   let lastEnd = wallClock();
-  port.on('message', (message: ToWorker) => {
-    if (message.type === 'stop') {
-      port.close();
-      return;
-    }
+  const run = async (message: Extract<ToWorker, { type: 'run' }>) => {
     try {
       const block = newBlock(message.first, message.count);
       const start = wallClock();
-      const steps = runBlock(block);
+      const steps = await runBlock(block, message.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS);
       const end = wallClock();
       const times = threadTimes();
       send(
@@ -55,6 +52,15 @@ export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock) =
     } catch (e) {
       send(describeError(e));
     }
+  };
+  // Blocks that wait on a program (process environments) run one after another, in the order asked.
+  let queue: Promise<void> = Promise.resolve();
+  port.on('message', (message: ToWorker) => {
+    if (message.type === 'stop') {
+      port.close();
+      return;
+    }
+    queue = queue.then(() => run(message));
   });
   lastEnd = wallClock();
   send({ type: 'ready', at: lastEnd, cpuSeconds: threadTimes()?.cpuSeconds ?? null });

@@ -1,5 +1,6 @@
 /** Messages between the pool and its worker threads. */
-export type ToWorker = { type: 'run'; first: number; count: number } | { type: 'stop' };
+/** `stepTimeout`: seconds a process environment's program may stay silent (the pool's --step-timeout). */
+export type ToWorker = { type: 'run'; first: number; count: number; stepTimeout?: number } | { type: 'stop' };
 
 /**
  * What a worker thread says. The timing fields feed the pool's per-thread timings

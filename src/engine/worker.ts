@@ -3,6 +3,7 @@
  * request and sends the results back (buffers transferred, not copied).
  */
 import { parentPort, workerData } from 'node:worker_threads';
+import { keepProcessConnections } from '../definitions/process-environment.js';
 import { shareClock } from './plugin-clock.js';
 import { prepareRollout } from './prepare.js';
 import type { RolloutSpec } from './spec.js';
@@ -18,8 +19,9 @@ const port = parentPort;
 if (!port) throw new Error('worker.js must run as a worker thread');
 const data = workerData as CodeWorkerData;
 shareClock(data.clock);
+keepProcessConnections(); // this thread runs the episodes: its process environment's program stays up
 
 prepareRollout(data.spec).then(
-  (prepared) => serveBlocks(port, (block) => prepared.runBlock(block)),
+  (prepared) => serveBlocks(port, prepared.runBlockAsync ?? ((block) => prepared.runBlock(block))),
   (e) => port.postMessage(describeError(e)),
 );

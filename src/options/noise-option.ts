@@ -1,4 +1,5 @@
 import type { NoiseMode } from '../engine/noise.js';
+import { isCodeKind } from '../definitions/process-schema.js';
 import { parseOption } from './parse-option.js';
 
 /**
@@ -10,10 +11,10 @@ export const DEFAULT_NOISE = { estimate: 'step', compare: 'step' } as const sati
 
 /**
  * `--noise` (command line) or `noise` (HTTP), checked by the one schema. Without it, the
- * command's default; a module environment, which visit noise cannot key, defaults to step.
+ * command's default; a module or process environment, which visit noise cannot key, defaults to step.
  */
 export function noiseMode(text: string | undefined, command: keyof typeof DEFAULT_NOISE, envJson: unknown): NoiseMode {
   if (text !== undefined) return parseOption('noise', 'noise', text);
-  if ((envJson as { kind?: unknown } | null)?.kind === 'module') return 'step';
+  if (isCodeKind(envJson)) return 'step';
   return DEFAULT_NOISE[command];
 }

@@ -1,8 +1,8 @@
 import { InputError } from '../errors.js';
 
 /**
- * Over HTTP a definition must be data only: a `module` kind would make the server import and
- * run code from a request, and a `"path"` would let a request name files on the server's disk
+ * Over HTTP a definition must be data only: a `module` or `process` kind would make the server
+ * import or start code from a request, and a `"path"` would let a request name files on the server's disk
  * (an epsilon policy's `base.path`). Both are refused with the place they occur.
  */
 export function refuseCodeAndPaths(json: unknown, field: 'env' | 'policy' | 'behaviour', trail: string[] = []): void {
@@ -13,8 +13,8 @@ export function refuseCodeAndPaths(json: unknown, field: 'env' | 'policy' | 'beh
   if (json === null || typeof json !== 'object') return;
   const record = json as Record<string, unknown>;
   const at = trail.length ? ` (at ${trail.join('').replace(/^\./, '')})` : '';
-  if (record.kind === 'module') {
-    throw new InputError(field, `"kind": "module" runs code, so the server refuses it${at}; evaluate it with 'reckon estimate' on the command line`);
+  if (record.kind === 'module' || record.kind === 'process') {
+    throw new InputError(field, `"kind": "${record.kind}" runs code, so the server refuses it${at}; evaluate it with 'reckon estimate' on the command line`);
   }
   if ('path' in record) {
     throw new InputError(field, `"path" names a file, and the server accepts no file paths${at}; give the definition inline instead (e.g. "base": { "kind": ... })`);

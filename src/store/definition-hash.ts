@@ -44,7 +44,10 @@ export function visitPaths(json: unknown, visit: (relative: string) => void): vo
   } else if (json !== null && typeof json === 'object') {
     for (const [key, value] of Object.entries(json)) {
       if (key === 'path' && typeof value === 'string') visit(value);
-      else visitPaths(value, visit);
+      else if (key === 'command' && Array.isArray(value)) {
+        // A process environment's program: its files are the arguments given relative to the definition.
+        for (const arg of value) if (typeof arg === 'string' && (arg.startsWith('./') || arg.startsWith('../'))) visit(arg);
+      } else visitPaths(value, visit);
     }
   }
 }

@@ -9,12 +9,12 @@ export interface RunExactValues {
   readonly states: Float64Array;
 }
 
-/** True when a definition names code anywhere (a module environment or policy, or a base). */
+/** True when a definition names code anywhere (a module or process environment or policy, or a base). */
 export function namesCode(json: unknown): boolean {
   if (Array.isArray(json)) return json.some(namesCode);
   if (json === null || typeof json !== 'object') return false;
   const record = json as Record<string, unknown>;
-  if (record.kind === 'module') return true;
+  if (record.kind === 'module' || record.kind === 'process') return true;
   return Object.values(record).some(namesCode);
 }
 

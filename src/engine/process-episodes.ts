@@ -1,0 +1,65 @@
+import type { ModuleEnvironment } from '../definitions/built.js';
+import type { ProcessConnection } from '../definitions/process-connection.js';
+import { PluginError } from '../errors.js';
+import type { EpisodeBlock } from './episode-block.js';
+import { pluginClock } from './plugin-clock.js';
+import { helperFailure, processFailure, type HelperError } from './process-failure.js';
+import { episodeSeed } from './process-seeds.js';
+import { STREAM } from './streams.js';
+
+/**
+ * The episode path: a policy of the environment's own program acts, so whole episodes run
+ * inside the program. One message asks for the block's episodes with their two 64-bit seeds
+ * each (ENV and POLICY streams of the episode); the program answers with returns and lengths,
+ * in pieces at least every 50 ms while it works, so a silence longer than `--step-timeout`
+ * means a call that does not return. The helper sums each return in step order
+ * (g += w·r; w *= γ), as reckon's rollouts do.
+ */
+export async function rolloutProcessEpisodes(
+  built: ModuleEnvironment,
+  connection: ProcessConnection,
+  policyName: string,
+  seed: number,
+  block: EpisodeBlock,
+  stepTimeout: number,
+): Promise<number> {
+  const label = built.process!.label;
+  const { returns, lengths, first, count } = block;
+  const clock = pluginClock();
+  const items = new Array<string>(count);
+  for (let i = 0; i < count; i++) {
+    items[i] = `[${episodeSeed(seed, STREAM.ENV, first + i)},${episodeSeed(seed, STREAM.POLICY, first + i)}]`;
+  }
+  let received = 0;
+  const placeOf = (index: number, step: number) => ({ episode: first + index, step: Math.max(0, step) });
+  clock[0] = first;
+  clock[1] = -1;
+  connection.send(`{"op":"episodes","policy":${JSON.stringify(policyName)},"items":[${items.join(',')}]}`);
+  let steps = 0;
+  for (;;) {
+    let reply: Record<string, unknown>;
+    try {
+      reply = await connection.receive(stepTimeout);
+    } catch (e) {
+      throw processFailure(e, placeOf, { episode: first + received, step: 0 }, label);
+    }
+    if (reply.error) throw helperFailure(reply.error as HelperError, (index, step) => placeOf(index, step), label);
+    const partReturns = reply.returns as number[];
+    const partLengths = reply.lengths as number[];
+    if (!Array.isArray(partReturns) || !Array.isArray(partLengths) || partReturns.length !== partLengths.length || received + partReturns.length > count) {
+      throw new PluginError(`the environment (${label})`, first + received, 0, new Error(`answered ${JSON.stringify(reply).slice(0, 80)} to a request for ${count} episodes`), 'broke the protocol');
+    }
+    for (let k = 0; k < partReturns.length; k++) {
+      returns[received] = partReturns[k];
+      lengths[received] = partLengths[k];
+      steps += partLengths[k];
+      received++;
+    }
+    clock[0] = first + received;
+    if (reply.more !== true) break;
+  }
+  if (received !== count) {
+    throw new PluginError(`the environment (${label})`, first + received, 0, new Error(`returned ${received} of ${count} episodes`), 'broke the protocol');
+  }
+  return steps;
+}
