@@ -97,23 +97,27 @@ DIRECT = {(r, c): "^v<>".index(ch) for r, row in enumerate(DIRECT_ARROWS) for c,
 
 
 class Route:
-    """Follows a route; in a cell the route does not list, a uniform action."""
+    """Follows a route; in a cell the route does not list, or with probability epsilon, a uniform action."""
 
-    def __init__(self, route, actions):
+    def __init__(self, route, actions, epsilon=0.0):
         self.route = route
         self.count = len(actions)
+        self.epsilon = epsilon
 
     def act(self, cell, rng):
+        if self.epsilon and rng.random() < self.epsilon:
+            return int(rng.random() * self.count)
         action = self.route.get(cell)
         return action if action is not None else int(rng.random() * self.count)
 
 
 def make_careful(options, actions):
-    return Route(CAREFUL, actions)
+    return Route(CAREFUL, actions, float(options.get("epsilon", 0)))
 
 
 def make_direct(options, actions):
-    return Route(DIRECT, actions)
+    return Route(DIRECT, actions, float(options.get("epsilon", 0)))
 
 
-serve(Warehouse, policies={"careful": make_careful, "direct": make_direct})
+if __name__ == "__main__":
+    serve(Warehouse, policies={"careful": make_careful, "direct": make_direct})
