@@ -91,10 +91,33 @@ def _tail(lines):
     return text[-TRACEBACK_LINES:]
 
 
+def _users_frames(frames):
+    """The frames of a traceback or stack that are the user's code, not this helper's."""
+    return [f for f in frames if os.path.abspath(f.filename) != _HERE]
+
+
 def _threw(call, error):
-    lines = traceback.format_exception(type(error), error, error.__traceback__)
-    # The helper's own frame is not the user's concern: drop it from the excerpt.
+    frames = _users_frames(traceback.extract_tb(error.__traceback__))
+    lines = traceback.format_list(frames) + traceback.format_exception_only(type(error), error)
     return _Failure(call, "%s: %s" % (type(error).__name__, error), "threw", _tail(lines))
+
+
+_HERE = os.path.abspath(__file__)
+# Which call a helper frame makes into the user's code, when the innermost helper frame is it.
+_CALL_OF_FRAME = {"_step": "step", "_reset": "reset", "_name": "state_name", "_new_env": "make_env", "episodes": "act", "policy": "make_policy"}
+
+
+def _hang_report(frame, pos):
+    """Where the program is stuck: the call into the user's code and the user's frames."""
+    inner = None
+    f = frame
+    while f is not None:
+        if os.path.abspath(f.f_code.co_filename) == _HERE:
+            inner = f.f_code.co_name
+            break
+        f = f.f_back
+    frames = _users_frames(traceback.extract_stack(frame))
+    return {"index": pos[0], "step": pos[1], "call": _CALL_OF_FRAME.get(inner, "step"), "traceback": _tail(traceback.format_list(frames))}
 
 
 def _describe(value):
@@ -226,7 +249,7 @@ class _Bridge:
                 return index
         except (TypeError, ValueError):
             pass
-        raise _Failure("act", "chose action %s, not one of 0..%d (or a name among %s)" % (_describe(chosen), n - 1, ", ".join(self.actions)), "returned")
+        raise _Failure("act", "%s is not one of 0..%d (nor a name among %s)" % (_describe(chosen), n - 1, ", ".join(self.actions)), "chose a bad action")
 
     # -- the two ways to act -------------------------------------------------------------
     def step(self, message):
@@ -311,8 +334,7 @@ def serve(make_env, policies=None):
             view = view[written:]
 
     def on_hang_signal(signum, frame):
-        stack = traceback.format_stack(frame)
-        send({"hung": {"index": bridge.pos[0], "step": bridge.pos[1], "traceback": _tail(stack)}})
+        send({"hung": _hang_report(frame, bridge.pos)})
         os._exit(3)
 
     if hasattr(signal, "SIGUSR1"):

@@ -30,6 +30,8 @@ export type ProcessFault =
 export interface HangReport {
   readonly index: number;
   readonly step: number;
+  /** The call into the user's code it is stuck in: reset, step, act, state_name, make_env. */
+  readonly call?: string;
   readonly traceback: readonly string[];
 }
 

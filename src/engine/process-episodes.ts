@@ -41,7 +41,8 @@ export async function rolloutProcessEpisodes(
     try {
       reply = await connection.receive(stepTimeout);
     } catch (e) {
-      throw processFailure(e, placeOf, { episode: first + received, step: 0 }, label);
+      const span = received + 1 === count ? `episode ${first + received}` : `episodes ${first + received} to ${first + count - 1}`;
+      throw processFailure(e, placeOf, { episode: first + received, step: 0 }, label, span);
     }
     if (reply.error) throw helperFailure(reply.error as HelperError, (index, step) => placeOf(index, step), label);
     const partReturns = reply.returns as number[];

@@ -38,8 +38,13 @@ export function helperFailure(error: HelperError, placeOf: PlaceOf, label: strin
   return new PluginError(plugin, place.episode, place.step, withTraceback(error.message, error.traceback), error.what ?? 'threw');
 }
 
-/** A fault of the program itself (it died, printed stray text, answered late). */
-export function processFailure(e: unknown, placeOf: PlaceOf, fallback: { episode: number; step: number }, label: string): unknown {
+/**
+ * A fault of the program itself (it died, printed stray text, answered late). A program that
+ * answers late is asked where it is; one that died cannot say, so the message names the
+ * episodes it was working on (`span`, e.g. "episodes 32 to 159"), and the error's episode is
+ * the first of them.
+ */
+export function processFailure(e: unknown, placeOf: PlaceOf, fallback: { episode: number; step: number }, label: string, span: string): unknown {
   if (!(e instanceof ProcessFaultError)) return e;
   const fault = e.fault;
   const plugin = `the environment (${label})`;
@@ -47,8 +52,10 @@ export function processFailure(e: unknown, placeOf: PlaceOf, fallback: { episode
     const hung: HangReport | null = fault.hung;
     const place = hung ? placeOf(hung.index, hung.step) : fallback;
     const where = hung && hung.traceback.length ? withTraceback(`${e.message}; it was here:`, hung.traceback) : e;
-    return new PluginError(plugin, place.episode, place.step, where, 'hung');
+    return new PluginError((hung?.call && CALLS[hung.call]) || plugin, place.episode, place.step, where, 'hung');
   }
   const what = fault.kind === 'garbage' ? 'broke the protocol' : 'died';
-  return new PluginError(plugin, fallback.episode, fallback.step, e, what);
+  const error = new PluginError(plugin, fallback.episode, fallback.step, e, what);
+  error.message = `${plugin} ${what} while running ${span}: ${e.message}`;
+  return error;
 }

@@ -97,7 +97,7 @@ export async function rolloutProcessSteps(
       connection.send(`{"op":"step","cmds":[${commands.join(',')}]}`);
       reply = await connection.receive(stepTimeout);
     } catch (e) {
-      throw processFailure(e, placeOf, placeOf(0), label);
+      throw processFailure(e, placeOf, placeOf(0), label, stepSpan(commandSlots, n, slotEpisode, first));
     }
     if (reply.error) throw helperFailure(reply.error as HelperError, placeOf, label);
     const results = reply.r as unknown[];
@@ -134,4 +134,12 @@ export async function rolloutProcessSteps(
     finished++;
     startNext(s);
   }
+}
+
+/** The episodes one step message carried, for a program that died on it: "episodes 3, 5 and 9 side by side". */
+function stepSpan(commandSlots: Int32Array, n: number, slotEpisode: Int32Array, first: number): string {
+  const episodes = Array.from(commandSlots.subarray(0, n), (s) => first + slotEpisode[s]).sort((a, b) => a - b);
+  if (episodes.length === 1) return `episode ${episodes[0]}`;
+  const shown = episodes.length > 6 ? `${episodes.slice(0, 5).join(', ')}, … ${episodes[episodes.length - 1]}` : episodes.join(', ');
+  return `a step of episodes ${shown} (side by side)`;
 }

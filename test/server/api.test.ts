@@ -144,6 +144,8 @@ describe('review server API (fastify inject)', () => {
       { env: grid, policy: { kind: 'module', path: './p.js' } },
       { env: grid, policy: { kind: 'epsilon', epsilon: 0.1, base: { kind: 'module', path: './p.js' } } },
       { env: grid, policy: { kind: 'epsilon', epsilon: 0.1, base: { path: 'grid-4x3-optimal.json' } } },
+      { env: { kind: 'process', command: ['python3', './warehouse_env.py'] }, policy: { kind: 'uniform' } },
+      { env: grid, policy: { kind: 'process', name: 'careful' } },
     ];
     for (const payload of cases) {
       const response = await app.inject({ method: 'POST', url: '/api/evaluations', payload });
