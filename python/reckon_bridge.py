@@ -43,7 +43,7 @@ Protocol, version 1: one JSON object per line, each way, on stdin and stdout. Wh
 - ``{"op": "step", "cmds": [[slot, "r", seed], [slot, action], ...]}`` -> ``{"r": [...]}``:
   one environment per slot; a reset answers the state name, a step ``[reward, end, name]`` with
   end 0 (going on), 1 (terminated) or 2 (truncated). Commands run in order.
-- ``{"op": "episodes", "policy": N, "items": [[env_seed, policy_seed], ...]}`` -> one or more
+- ``{"op": "episodes", "policy": N, "horizon": H, "items": [[env_seed, policy_seed], ...]}`` -> one or more
   ``{"returns": [...], "lengths": [...], "more": bool}``, at least every 50 ms while working.
 - any failure -> ``{"error": {"index", "step", "call", "what", "message", "traceback"}}``;
   on SIGUSR1 (reckon's step timeout) -> ``{"hung": {"index", "step", "traceback"}}``.
@@ -278,7 +278,7 @@ class _Bridge:
             raise _Failure("make_policy", "policy %r was not opened" % message["policy"], "refused")
         env = self.envs[0]
         act = policy.act
-        horizon = self.horizon if self.horizon is not None else 2**62
+        horizon = message.get("horizon") or self.horizon or 2**62
         gamma = self.discount
         pos = self.pos
         returns = []

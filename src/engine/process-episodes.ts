@@ -34,7 +34,8 @@ export async function rolloutProcessEpisodes(
   const placeOf = (index: number, step: number) => ({ episode: first + index, step: Math.max(0, step) });
   clock[0] = first;
   clock[1] = -1;
-  connection.send(`{"op":"episodes","policy":${JSON.stringify(policyName)},"items":[${items.join(',')}]}`);
+  // The horizon as reckon resolved it (derived from reward_bounds when the script gives none).
+  connection.send(`{"op":"episodes","policy":${JSON.stringify(policyName)},"horizon":${built.horizon},"items":[${items.join(',')}]}`);
   let steps = 0;
   for (;;) {
     let reply: Record<string, unknown>;

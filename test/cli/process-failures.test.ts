@@ -191,3 +191,35 @@ describe('a process definition that cannot start is bad input (exit 2)', () => {
   });
 });
 
+
+describe('the horizon', () => {
+  it('that reckon derives from reward_bounds cuts the episodes of an endless program on both paths', () => {
+    const endless = tempFiles({
+      'endless.py': [
+        'from reckon_bridge import serve',
+        'class Belt:',
+        '    actions = ["run"]',
+        '    discount = 0.9',
+        '    reward_bounds = (0, 1)',
+        '    def __init__(self, options): pass',
+        '    def reset(self, seed): return 0, {}',
+        '    def step(self, action): return 0, 1.0, False, False, {}',
+        'class Run:',
+        '    def act(self, observation, rng): return 0',
+        'serve(Belt, policies={"run": lambda options, actions: Run()})',
+        '',
+      ].join('\n'),
+      'endless.json': { kind: 'process', command: ['python3', './endless.py'] },
+      'run.json': { kind: 'process', name: 'run' },
+      'uniform.json': { kind: 'uniform' },
+    });
+    for (const policy of ['uniform.json', 'run.json']) {
+      const out = json(reckon(['estimate', '--env', path.join(endless, 'endless.json'), '--policy', path.join(endless, policy), '--episodes', '50', '--seed', '1', '--no-store', '--json']));
+      // γ^H·max|r|/(1−γ) ≤ 1e-4 first at H = 110 for γ = 0.9, max|r| = 1 (common practice: the geometric tail).
+      expect(out.horizon).toBe(110);
+      expect(out.mean_length).toBe(110);
+      // Σ_{t<110} 0.9^t = (1 − 0.9^110)/0.1.
+      expect(out.mean).toBeCloseTo((1 - 0.9 ** 110) / 0.1, 12);
+    }
+  });
+});

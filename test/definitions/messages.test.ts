@@ -79,7 +79,7 @@ describe('gridworld messages', () => {
 
   test('an unknown kind', () => {
     expect(envError({ kind: 'gridwold' })).toBe(
-      'envs/grid.json: kind must be one of "gridworld", "tabular", "module" (got "gridwold") (did you mean "gridworld"?)',
+      'envs/grid.json: kind must be one of "gridworld", "tabular", "module", "process" (got "gridwold") (did you mean "gridworld"?)',
     );
   });
 
@@ -206,7 +206,7 @@ describe('policy messages', () => {
       'policy.json: epsilon must be between 0 and 1 (got 1.2)',
     );
     expect(messageOf(() => parsePolicy({ kind: 'epsilon', epsilon: 0.1, base: { kind: 'unifrom' } }, policyFile))).toContain(
-      'policy.json: base.kind must be one of "uniform", "table", "epsilon", "module", "arrows" (got "unifrom")',
+      'policy.json: base.kind must be one of "uniform", "table", "epsilon", "module", "process", "arrows" (got "unifrom")',
     );
     expect(messageOf(() => parsePolicy({ kind: 'epsilon', epsilon: 0.1, base: { path: 7 } }, policyFile))).toBe(
       'policy.json: base.path must be a string (got 7)',
