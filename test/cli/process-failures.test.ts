@@ -178,7 +178,7 @@ describe('a process definition that cannot start is bad input (exit 2)', () => {
     });
   }
 
-  it('a process policy needs a process environment; --noise visit and --start are refused', () => {
+  it('a process policy needs a process environment; --noise visit, --start and --record are refused', () => {
     const grid = reckon(['estimate', '--env', path.join(ENVS, 'warehouse.json'), '--policy', inDir('wild.json'), '--episodes', '10', '--no-store']);
     expect(grid.code).toBe(2);
     expect(grid.stderr).toContain('a "process" policy acts inside a process environment\'s program');
@@ -188,6 +188,9 @@ describe('a process definition that cannot start is bad input (exit 2)', () => {
     const start = reckon(['estimate', '--env', inDir('fine.json'), '--policy', inDir('uniform.json'), '--start', '0', '--no-store']);
     expect(start.code).toBe(2);
     expect(start.stderr).toContain('--start:');
+    const record = reckon(['estimate', '--env', inDir('fine.json'), '--policy', inDir('uniform.json'), '--record', inDir('log.jsonl'), '--no-store']);
+    expect(record.code).toBe(2);
+    expect(record.stderr).toContain('--record:');
   });
 });
 
