@@ -1,7 +1,7 @@
 import type { ModuleEnvironment } from '../definitions/built.js';
 import type { ProcessConnection } from '../definitions/process-connection.js';
 import { PluginError } from '../errors.js';
-import type { EpisodeBlock } from './episode-block.js';
+import { NO_FINAL_STATE, type EpisodeBlock } from './episode-block.js';
 import { pluginClock } from './plugin-clock.js';
 import { helperFailure, processFailure, type HelperError } from './process-failure.js';
 import { episodeSeed } from './process-seeds.js';
@@ -24,7 +24,8 @@ export async function rolloutProcessEpisodes(
   stepTimeout: number,
 ): Promise<number> {
   const label = built.process!.label;
-  const { returns, lengths, first, count } = block;
+  const { returns, lengths, finals, first, count } = block;
+  finals.fill(NO_FINAL_STATE); // a program's states are its own values, never indices
   const clock = pluginClock();
   const items = new Array<string>(count);
   for (let i = 0; i < count; i++) {

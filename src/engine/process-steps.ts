@@ -2,7 +2,7 @@ import type { ActingPolicy, ModuleEnvironment } from '../definitions/built.js';
 import type { ProcessConnection } from '../definitions/process-connection.js';
 import { PluginError } from '../errors.js';
 import { checkedAction } from './checked-action.js';
-import type { EpisodeBlock } from './episode-block.js';
+import { NO_FINAL_STATE, type EpisodeBlock } from './episode-block.js';
 import { EpisodeRng } from './episode-rng.js';
 import { pluginClock } from './plugin-clock.js';
 import { helperFailure, processFailure, type HelperError } from './process-failure.js';
@@ -36,7 +36,8 @@ export async function rolloutProcessSteps(
   const actionCount = built.actionNames.length;
   const lowReward = built.rewardRange ? built.rewardRange[0] : -Infinity;
   const highReward = built.rewardRange ? built.rewardRange[1] : Infinity;
-  const { returns, lengths, first, count } = block;
+  const { returns, lengths, finals, first, count } = block;
+  finals.fill(NO_FINAL_STATE); // a program's states are its own values, never indices
   const width = Math.min(WIDTH, count);
   while (policyRngs.length < width) policyRngs.push(new EpisodeRng());
   const clock = pluginClock();
