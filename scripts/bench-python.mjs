@@ -101,15 +101,28 @@ else:
     print(json.dumps({"seconds": seconds, "steps": sum(lengths), "episodes": len(returns), "returns_sum": sum(returns)}))
 `);
 
-// Runs a command and reports its wall time and the CPU time of its whole process tree.
+// Runs a command and reports its wall time and the CPU time of its whole process tree. It
+// makes itself the subreaper of its descendants (Linux), so a program reckon ended without
+// waiting for it is still waited for here and its CPU counted.
 write('cpu_time.py', `
-import json, os, subprocess, sys, time
+import ctypes, json, os, subprocess, sys, time
+try:
+    ctypes.CDLL(None, use_errno=True).prctl(36, 1, 0, 0, 0)  # PR_SET_CHILD_SUBREAPER
+except Exception:
+    pass
 start = time.perf_counter()
 child = subprocess.Popen(sys.argv[1:], stdout=subprocess.PIPE)
 out = child.stdout.read()
 _, status, usage = os.wait4(child.pid, 0)
 wall = time.perf_counter() - start
-print(json.dumps({"wall": wall, "cpu": usage.ru_utime + usage.ru_stime, "status": status, "stdout": out.decode()}))
+cpu = usage.ru_utime + usage.ru_stime
+while True:
+    try:
+        _, _, more = os.wait4(-1, 0)
+    except ChildProcessError:
+        break
+    cpu += more.ru_utime + more.ru_stime
+print(json.dumps({"wall": wall, "cpu": cpu, "status": status, "stdout": out.decode()}))
 `);
 write('aisle.json', JSON.stringify({ kind: 'process', command: ['python3', './aisle_env.py'] }));
 write('walker.json', JSON.stringify({ kind: 'process', name: 'walker' }));
@@ -152,6 +165,9 @@ const episodePilot = reckon('walker.json', pilotEpisodes, 1).out;
 const stepEpisodes = Math.max(pilotEpisodes, Math.round((pilotEpisodes * TARGET_SECONDS) / stepPilot.sampling_seconds / 1000) * 1000);
 const episodeEpisodes = Math.max(pilotEpisodes, Math.round((pilotEpisodes * TARGET_SECONDS) / episodePilot.sampling_seconds / 1000) * 1000);
 const items = seedsFile(episodeEpisodes);
+// Three times the episodes, for the per-episode (marginal) CPU cost apart from start-up.
+const longEpisodes = 3 * episodeEpisodes;
+const longItems = seedsFile(longEpisodes);
 
 const rounds = [];
 for (let r = 0; r < ROUNDS; r++) {
@@ -162,6 +178,8 @@ for (let r = 0; r < ROUNDS; r++) {
   round.episodeAlone = timed(['python3', 'alone.py', 'episodes', String(episodeEpisodes), items]);
   round.episode1 = reckon('walker.json', episodeEpisodes, 1);
   round.episode2 = reckon('walker.json', episodeEpisodes, 2);
+  round.longAlone = timed(['python3', 'alone.py', 'episodes', String(longEpisodes), longItems]);
+  round.long1 = reckon('walker.json', longEpisodes, 1);
   rounds.push(round);
   process.stderr.write(`round ${r + 1}/${ROUNDS} done\n`);
 }
@@ -200,6 +218,14 @@ const figures = {
     overhead_cpu: m((r) => r.episode1.cpu / r.episodeAlone.cpu - 1),
     speedup_2_workers: m((r) => r.episode1.out.sampling_seconds / r.episode2.out.sampling_seconds),
     same_returns: sameReturns,
+    // CPU per extra episode (µs), from the runs of N and 3N episodes: start-up cancels out.
+    long_episodes: longEpisodes,
+    alone_cpu_per_episode_us: m((r) => ((r.longAlone.cpu - r.episodeAlone.cpu) / (longEpisodes - episodeEpisodes)) * 1e6),
+    reckon_cpu_per_episode_us: m((r) => ((r.long1.cpu - r.episode1.cpu) / (longEpisodes - episodeEpisodes)) * 1e6),
+    marginal_overhead_cpu: m((r) => (r.long1.cpu - r.episode1.cpu) / (r.longAlone.cpu - r.episodeAlone.cpu) - 1),
+    fixed_cpu_reckon: m((r) => r.episode1.cpu - (episodeEpisodes * (r.long1.cpu - r.episode1.cpu)) / (longEpisodes - episodeEpisodes)),
+    fixed_cpu_alone: m((r) => r.episodeAlone.cpu - (episodeEpisodes * (r.longAlone.cpu - r.episodeAlone.cpu)) / (longEpisodes - episodeEpisodes)),
+    long_overhead_cpu: m((r) => r.long1.cpu / r.longAlone.cpu - 1),
   },
 };
 
@@ -229,3 +255,4 @@ console.log(`| step (reckon's uniform policy) | ${s.episodes.toLocaleString('en'
 console.log(`| episode (a policy of the script) | ${e.episodes.toLocaleString('en')} episodes, ${(e.steps / 1e6).toFixed(2)} M steps | ${f(e.alone_loop_seconds)} s loop (${f(e.alone_wall)} s, ${f(e.alone_cpu)} s CPU for the process) | ${f(e.reckon_1_sampling_seconds)} s sampling (${f(e.reckon_1_wall)} s, ${f(e.reckon_1_cpu)} s CPU for the command) | ${f(e.reckon_2_sampling_seconds)} s sampling | ${f(e.speedup_2_workers)}× | ${f(e.reckon_1_cpu, 1)} / ${f(e.reckon_2_cpu, 1)} |`);
 console.log('');
 console.log(`Episode path, reckon's time over the same loop alone: sampling ${pct(e.overhead_sampling)}, whole command against whole Python process ${pct(e.overhead_wall)} (wall), ${pct(e.overhead_cpu)} (CPU); same returns: ${e.same_returns ? 'yes' : 'NO'}.`);
+console.log(`Episode path, CPU per extra episode (runs of ${e.episodes.toLocaleString('en')} and ${e.long_episodes.toLocaleString('en')}): ${f(e.alone_cpu_per_episode_us, 1)} µs alone, ${f(e.reckon_cpu_per_episode_us, 1)} µs through reckon (${pct(e.marginal_overhead_cpu)}); fixed CPU ${f(e.fixed_cpu_alone)} s alone, ${f(e.fixed_cpu_reckon)} s through reckon; at ${e.long_episodes.toLocaleString('en')} episodes the whole command's CPU is ${pct(e.long_overhead_cpu)} over the Python process's.`);
