@@ -41,6 +41,12 @@ export interface RunOptions {
   readonly stepTimeout?: number;
   /** Code worker threads already started for this spec (startCodeWorkers); the pool takes what it needs. */
   readonly early?: EarlyWorkers | null;
+  /**
+   * Code worker threads to take first (as `early`) and to give back when the run ends cleanly,
+   * so the next run of the same spec starts without loading anything (keepCodeWorkers). The
+   * caller closes it when done.
+   */
+  readonly keep?: EarlyWorkers | null;
 }
 
 export interface RunOutcome {
@@ -80,6 +86,18 @@ export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promi
 export function startCodeWorkers(spec: RolloutSpec, workers: number): EarlyWorkers | null {
   if (workers < 2 || !runsPluginCode(spec)) return null;
   return new EarlyWorkers(workerUrl('worker.js'), spec, workers);
+}
+
+/**
+ * For a code environment run in several calls (a comparison's batches): an empty set that
+ * runEpisodes (`keep`) fills with its worker threads at the end of each clean run and takes
+ * them from at the start of the next. Null for any other spec, whose workers start in
+ * milliseconds.
+ */
+export function keepCodeWorkers(spec: RolloutSpec): EarlyWorkers | null {
+  // A process environment's program belongs to its run (ended with the run's threads), so its threads are not kept.
+  if (!runsPluginCode(spec) || isProcessSpec(spec)) return null;
+  return new EarlyWorkers(workerUrl('worker.js'), spec, 0);
 }
 
 const MIN_BLOCK = 16;
@@ -277,8 +295,11 @@ async function runThreaded(
   // arrival times stay accurate (and the threads are never kept waiting) for the cost of a
   // few more turns of the event loop.
   const callerSizer = new BlockSizer(Math.min(blockSeconds, CALLER_BLOCK_SECONDS));
+  const ready = options.keep ?? options.early;
+  /** What a clean end of the run needs to give a thread back to `keep`. */
+  const held: { worker: Worker; clock: SharedArrayBuffer; detach: () => void }[] = [];
   for (let w = callerRuns ? 1 : 0; w < workerCount; w++) {
-    const started = entry.watched ? (options.early?.take() ?? null) : null;
+    const started = entry.watched ? (ready?.take() ?? null) : null;
     const clock = started ? started.clock : entry.watched ? newClockBuffer() : null;
     const createdAt = started?.createdAt ?? sharedClock();
     const worker =
@@ -323,14 +344,26 @@ async function runThreaded(
         fail(rebuildError(message));
       }
     };
-    if (started) started.adopt(onMessage, (e) => fail(e));
+    const onError = (e: Error) => fail(e);
+    if (started) started.adopt(onMessage, onError);
     else {
       worker.on('message', onMessage);
-      worker.on('error', (e) => fail(e));
+      worker.on('error', onError);
     }
     threads.push(worker);
+    if (clock) {
+      held.push({
+        worker,
+        clock,
+        detach: () => {
+          worker.off('message', onMessage);
+          worker.off('error', onError);
+        },
+      });
+    }
   }
-  options.early?.close(); // threads started for more workers than this run needs
+  // Threads started for more workers than this run needs (a kept set keeps them for later runs).
+  if (!options.keep) options.early?.close();
 
   // A stopped run waits a moment for the blocks still running (a block is about 0.1 s), then
   // leaves them: a plug-in stuck in a call must not hold up Ctrl-C.
@@ -381,8 +414,13 @@ async function runThreaded(
     options.signal?.removeEventListener('abort', onAbort);
     clearTimeout(graceTimer);
     clearInterval(watchTimer);
-    for (const t of threads) void t.terminate();
-    killPrograms(clocks);
+    // A run that ended cleanly, every block delivered, gives its code threads back to be reused.
+    const reuse = options.keep && !failure && !abandoned && !options.signal?.aborted && inFlight === 0 && held.length === threads.length;
+    if (reuse) for (const h of held) options.keep!.giveBack(h.worker, h.clock, h.detach);
+    else {
+      for (const t of threads) void t.terminate();
+      killPrograms(clocks);
+    }
   }
   if (callerTiming) recordCallerTimes(callerTiming, callerTimes0);
   const runEnd = sharedClock();

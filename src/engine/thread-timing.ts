@@ -65,7 +65,9 @@ export class ThreadTimingRecorder {
     this.episodes += message.count;
     this.steps += message.steps;
     this.busySeconds += message.busySeconds ?? 0;
-    this.idleSeconds += message.idleSeconds ?? 0;
+    // A thread kept from an earlier run waited between the runs: only this run's waits count.
+    const blockStart = (message.at ?? this.now()) - (message.busySeconds ?? 0) * 1000;
+    this.idleSeconds += Math.min(message.idleSeconds ?? 0, Math.max(0, (blockStart - this.runStart) / 1000));
     this.cpuSeconds = message.cpuSeconds ?? null;
     this.queuedSeconds = message.queuedSeconds ?? null;
     this.doneAt = ((message.at ?? this.now()) - this.runStart) / 1000;

@@ -1,6 +1,6 @@
 import type { EventSpec, RiskRequest } from '../options/risk-options.js';
 import { pairedRiskDifferences, type PairedRiskDifferences } from '../stats/paired-risk.js';
-import { runEpisodes } from '../engine/pool.js';
+import { keepCodeWorkers, runEpisodes } from '../engine/pool.js';
 import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
 import type { EpisodeBlock } from '../engine/episode-block.js';
 import type { RolloutSpec } from '../engine/spec.js';
@@ -122,70 +122,78 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
   let reached = false;
   let done = 0;
   let batch = request.targetError === null ? request.episodes : 2000;
-  while (done < request.episodes && !reached && !request.signal?.aborted) {
-    const count = Math.min(batch, request.episodes - done);
-    const blocks: EpisodeBlock[][] = [];
-    for (let p = 0; p < k; p++) {
-      const collected: EpisodeBlock[] = [];
-      await runEpisodes(specs[p], {
-        prepared: prepared[p],
-        first: done,
-        count,
-        workers: request.workers,
-        stepTimeout: request.stepTimeout,
-        signal: request.signal,
-        onBlock: (block) => {
-          collected.push(block);
-          request.onProgress?.({
-            done: done + ((p * count + collected.reduce((n, b) => n + b.count, 0)) / k),
-            total: request.episodes,
-            seconds: (performance.now() - started) / 1000,
-            halfWidth: Number.NaN,
-            targetError: request.targetError,
-          });
-        },
-      });
-      blocks.push(collected);
-    }
-    const batchReturns = blocks.map((list) => concat(list, 'returns') as Float64Array);
-    const batchLengths = blocks.map((list) => concat(list, 'lengths') as Uint32Array);
-    const batchFinals = blocks.map((list) => concat(list, 'finals') as Int32Array);
-    let keep = Math.min(...batchReturns.map((r) => r.length)); // shorter only when interrupted
-    if (sequences.length > 0) {
-      for (let e = 0; e < keep && !reached; e++) {
-        let all = true;
-        pairs.forEach(([i, j], q) => {
-          single[0] = batchReturns[i][e] - batchReturns[j][e];
-          sequences[q].add(single);
-          if (!targetReached(sequences[q], pairSettings[q])) all = false;
+  // A code environment's threads load the definitions and the user's module once per policy,
+  // not once per batch: each policy's threads are kept from one batch to the next.
+  const kept = specs.map((spec) => keepCodeWorkers(spec));
+  try {
+    while (done < request.episodes && !reached && !request.signal?.aborted) {
+      const count = Math.min(batch, request.episodes - done);
+      const blocks: EpisodeBlock[][] = [];
+      for (let p = 0; p < k; p++) {
+        const collected: EpisodeBlock[] = [];
+        await runEpisodes(specs[p], {
+          prepared: prepared[p],
+          keep: kept[p],
+          first: done,
+          count,
+          workers: request.workers,
+          stepTimeout: request.stepTimeout,
+          signal: request.signal,
+          onBlock: (block) => {
+            collected.push(block);
+            request.onProgress?.({
+              done: done + ((p * count + collected.reduce((n, b) => n + b.count, 0)) / k),
+              total: request.episodes,
+              seconds: (performance.now() - started) / 1000,
+              halfWidth: Number.NaN,
+              targetError: request.targetError,
+            });
+          },
         });
-        if (all) {
-          reached = true;
-          keep = e + 1;
+        blocks.push(collected);
+      }
+      const batchReturns = blocks.map((list) => concat(list, 'returns') as Float64Array);
+      const batchLengths = blocks.map((list) => concat(list, 'lengths') as Uint32Array);
+      const batchFinals = blocks.map((list) => concat(list, 'finals') as Int32Array);
+      let keep = Math.min(...batchReturns.map((r) => r.length)); // shorter only when interrupted
+      if (sequences.length > 0) {
+        for (let e = 0; e < keep && !reached; e++) {
+          let all = true;
+          pairs.forEach(([i, j], q) => {
+            single[0] = batchReturns[i][e] - batchReturns[j][e];
+            sequences[q].add(single);
+            if (!targetReached(sequences[q], pairSettings[q])) all = false;
+          });
+          if (all) {
+            reached = true;
+            keep = e + 1;
+          }
         }
       }
+      const seconds = (performance.now() - started) / 1000;
+      for (let p = 0; p < k; p++) {
+        const returns = batchReturns[p].subarray(0, keep);
+        const lengths = batchLengths[p].subarray(0, keep);
+        const finals = batchFinals[p].subarray(0, keep);
+        buffers[p].append(returns, lengths, finals);
+        let steps = 0;
+        for (let e = 0; e < keep; e++) steps += lengths[e];
+        request.onEpisodes?.(p, { first: done, count: keep, returns, lengths, finals }, steps, seconds);
+      }
+      done += keep;
+      if (sequences.length > 0) {
+        request.onProgress?.({
+          done,
+          total: request.episodes,
+          seconds,
+          halfWidth: Math.max(...sequences.map((s) => s.interval().halfWidth)),
+          targetError: request.targetError,
+        });
+      }
+      batch = Math.min(batch * 2, 200_000);
     }
-    const seconds = (performance.now() - started) / 1000;
-    for (let p = 0; p < k; p++) {
-      const returns = batchReturns[p].subarray(0, keep);
-      const lengths = batchLengths[p].subarray(0, keep);
-      const finals = batchFinals[p].subarray(0, keep);
-      buffers[p].append(returns, lengths, finals);
-      let steps = 0;
-      for (let e = 0; e < keep; e++) steps += lengths[e];
-      request.onEpisodes?.(p, { first: done, count: keep, returns, lengths, finals }, steps, seconds);
-    }
-    done += keep;
-    if (sequences.length > 0) {
-      request.onProgress?.({
-        done,
-        total: request.episodes,
-        seconds,
-        halfWidth: Math.max(...sequences.map((s) => s.interval().halfWidth)),
-        targetError: request.targetError,
-      });
-    }
-    batch = Math.min(batch * 2, 200_000);
+  } finally {
+    for (const threads of kept) threads?.close();
   }
   if (done < 2) throw new InputError('compare', `stopped after ${done} episode(s), too few to compare`);
   const seconds = (performance.now() - started) / 1000;
