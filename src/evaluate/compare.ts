@@ -1,13 +1,14 @@
 import type { EventSpec, RiskRequest } from '../options/risk-options.js';
 import { pairedRiskDifferences, type PairedRiskDifferences } from '../stats/paired-risk.js';
 import { keepCodeWorkers, runEpisodes } from '../engine/pool.js';
-import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
-import type { EpisodeBlock } from '../engine/episode-block.js';
+import type { PreparedRollout } from '../engine/prepare.js';
+import { prepareForRun } from './prepare-for-run.js';
+import { newBlock, NO_FINAL_STATE, type EpisodeBlock } from '../engine/episode-block.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import type { NoiseMode } from '../engine/noise.js';
-import { InputError } from '../errors.js';
+import { InputError, StoppedEarly } from '../errors.js';
 import { comparePolicies, differenceBounds, type DifferenceMethod, type PolicyComparison, type RunningInterval } from '../stats/index.js';
-import { environmentFacts, type EnvironmentFacts } from './environment-facts.js';
+import type { EnvironmentFacts } from './environment-facts.js';
 import type { EstimateResult } from './estimate.js';
 import { differenceWarnings } from './interval-advice.js';
 import { computeFigures, type AnalysisProgress, type ReportedInterval, type TargetOutcome } from './figures.js';
@@ -45,10 +46,21 @@ export interface CompareRequest {
   readonly onProgress?: (progress: { done: number; total: number; seconds: number; halfWidth: number; targetError: number | null }) => void;
   /** Called once facts are known, before any episode: lets a caller create stored runs. */
   readonly onStart?: (facts: readonly EnvironmentFacts[], sequence: SequenceChoice | null) => void;
-  /** Called with each policy's kept episodes, in episode order, batch by batch. */
+  /**
+   * Called with each policy's kept episodes, in episode order: block by block as they finish in
+   * a fixed-size comparison (where every episode is kept), batch by batch up to the stop in a
+   * target-error one.
+   */
   readonly onEpisodes?: (policy: number, block: EpisodeBlock, steps: number, seconds: number) => void;
   /** Told how far a slow figure has got, once the episodes are done. */
   readonly onAnalysis?: AnalysisProgress;
+  /**
+   * Each policy's episodes already run and stored (a resumed comparison), from episode 0 on.
+   * The comparison continues from the shortest; a longer one's extra episodes are used, not run again.
+   */
+  readonly prior?: readonly { returns: Float64Array; lengths: Uint32Array; finals?: Int32Array | null }[];
+  /** Sampling seconds the prior episodes took. */
+  readonly priorSeconds?: number;
 }
 
 export interface ComparisonResult {
@@ -86,11 +98,17 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
   if (request.policies.length < 2) throw new InputError('--policy', 'a comparison needs at least two policies: give --policy twice or more');
   const specs: RolloutSpec[] = request.policies.map((policy) => ({ env: request.env, policy, seed: request.seed, start: request.start, noise: request.noise }));
   const facts: EnvironmentFacts[] = [];
-  const prepared: PreparedRollout[] = [];
+  const prepared: (PreparedRollout | null)[] = [];
+  const priorCount = request.prior ? Math.min(...request.prior.map((p) => p.returns.length)) : 0;
   for (const spec of specs) {
-    const ready = await prepareRollout(spec);
-    prepared.push(ready);
-    facts.push(environmentFacts(ready.env, ready.policy, ready.startIndex));
+    try {
+      const ready = await prepareForRun(spec, request.signal);
+      prepared.push(ready.prepared);
+      facts.push(ready.facts);
+    } catch (e) {
+      if (e instanceof StoppedEarly) throw new StoppedEarly(priorCount, request.episodes, true);
+      throw e;
+    }
   }
   // A misspelt terminal fails before any episode runs.
   for (const event of request.risk?.events ?? []) resolveEvent(event, facts[0]);
@@ -119,8 +137,42 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
   const buffers = facts.map((f) => new ReturnsBuffer(Math.min(request.episodes, 1 << 20), f.horizon, { keepEpisodes }));
   const single = new Float64Array(1);
   const started = performance.now();
+  const priorSeconds = request.priorSeconds ?? 0;
   let reached = false;
   let done = 0;
+  /** How many of these paired returns the comparison keeps: all, unless every pair reaches the target among them. */
+  const offer = (batchReturns: readonly Float64Array[], count: number): number => {
+    for (let e = 0; e < count && sequences.length > 0; e++) {
+      let all = true;
+      pairs.forEach(([i, j], q) => {
+        single[0] = batchReturns[i][e] - batchReturns[j][e];
+        sequences[q].add(single);
+        if (!targetReached(sequences[q], pairSettings[q])) all = false;
+      });
+      if (all) {
+        reached = true;
+        return e + 1;
+      }
+    }
+    return count;
+  };
+  // A resumed comparison: the stored pairs go through the sequences first, in episode order, so
+  // it stops where an uninterrupted one would; a policy's episodes past the shortest are reused.
+  const surplus: EpisodeBlock[] = specs.map(() => newBlock(0, 0));
+  if (request.prior) {
+    const keep = offer(request.prior.map((p) => p.returns), priorCount);
+    request.prior.forEach((p, q) => {
+      // Episodes stored before final states were kept have none.
+      const finals = p.finals ?? new Int32Array(p.returns.length).fill(NO_FINAL_STATE);
+      buffers[q].append(p.returns.subarray(0, keep), p.lengths.subarray(0, keep), finals.subarray(0, keep));
+      surplus[q] = { first: keep, count: p.returns.length - keep, returns: p.returns.subarray(keep), lengths: p.lengths.subarray(keep), finals: finals.subarray(keep) };
+    });
+    done = keep;
+  }
+  // A fixed-size comparison keeps every episode it runs, so each policy's are stored as they
+  // come: stopped part-way, every member keeps what it ran, and a resume reuses it. A
+  // target-error comparison hands over only the pairs before its stop, batch by batch.
+  const streaming = sequences.length === 0;
   let batch = request.targetError === null ? request.episodes : 2000;
   // A code environment's threads load the definitions and the user's module once per policy,
   // not once per batch: each policy's threads are kept from one batch to the next.
@@ -130,17 +182,23 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
       const count = Math.min(batch, request.episodes - done);
       const blocks: EpisodeBlock[][] = [];
       for (let p = 0; p < k; p++) {
-        const collected: EpisodeBlock[] = [];
+        const reused = takeSurplus(surplus, p, done, count);
+        const collected: EpisodeBlock[] = reused ? [reused] : [];
+        if (reused?.count === count) {
+          blocks.push(collected);
+          continue;
+        }
         await runEpisodes(specs[p], {
-          prepared: prepared[p],
+          prepared: prepared[p] ?? undefined,
           keep: kept[p],
-          first: done,
-          count,
+          first: done + (reused?.count ?? 0),
+          count: count - (reused?.count ?? 0),
           workers: request.workers,
           stepTimeout: request.stepTimeout,
           signal: request.signal,
-          onBlock: (block) => {
+          onBlock: (block, blockSteps) => {
             collected.push(block);
+            if (streaming) request.onEpisodes?.(p, block, blockSteps, priorSeconds + (performance.now() - started) / 1000);
             request.onProgress?.({
               done: done + ((p * count + collected.reduce((n, b) => n + b.count, 0)) / k),
               total: request.episodes,
@@ -155,27 +213,14 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
       const batchReturns = blocks.map((list) => concat(list, 'returns') as Float64Array);
       const batchLengths = blocks.map((list) => concat(list, 'lengths') as Uint32Array);
       const batchFinals = blocks.map((list) => concat(list, 'finals') as Int32Array);
-      let keep = Math.min(...batchReturns.map((r) => r.length)); // shorter only when interrupted
-      if (sequences.length > 0) {
-        for (let e = 0; e < keep && !reached; e++) {
-          let all = true;
-          pairs.forEach(([i, j], q) => {
-            single[0] = batchReturns[i][e] - batchReturns[j][e];
-            sequences[q].add(single);
-            if (!targetReached(sequences[q], pairSettings[q])) all = false;
-          });
-          if (all) {
-            reached = true;
-            keep = e + 1;
-          }
-        }
-      }
-      const seconds = (performance.now() - started) / 1000;
+      const keep = offer(batchReturns, Math.min(...batchReturns.map((r) => r.length))); // shorter only when interrupted
+      const seconds = priorSeconds + (performance.now() - started) / 1000;
       for (let p = 0; p < k; p++) {
         const returns = batchReturns[p].subarray(0, keep);
         const lengths = batchLengths[p].subarray(0, keep);
         const finals = batchFinals[p].subarray(0, keep);
         buffers[p].append(returns, lengths, finals);
+        if (streaming) continue;
         let steps = 0;
         for (let e = 0; e < keep; e++) steps += lengths[e];
         request.onEpisodes?.(p, { first: done, count: keep, returns, lengths, finals }, steps, seconds);
@@ -195,8 +240,9 @@ export async function runComparison(request: CompareRequest): Promise<Comparison
   } finally {
     for (const threads of kept) threads?.close();
   }
+  if (done < 2 && request.signal?.aborted && !reached) throw new StoppedEarly(done, request.episodes);
   if (done < 2) throw new InputError('compare', `stopped after ${done} episode(s), too few to compare`);
-  const seconds = (performance.now() - started) / 1000;
+  const seconds = priorSeconds + (performance.now() - started) / 1000;
   return summarizeComparison(request, facts, buffers, sequence, seconds, reached);
 }
 
@@ -322,6 +368,18 @@ export function summarizeComparison(
     warnings,
     riskDifferences,
   };
+}
+
+/**
+ * The part of policy p's stored surplus (episodes past the shortest policy's, from a resumed
+ * comparison) that falls in [first, first + count), removed from the surplus; null when none.
+ */
+function takeSurplus(surplus: EpisodeBlock[], p: number, first: number, count: number): EpisodeBlock | null {
+  const s = surplus[p];
+  if (s.count === 0 || s.first !== first) return null;
+  const n = Math.min(count, s.count);
+  surplus[p] = { first: s.first + n, count: s.count - n, returns: s.returns.subarray(n), lengths: s.lengths.subarray(n), finals: s.finals.subarray(n) };
+  return { first, count: n, returns: s.returns.subarray(0, n), lengths: s.lengths.subarray(0, n), finals: s.finals.subarray(0, n) };
 }
 
 function concat(blocks: readonly EpisodeBlock[], key: 'returns' | 'lengths' | 'finals'): Float64Array | Uint32Array | Int32Array {

@@ -1,5 +1,5 @@
 import { readDefinitionFile } from '../../definitions/index.js';
-import { InputError } from '../../errors.js';
+import { InputError, StoppedEarly } from '../../errors.js';
 import { runComparison, type CompareRequest, type ComparisonResult } from '../../evaluate/compare.js';
 import { differenceMethod } from '../../options/difference-method.js';
 import { runStoredComparison } from '../../evaluate/stored-compare.js';
@@ -13,7 +13,7 @@ import { runSize } from '../../options/run-size.js';
 import { parseRunOptions } from '../../options/run-options.js';
 import { noiseMode } from '../../options/noise-option.js';
 import { ProgressLine } from '../progress.js';
-import { StopSignals } from '../stop-signals.js';
+import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 
 export const HELP = `reckon compare: is one policy really better than another, and by how much?
@@ -147,6 +147,10 @@ export async function run(args: string[]): Promise<number> {
     } else {
       result = await runComparison(withProgress);
     }
+  } catch (e) {
+    if (!(e instanceof StoppedEarly)) throw e;
+    progress.clear();
+    return reportStoppedEarly(e, stop, (id) => `reckon runs resume ${id}${values.store ? ` --store ${storePath}` : ''}`);
   } finally {
     progress.clear();
     stop.dispose();
@@ -164,7 +168,7 @@ export async function run(args: string[]): Promise<number> {
     process.stderr.write(`reckon: the target ±${targetError} was not reached on every difference within ${result.episodes} episodes; raise --max-episodes or accept a wider target\n`);
   }
   if (result.interrupted) {
-    const kept = runId ? ` Its ${result.episodes} paired episodes are kept as run ${runId}; 'reckon runs show ${runId}' reports them.` : '';
+    const kept = runId ? ` Its ${result.episodes} paired episodes are kept as run ${runId}; 'reckon runs show ${runId}' reports them, and 'reckon runs resume ${runId}${values.store ? ` --store ${storePath}` : ''}' continues it.` : '';
     process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} after ${result.episodes} episodes.${kept}\n`);
     return stop.exitCode();
   }

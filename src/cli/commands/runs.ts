@@ -7,7 +7,8 @@ import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
 import { comparisonShowJson, runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
-import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
+import { analyzeStoredComparison, resumeStoredComparison } from '../../evaluate/stored-compare.js';
+import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
 import { defaultStorePath } from '../../store/location.js';
 import { mergeShards } from '../../store/merge.js';
@@ -52,7 +53,8 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
            returns, lengths, value-map (gridworlds), or cdf (the returns' distribution with
            its DKW band)
   resume   continue an interrupted run (Ctrl-C, a crash, a killed job) from its last
-           committed episode; the result equals an uninterrupted run's
+           committed episode; the result equals an uninterrupted run's. A comparison
+           continues every policy on the same episodes (common random numbers)
   delete   remove a run and its episodes
   merge    join the shards of one run ('estimate --shard K/M' on several machines, each with
            its own store) into one run in --into (default: --store)
@@ -298,6 +300,11 @@ async function resume(args: string[]): Promise<number> {
   const stop = new StopSignals();
   try {
     const run = getRun(db, id, label);
+    const storeOption = values.store ? ` --store ${label}` : '';
+    if (run.kind === 'comparison') return await resumeComparison(db, run, { json: Boolean(values.json), storeOption, stop, progress, workers, stepTimeout });
+    if (run.parentId) {
+      throw new InputError(`run ${run.id}`, `is one policy's part of comparison ${run.parentId}, whose policies share their episodes; resume the comparison: reckon runs resume ${run.parentId}${storeOption}`);
+    }
     let result: EstimateResult;
     try {
       ({ result } = await resumeStoredEstimate(db, run, { signal: stop.signal, onProgress: (p) => progress.update(p), workers, stepTimeout }));
@@ -319,6 +326,39 @@ async function resume(args: string[]): Promise<number> {
     progress.clear();
     stop.dispose();
     db.close();
+  }
+  return 0;
+}
+
+/** `runs resume` of a comparison: every member continues, and the comparison's report is printed. */
+async function resumeComparison(
+  db: Db,
+  run: RunRecord,
+  how: { json: boolean; storeOption: string; stop: StopSignals; progress: ProgressLine; workers?: number; stepTimeout?: number },
+): Promise<number> {
+  const { stop, progress } = how;
+  const from = Math.min(...listMembers(db, run.id).map((m) => m.episodesDone));
+  let resumed: Awaited<ReturnType<typeof resumeStoredComparison>>;
+  try {
+    resumed = await resumeStoredComparison(db, run, {
+      signal: stop.signal,
+      onProgress: (p) => progress.update({ ...p, mean: Number.NaN }),
+      workers: how.workers,
+      stepTimeout: how.stepTimeout,
+    });
+  } catch (e) {
+    if (!(e instanceof StoppedEarly)) throw e;
+    progress.clear();
+    return reportStoppedEarly(e, stop, (runId) => `reckon runs resume ${runId}${how.storeOption}`);
+  }
+  progress.clear();
+  const { result, memberIds } = resumed;
+  const labels = { env: run.env.label, policies: (run.options as { policies: string[] }).policies };
+  if (how.json) process.stdout.write(`${JSON.stringify(compareJson(result, labels, version(), run.id, memberIds), null, 2)}\n`);
+  else process.stdout.write(`Comparison ${run.id} resumed from episode ${from}.\n\n${compareText(result, labels)}`);
+  if (result.interrupted) {
+    process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} again after ${result.episodes} paired episodes, all kept. Continue it with: reckon runs resume ${run.id}${how.storeOption}\n`);
+    return stop.exitCode();
   }
   return 0;
 }
