@@ -1,6 +1,6 @@
 import type { BuiltEnvironment, BuiltPolicy } from '../definitions/built.js';
 import { truncationBound } from '../definitions/horizon.js';
-import { moduleReturnBounds, returnBounds } from '../exact/index.js';
+import { expectedReturn, moduleReturnBounds, returnBounds } from '../exact/index.js';
 import { terminalStates, type TerminalState } from '../definitions/terminal-states.js';
 
 /** What a report says about the environment a run used, beside the estimate. */
@@ -23,6 +23,11 @@ export interface EnvironmentFacts {
    * stored before it was recorded.
    */
   readonly terminals?: readonly TerminalState[];
+  /**
+   * The exact E[G_H] the episodes estimate, for a finite environment and a policy with known
+   * probabilities; null otherwise, and absent in runs stored before it was kept.
+   */
+  readonly exactValue?: number | null;
 }
 
 export function environmentFacts(env: BuiltEnvironment, policy: BuiltPolicy | null, startIndex = -1): EnvironmentFacts {
@@ -41,6 +46,7 @@ export function environmentFacts(env: BuiltEnvironment, policy: BuiltPolicy | nu
       returnBounds: returnBounds(mdp, matrix, startIndex >= 0 ? startIndex : undefined),
       truncationBound: truncationBound(mdp.discount, mdp.horizon, maxAbs),
       terminals: terminalStates(mdp),
+      exactValue: matrix ? expectedReturn(mdp, matrix, startIndex >= 0 ? startIndex : undefined) : null,
     };
   }
   const range = env.rewardRange;

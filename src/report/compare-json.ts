@@ -1,4 +1,5 @@
 import { riskJson } from './risk-report.js';
+import { exactBeside } from './exact-beside.js';
 import type { ComparisonResult } from '../evaluate/compare.js';
 
 /**
@@ -30,6 +31,8 @@ export function compareJson(
       std: estimate.std,
       ci: { low: estimate.ci.low, high: estimate.ci.high, method: estimate.ci.method, level: estimate.ci.level },
       episodes: estimate.episodes,
+      exact_value: exactBeside(estimate)?.value ?? null,
+      exact_inside: exactBeside(estimate)?.inside ?? null,
       rank: comparison.policies[p].rank,
       mean_length: estimate.meanLength,
       iqm: comparison.policies[p].interquartileMean

@@ -1,3 +1,4 @@
+import { exactBeside } from './exact-beside.js';
 import type { ComparisonResult } from '../evaluate/compare.js';
 import { columns, count, decimalsFor, fixed, sig, timeSplit } from './format.js';
 import { NOISE_WORDS } from './noise-words.js';
@@ -36,6 +37,13 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
     ]);
   }
   lines.push(...columns(policyRows));
+  const exact = result.estimates.map((e) => exactBeside(e));
+  if (exact.some((x) => x !== null)) {
+    lines.push('', '  Exact values (reckon exact) against each interval:');
+    exact.forEach((x, p) => {
+      if (x) lines.push(`    [${p}] ${fixed(x.value, d + 1)}  ${x.inside ? 'inside' : 'OUTSIDE'} its interval`);
+    });
+  }
   if (comparison.policies.some((p) => p.interquartileMean)) {
     lines.push('', '  Interquartile mean (middle 50% of returns) with a stratified bootstrap interval:');
     for (const p of comparison.policies) {

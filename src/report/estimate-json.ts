@@ -1,4 +1,5 @@
 import { riskJson } from './risk-report.js';
+import { exactBeside } from './exact-beside.js';
 import type { EstimateResult } from '../evaluate/estimate.js';
 
 /**
@@ -25,6 +26,8 @@ export function estimateJson(result: EstimateResult, labels: { env: string; poli
       half_width: result.ci.halfWidth,
       anytime_valid: result.ci.anytimeValid ?? false,
     },
+    exact_value: exactBeside(result)?.value ?? null,
+    exact_inside: exactBeside(result)?.inside ?? null,
     target_error: result.target?.error ?? null,
     target_reached: result.target ? result.target.reached : null,
     max_episodes: result.target?.maxEpisodes ?? null,

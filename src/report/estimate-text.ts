@@ -2,6 +2,7 @@ import type { EstimateResult } from '../evaluate/estimate.js';
 import { riskText } from './risk-report.js';
 import { columns, count, decimalsFor, duration, fixed, meanWithInterval, rate, sig, timeSplit } from './format.js';
 import { NOISE_WORDS } from './noise-words.js';
+import { exactBeside } from './exact-beside.js';
 
 const METHOD_NAMES: Record<string, string> = {
   t: 'Student t',
@@ -48,6 +49,12 @@ export function estimateText(result: EstimateResult, labels: { env: string; poli
               : '(an asymptotic rule: its coverage at a stop chosen by the data holds only in the limit of small targets)'
           }`
         : `  target           ±${fixed(t.error, decimalsFor(t.error))} NOT reached within ${count(t.maxEpisodes)} episodes; reached ±${fixed(ci.halfWidth, d)}`,
+    );
+  }
+  const exact = exactBeside(result);
+  if (exact) {
+    lines.push(
+      `  exact value      ${fixed(exact.value, d + 1)} (reckon exact): ${exact.inside ? 'inside' : 'OUTSIDE'} the interval${exact.inside ? '' : `, which a ${level} interval misses ${sig(100 - ci.level * 100, 2)}% of the time`}`,
     );
   }
   for (const warning of result.warnings) lines.push(`  warning          ${warning}`);

@@ -1,14 +1,12 @@
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
-import { loadEnvironmentFile, loadPolicyFile, readDefinitionFile } from '../../definitions/index.js';
+import { readDefinitionFile } from '../../definitions/index.js';
 import { defaultWorkers } from '../../engine/pool.js';
 import { runStoredEstimate } from '../../evaluate/stored-estimate.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
 import { version } from '../version.js';
-import { exactEvaluation } from '../../exact/index.js';
 import { estimateText } from '../../report/estimate-text.js';
-import { decimalsFor, fixed } from '../../report/format.js';
 import { ProgressLine } from '../progress.js';
 
 export const HELP = `reckon demo: the bundled warehouse picking robot (what 'npm start' runs)
@@ -41,7 +39,6 @@ export async function run(args: string[]): Promise<number> {
   const envPath = rel('warehouse.json');
   process.stdout.write('reckon demo: a warehouse picking robot, two routes to the packing station (envs/README.md)\n\n');
   process.stdout.write(`${DEMO_CAUTION}\n\n`);
-  const env = await loadEnvironmentFile(envPath);
   const storePath = defaultStorePath();
   const db = openStore(storePath);
   try {
@@ -60,15 +57,6 @@ export async function run(args: string[]): Promise<number> {
     progress.clear();
     process.stdout.write(estimateText(result, { env: envPath, policy: policyPath }));
     process.stdout.write('\n');
-    const policy = await loadPolicyFile(policyPath, env.built);
-    if (env.built.kind === 'finite' && policy.built.matrix) {
-      const exact = exactEvaluation(env.built.mdp, policy.built.matrix);
-      const d = decimalsFor(result.ci.halfWidth) + 1;
-      const inside = result.ci.low <= exact.value && exact.value <= result.ci.high;
-      process.stdout.write(
-        `  exact value      ${fixed(exact.value, d)} (reckon exact): ${inside ? 'inside' : 'OUTSIDE'} the interval${inside ? '' : ', which a 95% interval does 1 time in 20'}\n`,
-      );
-    }
     process.stdout.write(`  stored as run    ${runId} ('reckon runs show ${runId}')\n\n`);
   }
   } finally {
