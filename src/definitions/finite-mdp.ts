@@ -43,6 +43,8 @@ export interface GridShape {
   readonly cellState: Int32Array;
   /** The layout character of each cell, row-major. */
   readonly cellChar: readonly string[];
+  /** For each portal cell, the layout character it jumps to (null elsewhere); absent: no portals. */
+  readonly portalTo?: readonly (string | null)[];
 }
 
 /**

@@ -85,7 +85,8 @@ export function compileGridworld(def: GridworldDefinition, source: DefinitionSou
     return [move(s, a, 1 - slip), move(s, left, slip / 2), move(s, right, slip / 2)];
   };
 
-  const grid: GridShape = { rows, cols, cellState, cellChar };
+  const portalTo = cellChar.map((ch) => def.cells[ch]?.portal?.to ?? null);
+  const grid: GridShape = { rows, cols, cellState, cellChar, portalTo };
   return assembleFiniteMdp({
     stateNames,
     actionNames: GRID_ACTIONS,

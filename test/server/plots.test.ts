@@ -4,6 +4,8 @@ import { describe, expect, it } from 'vitest';
 import { convergenceSeries, convergenceSpec, logCheckpoints } from '../../src/report/plots/convergence.js';
 import { histogramBins } from '../../src/report/plots/histogram.js';
 import { renderSvg } from '../../src/report/plots/svg.js';
+import { valueMapCells, valueMapSpec } from '../../src/report/plots/value-map.js';
+import { loadEnvironmentFile, loadPolicyFile } from '../../src/definitions/index.js';
 import { reckon } from '../cli/run-cli.js';
 import { storeTextbookRun, tempStore } from './helpers.js';
 
@@ -85,5 +87,58 @@ describe('SVG without a browser', () => {
     const bad = reckon(['runs', 'plot', id, '--store', storePath, '--out', map, '--kind', 'pie']);
     expect(bad.code).toBe(2);
     expect(bad.stderr).toMatch(/^reckon: --kind: must be one of convergence, histogram, lengths, value-map/);
+  });
+});
+
+describe('value map marks', () => {
+  const T = path.resolve(__dirname, '../../envs/textbook');
+
+  it('marks the start cell and, when asked, the policy\'s moves: the optimal policy of AIMA Fig. 17.2', async () => {
+    const env = await loadEnvironmentFile(path.join(T, 'grid-4x3.json'));
+    if (env.built.kind !== 'finite') throw new Error('a gridworld');
+    const policy = await loadPolicyFile(path.join(T, 'grid-4x3-optimal.json'), env.built);
+    const values = new Float64Array(env.built.mdp.stateCount);
+    const plain = valueMapCells(env.built.mdp, values);
+    // The world's one start cell is the bottom left (AIMA: square (1,1)).
+    expect(plain.filter((c) => c.start).map((c) => [c.row, c.col])).toEqual([[2, 0]]);
+    expect(plain.every((c) => c.arrow === null && c.portal === null)).toBe(true);
+    // Russell & Norvig, AIMA 3rd ed., Fig. 17.2 (a): the optimal policy, row by row from the top.
+    const book = ['→→→+', '↑#↑-', '↑←←←'];
+    const cells = valueMapCells(env.built.mdp, values, { policy: policy.built.matrix });
+    for (const c of cells) {
+      const expected = book[c.row][c.col];
+      expect(c.arrow, `${c.row},${c.col}`).toBe(c.wall || c.terminal ? null : expected);
+    }
+    // With --start, only that cell is a start.
+    expect(valueMapCells(env.built.mdp, values, { start: env.built.mdp.stateIndex.get('0,0') }).filter((c) => c.start).map((c) => c.state)).toEqual(['0,0']);
+  });
+
+  it('marks portals with the cell they lead to: Sutton & Barto Example 3.5 (A to A\', B to B\')', async () => {
+    const env = await loadEnvironmentFile(path.join(T, 'grid-5x5-portals.json'));
+    if (env.built.kind !== 'finite') throw new Error('a gridworld');
+    const cells = valueMapCells(env.built.mdp, new Float64Array(env.built.mdp.stateCount));
+    expect(cells.filter((c) => c.portal !== null).map((c) => [c.char, c.portal])).toEqual([['A', 'a'], ['B', 'b']]);
+    const svg = await renderSvg(valueMapSpec(cells, { title: 'portals', subtitle: '' }));
+    expect(svg).toContain('↪a');
+    expect(svg).toContain('↪b');
+  });
+
+  it('runs plot --arrows draws the moves on the value map, and only there', async () => {
+    const storePath = tempStore();
+    const id = await storeTextbookRun(storePath, 9, 500);
+    const dir = path.dirname(storePath);
+    const plain = path.join(dir, 'plain.svg');
+    const arrows = path.join(dir, 'arrows.svg');
+    expect(reckon(['runs', 'plot', id, '--store', storePath, '--out', plain, '--kind', 'value-map']).code).toBe(0);
+    expect(reckon(['runs', 'plot', id, '--store', storePath, '--out', arrows, '--kind', 'value-map', '--arrows']).code).toBe(0);
+    const [without, withArrows] = [readFileSync(plain, 'utf8'), readFileSync(arrows, 'utf8')];
+    expect(without).toContain('>S<');
+    expect(without).not.toContain('>→<');
+    // Three cells of the book's policy move right along the top row, one at the bottom goes up.
+    expect(withArrows.match(/>→</g)).toHaveLength(3);
+    expect(withArrows).toContain('>↑<');
+    const refused = reckon(['runs', 'plot', id, '--store', storePath, '--out', arrows, '--arrows']);
+    expect(refused.code).toBe(2);
+    expect(refused.stderr).toContain('--arrows: draws the policy\'s moves on a value map');
   });
 });

@@ -13,14 +13,14 @@ import { parseCommandArgs } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
 
 /**
- * `reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map|cdf]`: the
+ * `reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map|cdf] [--arrows]`: the
  * page's plot of a stored run as an SVG file, for papers and reports.
  */
 export async function plot(args: string[], help: string): Promise<number> {
   const { values, positionals } = parseCommandArgs(
     'runs',
     args,
-    { store: { type: 'string' }, out: { type: 'string' }, kind: { type: 'string' }, confidence: { type: 'string' } },
+    { store: { type: 'string' }, out: { type: 'string' }, kind: { type: 'string' }, confidence: { type: 'string' }, arrows: { type: 'boolean' } },
     true,
   );
   if (values.help) {
@@ -31,6 +31,7 @@ export async function plot(args: string[], help: string): Promise<number> {
   if (!values.out) throw new InputError('--out', 'is required: the SVG file to write, e.g. --out convergence.svg');
   const kind = (values.kind ?? 'convergence') as RunPlotKind;
   if (!RUN_PLOT_KINDS.includes(kind)) throw new InputError('--kind', `must be one of ${RUN_PLOT_KINDS.join(', ')} (got "${values.kind}")`);
+  if (values.arrows && kind !== 'value-map') throw new InputError('--arrows', `draws the policy's moves on a value map: add --kind value-map (got --kind ${kind})`);
   const storePath = values.store ?? defaultStorePath();
   const db = openStore(storePath, { readonly: true });
   let svg: string;
@@ -61,7 +62,7 @@ export async function plot(args: string[], help: string): Promise<number> {
           )
         : null;
     const sequence = kind === 'convergence' ? storedRunSequence(run, level) : null;
-    const spec = runPlotSpec(kind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact, sequence });
+    const spec = runPlotSpec(kind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact, sequence, arrows: Boolean(values.arrows) });
     if (spec === null) throw new InputError('--kind', noValueMapReason(run.id, (run.env.json as { kind?: string }).kind ?? 'unknown', exact !== null));
     svg = await renderSvg(spec);
   } finally {

@@ -30,7 +30,7 @@ Usage:
   reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--all] [--json]
   reckon runs show ID [--ci METHOD] [--confidence L] [--ignore-stop] [--risk ...] [--json]
   reckon runs export ID --format csv|json [--out FILE]
-  reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map|cdf]
+  reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map|cdf] [--arrows]
   reckon runs resume ID [--workers K] [--step-timeout SECONDS] [--json]
   reckon runs delete ID
   reckon runs merge DB... [--into DB]
@@ -50,8 +50,9 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
   export   every episode's return and length, for a notebook or a spreadsheet; for a
            comparison, the paired returns: one row an episode, one column a policy
   plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
-           returns, lengths, value-map (gridworlds), or cdf (the returns' distribution with
-           its DKW band)
+           returns, lengths, value-map (gridworlds: start cells marked S, portals ↪ the
+           cell they lead to; --arrows adds the policy's likeliest moves), or cdf (the
+           returns' distribution with its DKW band)
   resume   continue an interrupted run (Ctrl-C, a crash, a killed job) from its last
            committed episode; the result equals an uninterrupted run's. A comparison
            continues every policy on the same episodes (common random numbers)

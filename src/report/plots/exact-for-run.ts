@@ -1,4 +1,4 @@
-import { buildEnvironment, buildPolicy, parseEnvironment, parsePolicy, type DefinitionSource, type FiniteMdp } from '../../definitions/index.js';
+import { buildEnvironment, buildPolicy, parseEnvironment, parsePolicy, type DefinitionSource, type FiniteMdp, type PolicyMatrix } from '../../definitions/index.js';
 import { exactEvaluation } from '../../exact/index.js';
 
 export interface RunExactValues {
@@ -7,6 +7,10 @@ export interface RunExactValues {
   readonly value: number;
   /** V_H per state. */
   readonly states: Float64Array;
+  /** The policy the values are of, for the value map's arrows. */
+  readonly policy: PolicyMatrix;
+  /** The run's fixed start state (`--start`), or null for the start distribution. */
+  readonly start: number | null;
 }
 
 /** True when a definition names code anywhere (a module or process environment or policy, or a base). */
@@ -35,7 +39,7 @@ export async function exactForRun(
     if (!builtPolicy.matrix) return null;
     const startIndex = start === null ? undefined : builtEnv.mdp.stateIndex.get(start);
     const result = exactEvaluation(builtEnv.mdp, builtPolicy.matrix, startIndex === undefined ? {} : { start: startIndex });
-    return { mdp: builtEnv.mdp, value: result.value, states: result.states };
+    return { mdp: builtEnv.mdp, value: result.value, states: result.states, policy: builtPolicy.matrix, start: startIndex ?? null };
   } catch {
     // A definition that no longer builds (e.g. a base file changed): plot without exact values.
     return null;

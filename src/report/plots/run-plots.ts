@@ -17,6 +17,8 @@ export interface RunPlotInput {
   readonly returns: Float64Array;
   readonly lengths: Uint32Array;
   readonly exact: RunExactValues | null;
+  /** Draw the policy's likeliest moves on the value map. */
+  readonly arrows?: boolean;
   /** The confidence sequence the run stopped on, drawn instead of a t band. */
   readonly sequence?: { readonly method: string; readonly make: () => RunningInterval } | null;
 }
@@ -55,9 +57,16 @@ export function runPlotSpec(kind: RunPlotKind, input: RunPlotInput, size: { widt
       return cdfSpec(cdfSeries(input.returns, input.level), { title: [`Distribution of returns: ${policy}`, run], level: input.level, ...size });
     case 'value-map': {
       if (!input.exact || !input.exact.mdp.grid) return null;
-      return valueMapSpec(valueMapCells(input.exact.mdp, input.exact.states), {
+      const cells = valueMapCells(input.exact.mdp, input.exact.states, { policy: input.arrows ? input.exact.policy : null, start: input.exact.start });
+      const marks = [
+        'terminals outlined',
+        cells.some((c) => c.start) ? 'S: start' : '',
+        cells.some((c) => c.portal !== null) ? '↪x: portal to the cell x' : '',
+        input.arrows ? "arrows: the policy's likeliest moves (*: all alike)" : '',
+      ].filter(Boolean);
+      return valueMapSpec(cells, {
         title: [`State values: ${shortName(input.policyLabel)}`, `on ${shortName(input.envLabel)}`],
-        subtitle: `exact value of each cell (horizon ${input.exact.mdp.horizon}); terminals outlined`,
+        subtitle: `exact value of each cell (horizon ${input.exact.mdp.horizon}); ${marks.join('; ')}`,
       });
     }
   }

@@ -59,7 +59,8 @@ export function runDataRoutes(app: FastifyInstance, ctx: ServerContext): void {
   });
 
   app.get<{ Params: { id: string; kind: string } }>('/api/runs/:id/plots/:kind', async (request) => {
-    const q = queryOptions(request.query, ['confidence']);
+    const q = queryOptions(request.query, ['confidence', 'arrows']);
+    if (q.arrows !== undefined && q.arrows !== 'true' && q.arrows !== 'false') throw new InputError('arrows', `must be true or false (got "${q.arrows}")`);
     const kind = request.params.kind;
     if (!(RUN_PLOT_KINDS as readonly string[]).includes(kind)) {
       throw new NotFoundError(`plot "${kind}"`, `is not a plot; choose ${RUN_PLOT_KINDS.join(', ')}`);
@@ -70,7 +71,7 @@ export function runDataRoutes(app: FastifyInstance, ctx: ServerContext): void {
     const { returns, lengths } = ctx.analysis.episodes(run, isSettled(ctx, run));
     const exact = kind === 'convergence' || kind === 'value-map' ? await ctx.analysis.exact(run) : null;
     const sequence = kind === 'convergence' ? storedRunSequence(run, level) : null;
-    const spec = runPlotSpec(kind as RunPlotKind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact, sequence });
+    const spec = runPlotSpec(kind as RunPlotKind, { runId: run.id, envLabel: run.env.label, policyLabel: run.policy.label, level, returns, lengths, exact, sequence, arrows: q.arrows === 'true' });
     if (spec === null) throw new NotFoundError(`plot "${kind}"`, `does not apply to run ${run.id} (a value map needs a gridworld and a policy with known probabilities)`);
     return spec;
   });
