@@ -75,6 +75,13 @@ function badge(status) {
 
 function progressBar(progress) {
   if (!progress || !progress.total) return null;
+  // A target-error run: the share of the way its half-width has come, which shrinks like 1/√n,
+  // so (target / half-width)² is about the share of the episodes it will need.
+  if (progress.target_error) {
+    const hw = progress.half_width;
+    const share = hw > 0 && Number.isFinite(hw) ? Math.min(1, (progress.target_error / hw) ** 2) : 0;
+    return el('span', { class: 'progress', title: `half-width ${hw ? num(hw, 3) : '–'} against the target ±${num(progress.target_error, 3)}` }, el('span', { style: `width:${(share * 100).toFixed(1)}%` }));
+  }
   const share = Math.min(1, progress.done / progress.total);
   return el('span', { class: 'progress', title: `${count(progress.done)} of ${count(progress.total)} episodes` }, el('span', { style: `width:${(share * 100).toFixed(1)}%` }));
 }
@@ -180,8 +187,9 @@ function figureRows(run) {
   const rows = [
     ['mean return', num(run.mean)],
     [`${(run.ci.level * 100).toFixed(0)}% interval (${run.ci.method})`, centred(run) ? `${num(run.ci.low)} to ${num(run.ci.high)}  (± ${num(run.ci.half_width, 3)})` : `${num(run.ci.low)} to ${num(run.ci.high)}  (not centred on the mean)`],
+    ...(run.exact_value === null || run.exact_value === undefined ? [] : [['exact value', `${num(run.exact_value, 6)} (reckon exact): ${run.exact_inside ? 'inside' : 'OUTSIDE'} the interval`]]),
     ['standard deviation', num(run.std)],
-    ['episodes', `${count(run.episodes)} of ${count(run.episodes_requested)}`],
+    ...episodeRows(run),
     ['seed', String(run.seed)],
     ['noise', noiseWords(run.noise)],
     ['start', run.start ?? 'start distribution'],
@@ -191,6 +199,19 @@ function figureRows(run) {
     ['rate', run.steps_per_second ? `${count(run.steps_per_second)} steps/s on ${run.workers} worker${run.workers === 1 ? '' : 's'}` : '–'],
   ];
   return el('table', { class: 'figures' }, el('tbody', {}, rows.map(([k, v]) => el('tr', {}, el('th', { scope: 'row' }, k), el('td', {}, v)))));
+}
+
+/**
+ * A fixed-size run: its episodes of those asked for. A target-error run: its target and
+ * whether it was reached, and its episodes against the cap only as a cap.
+ */
+function episodeRows(run) {
+  if (run.target_error === null || run.target_error === undefined) return [['episodes', `${count(run.episodes)} of ${count(run.episodes_requested)}`]];
+  const target = `±${num(run.target_error, 3)}`;
+  return [
+    ['target half-width', run.target_reached ? `${target}: reached after ${count(run.episodes)} episodes` : `${target}: not reached (±${num(run.ci.half_width, 3)} after ${count(run.episodes)} episodes)`],
+    ['episodes', `${count(run.episodes)} (at most ${count(run.max_episodes ?? run.episodes_requested)})`],
+  ];
 }
 
 /** Whether the interval is centred on the mean: only then is a ± shown (as the command line does). */
@@ -295,14 +316,28 @@ function projectionTable(run) {
       el('td', { class: 'number' }, seconds(row.seconds))))));
 }
 
-async function plotInto(container, id, kind) {
+async function plotInto(container, id, kind, query = '') {
   try {
-    const spec = await api(`/api/runs/${encodeURIComponent(id)}/plots/${kind}`);
-    await drawPlot(container, spec);
+    const spec = await api(`/api/runs/${encodeURIComponent(id)}/plots/${kind}${query}`);
+    if (kind === 'value-map') await drawValueMap(container, id, spec, query !== '');
+    else await drawPlot(container, spec);
   } catch (error) {
     if (error.status === 404) container.remove();
     else container.replaceChildren(el('p', { class: 'error' }, `Could not draw the ${kind} plot: ${error.message}`));
   }
+}
+
+/** The value map, with a checkbox under it that redraws it with the policy's likeliest moves. */
+async function drawValueMap(container, id, spec, arrows) {
+  const canvas = el('div', { class: 'plot-canvas' });
+  const box = el('input', { type: 'checkbox', id: 'arrows-toggle' });
+  box.checked = arrows;
+  box.addEventListener('change', () => plotInto(container, id, 'value-map', box.checked ? '?arrows=true' : ''));
+  container.replaceChildren(canvas, el('label', { class: 'toggle' }, box, " show the policy's likeliest moves"));
+  await drawPlot(canvas, spec);
+  container.dataset.marks = canvas.dataset.marks;
+  container.dataset.rendered = 'true';
+  container.dataset.arrows = String(arrows);
 }
 
 async function renderRun(id) {
@@ -356,6 +391,7 @@ function stopButton(id) {
 function progressLine(p) {
   if (!p) return 'waiting in the queue…';
   const mean = p.mean === null || p.mean === undefined ? '' : `, running mean ${num(p.mean)} ± ${num(p.half_width, 2)}`;
+  if (p.target_error) return [`${count(p.done)} episodes${mean}, target ±${num(p.target_error, 3)} (at most ${count(p.total)} episodes)`, progressBar(p)];
   return [`${count(p.done)} of ${count(p.total)} episodes${mean}`, progressBar(p)];
 }
 
@@ -381,28 +417,58 @@ async function renderComparison(id) {
   const plot = el('figure', { class: 'plot', id: 'plot-differences' });
   if (c.status === 'running' || c.status === 'queued') {
     show(el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id), el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
-      el('p', { id: 'live' }, progressLine(c.progress)));
+      el('p', { id: 'live' }, progressLine(c.progress)), stopButton(id));
     const timer = setTimeout(route, 1000);
     onLeave(() => clearTimeout(timer));
     return;
   }
   const names = c.policies.map((p) => p.name);
+  const level = `${+(c.level * 100).toFixed(2)}%`;
+  const pValue = (p) => (p === null || p === undefined ? '–' : p < 1e-16 ? '< 1e-16' : num(p, 2));
+  const holm = c.p_value_adjustment === 'holm';
+  const target = c.target_error === null || c.target_error === undefined
+    ? null
+    : el('p', { id: 'comparison-target' }, c.target_reached
+      ? `Target ±${num(c.target_error, 3)} on every difference: reached after ${count(c.episodes)} paired episodes (at most ${count(c.max_episodes)}).`
+      : `Target ±${num(c.target_error, 3)} on every difference: not reached within ${count(c.episodes)} paired episodes (at most ${count(c.max_episodes)}).`);
+  const withIqm = c.policies.some((p) => p.iqm);
+  const withExact = c.policies.some((p) => p.exact_value !== null && p.exact_value !== undefined);
   show(
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
     el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers), ${noiseWords(c.noise)}.`),
+    target,
+    (c.warnings ?? []).map((w) => el('p', { class: 'warning' }, w)),
     el('p', {}, 'Each policy\'s own run: ', c.members.map((m, p) => [el('a', { href: `#/runs/${m}` }, names[p] ?? m), ' '])),
-    el('h2', {}, 'Ranking'),
-    el('ol', { class: 'ranking' }, c.ranking.map((p) => el('li', {}, `${names[p]}: ${num(c.policies[p].mean)} (${num(c.policies[p].ci.low)} to ${num(c.policies[p].ci.high)})`))),
+    el('h2', {}, 'Policies'),
+    el('table', { class: 'figures', id: 'comparison-policies' },
+      el('thead', {}, el('tr', {}, ['rank', 'policy', 'mean', `${level} interval`, ...(withExact ? ['exact value (reckon exact)'] : []), 'std', 'mean length', ...(withIqm ? [`IQM (${level} stratified bootstrap)`] : [])].map((h) => el('th', { scope: 'col' }, h)))),
+      el('tbody', {}, c.ranking.map((p) => {
+        const policy = c.policies[p];
+        return el('tr', {},
+          el('td', { class: 'number' }, String(policy.rank)),
+          el('td', {}, `[${p}] ${names[p]}`),
+          el('td', { class: 'number' }, num(policy.mean)),
+          el('td', { class: 'number' }, `${num(policy.ci.low)} to ${num(policy.ci.high)} (${policy.ci.method})`),
+          withExact ? el('td', { class: 'number' }, policy.exact_value === null ? '–' : `${num(policy.exact_value, 6)}: ${policy.exact_inside ? 'inside' : 'OUTSIDE'}`) : null,
+          el('td', { class: 'number' }, num(policy.std)),
+          el('td', { class: 'number' }, num(policy.mean_length)),
+          withIqm ? el('td', { class: 'number' }, policy.iqm ? `${num(policy.iqm.estimate)} (${num(policy.iqm.low)} to ${num(policy.iqm.high)})` : '–') : null);
+      }))),
     plot,
-    el('table', { class: 'figures' },
-      el('thead', {}, el('tr', {}, ['difference', 'mean', 'interval', 'adjusted p', 'variance reduction by pairing'].map((h) => el('th', { scope: 'col' }, h)))),
+    el('h2', {}, 'Paired differences'),
+    el('table', { class: 'figures', id: 'comparison-differences' },
+      el('thead', {}, el('tr', {}, ['difference', 'mean', `${level} interval`, 'p-value', ...(holm ? ['Holm-adjusted p'] : []), 'correlation', 'variance reduction by pairing', 'P(first returns more) (interval)'].map((h) => el('th', { scope: 'col' }, h)))),
       el('tbody', {}, c.differences.map((d) => el('tr', {},
-        el('td', {}, `${names[d.a]} − ${names[d.b]}`),
+        el('td', {}, `[${d.a}] ${names[d.a]} − [${d.b}] ${names[d.b]}`),
         el('td', { class: 'number' }, num(d.mean)),
-        el('td', { class: 'number' }, `${num(d.low)} to ${num(d.high)}`),
-        el('td', { class: 'number' }, d.adjusted_p_value < 1e-16 ? '< 1e-16' : num(d.adjusted_p_value, 2)),
-        el('td', { class: 'number' }, d.variance_reduction === null ? '–' : `${num(d.variance_reduction, 3)}×`))))),
+        el('td', { class: 'number' }, `${num(d.low)} to ${num(d.high)} (${d.method}${d.anytime_valid ? ', valid at any stop' : ''})`),
+        el('td', { class: 'number' }, pValue(d.p_value)),
+        holm ? el('td', { class: 'number' }, pValue(d.adjusted_p_value)) : null,
+        el('td', { class: 'number' }, num(d.correlation, 3)),
+        el('td', { class: 'number' }, d.variance_reduction === null ? '–' : `${num(d.variance_reduction, 3)}×`),
+        el('td', { class: 'number' }, `${num(d.probability_of_improvement.estimate, 3)} (${num(d.probability_of_improvement.low, 3)} to ${num(d.probability_of_improvement.high, 3)})`))))),
+    el('p', {}, 'Variance reduction: how many times more episodes two independent runs would need for the same interval. P(first returns more): the probability that the first policy returns more than the second in the same episode, with its interval.'),
   );
   await drawPlot(plot, await api(`/api/comparisons/${encodeURIComponent(id)}/plot`));
 }
@@ -473,8 +539,16 @@ async function renderForm() {
   };
   const env = definitionPicker('env', environments);
   const policy = definitionPicker('policy', policies);
-  const preferred = policies.find((p) => p.name === 'picker-careful.json');
-  if (preferred) { policy.select.value = preferred.name; policy.text.value = JSON.stringify(preferred.definition, null, 2); }
+  const policy2 = definitionPicker('policy2', policies);
+  const choose = (picker, name) => {
+    const found = policies.find((p) => p.name === name);
+    if (found) { picker.select.value = found.name; picker.text.value = JSON.stringify(found.definition, null, 2); }
+  };
+  choose(policy, 'picker-careful.json');
+  choose(policy2, 'picker-direct.json');
+  // Estimate one policy, or compare it with a second on the same episodes (POST /api/comparisons).
+  const mode = el('select', { id: 'mode' }, el('option', { value: 'estimate' }, 'estimate one policy'), el('option', { value: 'compare' }, 'compare two policies'));
+  const iqm = el('input', { id: 'iqm', type: 'checkbox' });
   const episodes = el('input', { id: 'episodes', type: 'number', min: 2, value: 10000 });
   const seed = el('input', { id: 'seed', type: 'number', min: 0, placeholder: 'random' });
   const confidence = el('input', { id: 'confidence', type: 'number', step: 'any', value: 0.95 });
@@ -483,49 +557,72 @@ async function renderForm() {
   const targetError = el('input', { id: 'target_error', type: 'number', step: 'any', min: 0, placeholder: 'none' });
   const submit = el('button', { type: 'submit', id: 'submit' }, 'Start');
   const status = el('p', { id: 'form-status', role: 'status' });
+  const second = field('policy2', 'Second policy', policy2.text, el('span', {}, 'bundled: ', policy2.select));
+  const iqmField = field('iqm', 'Interquartile mean', iqm, 'also each policy\'s IQM with a stratified bootstrap interval');
+  const showMode = () => {
+    const comparing = mode.value === 'compare';
+    second.hidden = !comparing;
+    iqmField.hidden = !comparing;
+    submit.textContent = comparing ? 'Compare' : 'Start';
+  };
+  mode.addEventListener('change', showMode);
   const form = el('form', { id: 'evaluation-form', novalidate: true },
+    el('div', { class: 'row' }, field('mode', 'What to run', mode, 'a comparison runs both policies on the same episodes and environment noise')),
     el('div', { class: 'columns' },
       field('env', 'Environment', env.text, el('span', {}, 'bundled: ', env.select)),
-      field('policy', 'Policy', policy.text, el('span', {}, 'bundled: ', policy.select))),
+      field('policy', 'Policy', policy.text, el('span', {}, 'bundled: ', policy.select)),
+      second),
     el('div', { class: 'row' },
       field('episodes', 'Episodes', episodes, 'with a target error: the most to run'),
       field('seed', 'Seed', seed, 'empty: chosen at random and shown'),
       field('confidence', 'Confidence', confidence),
       field('ci', 'Interval', ci),
       field('noise', 'Noise', noise, 'visit: the same draws at the same state visit'),
-      field('target_error', 'Target half-width', targetError, 'run until the interval is this narrow')),
+      field('target_error', 'Target half-width', targetError, 'run until the interval is this narrow'),
+      iqmField),
     submit, status);
+  showMode();
   form.addEventListener('submit', async (event) => {
     event.preventDefault();
     for (const m of Object.values(messages)) m.textContent = '';
     status.textContent = '';
-    const body = { env_name: env.select.value || undefined, policy_name: policy.select.value || undefined };
-    for (const [name, picker] of [['env', env], ['policy', policy]]) {
+    const comparing = mode.value === 'compare';
+    const parsed = {};
+    for (const [name, picker] of [['env', env], ['policy', policy], ...(comparing ? [['policy2', policy2]] : [])]) {
       try {
-        body[name] = JSON.parse(picker.text.value);
+        parsed[name] = JSON.parse(picker.text.value);
       } catch (error) {
         messages[name].textContent = `not JSON: ${error.message}`;
         return;
       }
     }
+    const body = comparing
+      ? {
+          env: parsed.env,
+          env_name: env.select.value || undefined,
+          policies: [[policy, parsed.policy], [policy2, parsed.policy2]].map(([picker, definition]) => ({ name: picker.select.value || undefined, definition })),
+        }
+      : { env: parsed.env, env_name: env.select.value || undefined, policy: parsed.policy, policy_name: policy.select.value || undefined };
+    if (comparing && iqm.checked) body.iqm = true;
     const numbers = { episodes, seed, confidence, target_error: targetError };
     for (const [name, input] of Object.entries(numbers)) if (input.value.trim() !== '') body[name] = Number(input.value);
-    if (body.target_error !== undefined) delete body.episodes;
     if (ci.value !== 't') body.ci = ci.value;
     if (noise.value !== 'step') body.noise = noise.value;
     submit.disabled = true;
     try {
-      const started = await api('/api/evaluations', { method: 'POST', body: JSON.stringify(body) });
-      location.hash = `#/runs/${started.id}`;
+      const started = await api(comparing ? '/api/comparisons' : '/api/evaluations', { method: 'POST', body: JSON.stringify(body) });
+      location.hash = comparing ? `#/comparisons/${started.id}` : `#/runs/${started.id}`;
     } catch (error) {
-      const where = error.field && messages[error.field] ? messages[error.field] : status;
+      // A comparison's errors name policies[0] and policies[1]: the two policy fields.
+      const fieldName = { 'policies[0]': 'policy', 'policies[1]': 'policy2' }[error.field] ?? error.field;
+      const where = fieldName && messages[fieldName] ? messages[fieldName] : status;
       where.textContent = error.message;
       status.textContent ||= error.status === 429 ? '' : 'Not started: see the message above.';
     } finally {
       submit.disabled = false;
     }
   });
-  show(el('h1', {}, 'Start an evaluation'),
+  show(el('h1', {}, 'Start an evaluation or a comparison'),
     el('p', {}, 'Definitions as in the files (README, "Definition files"); code modules and file paths are not accepted here.'), form);
 }
 

@@ -114,7 +114,7 @@ describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
       throw new Error(`${e.message}; the page says: ${await page.textContent('#main')}; errors: ${problems.join('; ')}`);
     });
     expect(await page.$$eval('#plot-differences g.mark-symbol path', (points) => points.length)).toBe(1);
-    expect(await page.textContent('ol.ranking')).toMatch(/picker-careful\.json/);
+    expect(await page.textContent('#comparison-policies tbody tr')).toMatch(/picker-careful\.json/);
 
     // Back to the run for the README's screenshot.
     await page.goto(`${base}/#/runs/${id}`);
@@ -126,4 +126,73 @@ describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
     expect(outside, 'requests to other hosts').toEqual([]);
     expect(problems, 'errors in the page').toEqual([]);
   });
+
+  it('a target-error run keeps the form\'s Episodes as its cap and shows its target; the value map draws the moves; a comparison starts from the form and shows every figure; a run stops from its page', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 1500 } });
+    const problems: string[] = [];
+    page.on('pageerror', (e) => problems.push(e.message));
+    const fail = async (e: Error) => {
+      throw new Error(`${e.message}; the page says: ${await page.textContent('#main')}; errors: ${problems.join('; ')}`);
+    };
+
+    // A target no run of 3,000 episodes reaches: the run stops at the form's 3,000.
+    await page.goto(`${base}/#/new`);
+    await page.waitForSelector('#evaluation-form');
+    await page.selectOption('#env-choice', 'warehouse.json');
+    await page.selectOption('#policy-choice', 'picker-careful.json');
+    await page.fill('#episodes', '3000');
+    await page.fill('#seed', '5');
+    await page.fill('#target_error', '0.0001');
+    await page.click('#submit');
+    await page.waitForURL(/#\/runs\/\w+$/);
+    await page.waitForSelector('table.figures', { timeout: 30_000 }).catch(fail);
+    const figures = (await page.textContent('table.figures')) ?? '';
+    expect(figures).toMatch(/target half-width\s*±1\.00e-4: not reached \(±0\.\d+ after 3,000 episodes\)/);
+    expect(figures).toMatch(/episodes\s*3,000 \(at most 3,000\)/);
+    expect(figures).not.toContain('10,000,000');
+    // The warehouse is a gridworld: the exact value sits beside the estimate.
+    expect(figures).toMatch(/exact value\s*12\.06\d+ \(reckon exact\): (inside|OUTSIDE) the interval/);
+
+    // The value map marks the start docks, and on request the policy's moves.
+    await page.waitForSelector('#plot-value-map[data-rendered="true"]').catch(fail);
+    expect(await page.$$eval('#plot-value-map g.mark-text text', (t) => t.filter((x) => x.textContent === 'S').length)).toBeGreaterThan(0);
+    expect(await page.$$eval('#plot-value-map g.mark-text text', (t) => t.filter((x) => /^[↑↓←→]+$/.test(x.textContent ?? '')).length)).toBe(0);
+    await page.check('#arrows-toggle');
+    await page.waitForSelector('#plot-value-map[data-arrows="true"][data-rendered="true"]').catch(fail);
+    expect(await page.$$eval('#plot-value-map g.mark-text text', (t) => t.filter((x) => /^[↑↓←→*]+$/.test(x.textContent ?? '')).length)).toBeGreaterThan(10);
+
+    // A comparison from the form: its page shows what 'reckon compare' prints.
+    await page.goto(`${base}/#/new`);
+    await page.waitForSelector('#evaluation-form');
+    await page.selectOption('#mode', 'compare');
+    await page.selectOption('#env-choice', 'warehouse.json');
+    await page.selectOption('#policy-choice', 'picker-careful.json');
+    await page.selectOption('#policy2-choice', 'picker-direct.json');
+    await page.fill('#episodes', '4000');
+    await page.fill('#seed', '3');
+    await page.check('#iqm');
+    await page.click('#submit');
+    await page.waitForURL(/#\/comparisons\/\w+$/);
+    await page.waitForSelector('#plot-differences[data-rendered="true"]', { timeout: 30_000 }).catch(fail);
+    const differences = (await page.textContent('#comparison-differences')) ?? '';
+    for (const figure of ['p-value', 'correlation', 'variance reduction by pairing', 'P(first returns more)']) expect(differences).toContain(figure);
+    expect(differences).toMatch(/picker-careful\.json − \[1\] picker-direct\.json/);
+    const policies = (await page.textContent('#comparison-policies')) ?? '';
+    expect(policies).toMatch(/IQM/);
+    expect(policies).toMatch(/exact value/);
+    expect(await page.$$eval('#comparison-policies tbody tr', (rows) => rows.length)).toBe(2);
+
+    // A long run stopped from its page ends interrupted.
+    await page.goto(`${base}/#/new`);
+    await page.waitForSelector('#evaluation-form');
+    await page.selectOption('#env-choice', 'warehouse.json');
+    await page.fill('#episodes', '9000000');
+    await page.click('#submit');
+    await page.waitForURL(/#\/runs\/\w+$/);
+    await page.waitForSelector('#stop-run', { timeout: 30_000 }).catch(fail);
+    await page.click('#stop-run');
+    await expect.poll(() => page.textContent('h1'), { timeout: 30_000 }).toMatch(/interrupted/);
+
+    expect(problems, 'errors in the page').toEqual([]);
+  }, 120_000);
 });

@@ -1,7 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import type { ServerContext } from '../context.js';
 import type { JobEvent } from '../run-queue.js';
-import { findStoredRun, liveState } from './runs.js';
+import { findStoredRun, liveState, targetErrorOf } from './runs.js';
 
 /**
  * `GET /api/runs/:id/events`: server-sent events (the HTML standard's `text/event-stream`)
@@ -31,7 +31,7 @@ export function eventRoutes(app: FastifyInstance, ctx: ServerContext): void {
       if (event.type === 'started') send('state', { id: run.id, status: 'running', progress: null });
       else if (event.type === 'progress') {
         const p = event.progress;
-        send('progress', { id: run.id, done: p.done, total: p.total, seconds: p.seconds, mean: p.mean, half_width: p.halfWidth });
+        send('progress', { id: run.id, done: p.done, total: p.total, seconds: p.seconds, mean: p.mean, half_width: p.halfWidth, target_error: targetErrorOf(run) });
       } else {
         send('end', { id: run.id, status: event.status, error: event.error });
         stop();

@@ -14,13 +14,21 @@ export function liveState(ctx: ServerContext, run: RunRecord): { status: string;
   // While this server holds the run, its state wins: the store may already say done a moment
   // before the run's thread has handed over.
   const status = queued ? queued.state : run.status;
+  // A target-error run's progress is its half-width against the target; `total` is only its cap.
+  const targetError = targetErrorOf(run);
   const progress =
     queued?.state === 'running' && queued.progress
-      ? { done: queued.progress.done, total: queued.progress.total, seconds: queued.progress.seconds, mean: queued.progress.mean, half_width: queued.progress.halfWidth }
+      ? { done: queued.progress.done, total: queued.progress.total, seconds: queued.progress.seconds, mean: queued.progress.mean, half_width: queued.progress.halfWidth, target_error: targetError }
       : run.status === 'running' || queued
-        ? { done: run.episodesDone, total: run.episodesRequested, seconds: run.seconds, mean: null, half_width: null }
+        ? { done: run.episodesDone, total: run.episodesRequested, seconds: run.seconds, mean: null, half_width: null, target_error: targetError }
         : null;
   return { status, queue: queued, progress };
+}
+
+/** The half-width a run stops at, or null for a run of fixed size. */
+export function targetErrorOf(run: RunRecord): number | null {
+  const target = (run.options as { targetError?: unknown }).targetError;
+  return typeof target === 'number' ? target : null;
 }
 
 /** True when a run can no longer change, so what is computed from it may be kept. */
