@@ -137,16 +137,19 @@ const slowDir = tempFiles({
   });`,
 });
 
-/** Starts an estimate, waits until its store exists (its signal handlers are then in place), sends `signal`. */
-async function signalled(env: string, signal: NodeJS.Signals, store: string): Promise<{ code: number | null | string; stderr: string; ms: number }> {
+/**
+ * Starts an estimate, waits until `ready` (its store exists: its signal handlers are in place;
+ * or its run is stored: its module was created), and a second more, then sends `signal`.
+ */
+async function signalled(env: string, signal: NodeJS.Signals, store: string, ready: () => boolean): Promise<{ code: number | null | string; stderr: string; ms: number }> {
   const child = spawn(process.execPath, [CLI, 'estimate', '--env', path.join(slowDir, env), '--policy', path.join(slowDir, 'uniform.json'), '--episodes', '50', '--seed', '3', '--workers', '1', '--step-timeout', '600', '--store', store], {
     env: { ...process.env, RECKON_NO_PROGRESS: '1' },
   });
   let stderr = '';
   child.stderr.on('data', (d) => (stderr += d));
   const exited = new Promise<number | null>((r) => child.on('exit', (code) => r(code)));
-  for (let waited = 0; !existsSync(store); waited += 100) {
-    if (waited > 60_000) throw new Error('the run never opened its store');
+  for (let waited = 0; !ready(); waited += 100) {
+    if (waited > 60_000) throw new Error(`the run was never ready: ${stderr}`);
     await new Promise((r) => setTimeout(r, 100));
   }
   await new Promise((r) => setTimeout(r, 1000));
@@ -160,7 +163,7 @@ async function signalled(env: string, signal: NodeJS.Signals, store: string): Pr
 describe('a run stopped before its first episode ends', () => {
   it('Ctrl-C while a module factory never returns exits 130 at once and stores nothing', async () => {
     const store = path.join(tempFiles({}), 'runs.sqlite');
-    const { code, stderr, ms } = await signalled('stalls.json', 'SIGINT', store);
+    const { code, stderr, ms } = await signalled('stalls.json', 'SIGINT', store, () => existsSync(store));
     expect(code).toBe(130);
     expect(ms).toBeLessThan(8000);
     expect(stderr).toContain('interrupted (SIGINT) while the environment and policy were being created');
@@ -169,7 +172,8 @@ describe('a run stopped before its first episode ends', () => {
 
   it('SIGTERM during the first episode marks the run interrupted, exits 143 and says how to resume', async () => {
     const store = path.join(tempFiles({}), 'runs.sqlite');
-    const { code, stderr } = await signalled('crawls.json', 'SIGTERM', store);
+    // Signalled once the run is stored, while its first episode (four seconds) runs.
+    const { code, stderr } = await signalled('crawls.json', 'SIGTERM', store, () => runStored(store));
     expect(code).toBe(143);
     expect(stderr).not.toContain('no episodes to summarise');
     const resume = /reckon runs resume ([a-z2-9]{8})/.exec(stderr);
