@@ -141,8 +141,14 @@ const slowDir = tempFiles({
  * Starts an estimate, waits until `ready` (its store exists: its signal handlers are in place;
  * or its run is stored: its module was created), and a second more, then sends `signal`.
  */
-async function signalled(env: string, signal: NodeJS.Signals, store: string, ready: () => boolean): Promise<{ code: number | null | string; stderr: string; ms: number }> {
-  const child = spawn(process.execPath, [CLI, 'estimate', '--env', path.join(slowDir, env), '--policy', path.join(slowDir, 'uniform.json'), '--episodes', '50', '--seed', '3', '--workers', '1', '--step-timeout', '600', '--store', store], {
+async function signalled(
+  env: string,
+  signal: NodeJS.Signals,
+  store: string,
+  ready: () => boolean,
+  command: string[] = ['estimate', '--policy', path.join(slowDir, 'uniform.json')],
+): Promise<{ code: number | null | string; stderr: string; ms: number }> {
+  const child = spawn(process.execPath, [CLI, ...command, '--env', path.join(slowDir, env), '--episodes', '50', '--seed', '3', '--workers', '1', '--step-timeout', '600', '--store', store], {
     env: { ...process.env, RECKON_NO_PROGRESS: '1' },
   });
   let stderr = '';
@@ -183,5 +189,18 @@ describe('a run stopped before its first episode ends', () => {
     expect(runs[0].id).toBe(resume![1]);
     expect(runs[0].status).toBe('interrupted');
     expect(runs[0].episodes).toBe(0);
+  }, 90_000);
+
+  it('Ctrl-C during a comparison\'s first episode keeps it interrupted, exits 130 and names the resume command', async () => {
+    const store = path.join(tempFiles({}), 'runs.sqlite');
+    const uniform = path.join(slowDir, 'uniform.json');
+    const { code, stderr } = await signalled('crawls.json', 'SIGINT', store, () => runStored(store), ['compare', '--policy', uniform, '--policy', uniform]);
+    expect(code).toBe(130);
+    const resume = /reckon runs resume ([a-z2-9]{8})/.exec(stderr);
+    expect(resume).not.toBeNull();
+    const runs = JSON.parse(reckon(['runs', 'list', '--store', store, '--all', '--json']).stdout);
+    expect(runs).toHaveLength(3);
+    expect(runs.map((r: { status: string }) => r.status)).toEqual(['interrupted', 'interrupted', 'interrupted']);
+    expect(runs.find((r: { id: string }) => r.id === resume![1]).kind).toBe('comparison');
   }, 90_000);
 });
