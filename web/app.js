@@ -178,6 +178,16 @@ async function renderRunList() {
 
 // ---- one run -----------------------------------------------------------------------------
 
+/** A run's labels (key=value) and notes, oldest first; nothing when it has none. */
+function annotationsBlock(run) {
+  const labels = Object.entries(run.labels ?? {});
+  const notes = run.notes ?? [];
+  if (labels.length === 0 && notes.length === 0) return null;
+  return el('section', { class: 'annotations', id: 'annotations' },
+    labels.length ? el('p', { class: 'labels' }, 'Labels: ', labels.map(([k, v]) => el('span', { class: 'label', 'data-key': k }, `${k}=${v}`))) : null,
+    notes.length ? el('ul', { class: 'notes' }, notes.map((n) => el('li', {}, el('time', { datetime: n.added_at }, new Date(n.added_at).toLocaleString()), ' ', n.text))) : null);
+}
+
 /** A run's noise mode in words; runs stored before the mode was recorded are step-keyed. */
 function noiseWords(mode) {
   return mode === 'visit' ? 'keyed by state visit (--noise visit)' : 'keyed by step (--noise step)';
@@ -353,6 +363,7 @@ async function renderRun(id) {
   show(
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `${run.policy} on ${run.env} `, badge(run.status)),
+    annotationsBlock(run),
     live ? el('p', { id: 'live' }, progressLine(run.progress)) : null,
     live ? stopButton(id) : null,
     run.error ? el('p', { class: 'error' }, run.error) : null,
@@ -436,6 +447,7 @@ async function renderComparison(id) {
   show(
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
+    annotationsBlock(c),
     el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers), ${noiseWords(c.noise)}.`),
     target,
     (c.warnings ?? []).map((w) => el('p', { class: 'warning' }, w)),
@@ -492,6 +504,7 @@ async function renderOffPolicy(id) {
   show(
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `Off-policy estimate of ${r.policy} `, badge(r.status)),
+    annotationsBlock(r),
     el('p', {}, `From the log ${r.log.path}: ${count(r.log.episodes)} episodes, ${count(r.log.steps)} steps (sha256 ${r.log.sha256.slice(0, 12)}…), discount ${r.discount}${r.env ? `, environment ${r.env}` : ''}.`),
     d.verdict ? el('p', { class: 'warning', role: 'alert' }, d.verdict) : null,
     d.warnings.map((w) => el('p', { class: 'warning' }, w)),

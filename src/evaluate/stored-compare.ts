@@ -13,6 +13,7 @@ import type { EnvironmentFacts } from './environment-facts.js';
 import type { AnalysisProgress } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import type { SequenceChoice } from './sequence.js';
+import type { Annotations } from '../options/annotation-options.js';
 
 /** What a stored comparison keeps to be shown again exactly. */
 interface ComparisonOptions {
@@ -54,7 +55,7 @@ export async function runStoredComparison(
   request: CompareRequest,
   toolVersion: string,
   /** `onRunId`: told the comparison's id once it and its member runs exist, before any episode. */
-  hooks: { onRunId?: (id: string) => void } = {},
+  hooks: { onRunId?: (id: string) => void; annotations?: Annotations } = {},
 ): Promise<{ runId: string; result: ComparisonResult; memberIds: string[] }> {
   const runs: StoredComparisonRuns = { parentId: '', children: [], stored: [] };
   const labels = request.policies.map((p) => p.source.label);
@@ -96,6 +97,8 @@ export async function runStoredComparison(
         toolVersion,
         machine: machineFacts(),
         files: filesOf(request),
+        labels: hooks.annotations?.labels,
+        note: hooks.annotations?.note,
       });
       request.policies.forEach((policy, p) => {
         runs.children.push(

@@ -15,6 +15,7 @@ import { computeFigures, type AnalysisProgress } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
 import { isSequenceMethod, makeRunningInterval, SEQUENCE_METHODS, type SequenceSettings } from './sequence.js';
 import type { RunningInterval } from '../stats/index.js';
+import type { Annotations } from '../options/annotation-options.js';
 
 /** The options a stored estimate keeps, to resume it and to re-analyse it the same way. */
 export interface StoredOptions {
@@ -49,6 +50,8 @@ export interface StoredEstimateRequest {
   readonly risk?: RiskRequest | null;
   /** Told the run id as soon as the run exists (so Ctrl-C can say how to resume). */
   readonly onRunId?: (id: string) => void;
+  /** Labels and a note the run is created with. */
+  readonly annotations?: Annotations;
 }
 
 /** The files both definitions were read from, with their hashes now. */
@@ -89,6 +92,8 @@ export async function runStoredEstimate(request: StoredEstimateRequest): Promise
       machine: machineFacts(),
       shard: request.shard,
       files: filesOf(spec),
+      labels: request.annotations?.labels,
+      note: request.annotations?.note,
     });
     request.onRunId?.(runId);
     return runId;

@@ -9,6 +9,7 @@ import { definitionHash } from '../store/definition-hash.js';
 import { machineFacts } from '../store/machine.js';
 import { storeOffPolicyRun } from '../store/offpolicy-runs.js';
 import type { Db } from '../store/open.js';
+import type { Annotations } from '../options/annotation-options.js';
 import { runOffPolicy, type OffPolicyRequest, type OffPolicyRun } from './run-offpolicy.js';
 
 export interface StoredOffPolicy {
@@ -22,7 +23,7 @@ export interface StoredOffPolicy {
  * Runs the evaluation and, with a store, keeps it. `baseDir` is recorded as the definitions'
  * folder (a request's inline definitions name no files); by default the files' own.
  */
-export async function runStoredOffPolicy(db: Db | null, request: OffPolicyRequest, meta: { toolVersion: string; baseDir?: string }): Promise<StoredOffPolicy> {
+export async function runStoredOffPolicy(db: Db | null, request: OffPolicyRequest, meta: { toolVersion: string; baseDir?: string; annotations?: Annotations }): Promise<StoredOffPolicy> {
   const outcome = await runOffPolicy(request);
   const labels = {
     log: request.labels?.log ?? request.logPath,
@@ -54,6 +55,8 @@ export async function runStoredOffPolicy(db: Db | null, request: OffPolicyReques
     seconds: outcome.seconds,
     weights: outcome.result.diagnostics.weights,
     summary: json,
+    labels: meta.annotations?.labels,
+    note: meta.annotations?.note,
   });
   return { outcome, json, runId };
 }

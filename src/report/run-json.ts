@@ -30,6 +30,7 @@ export function runListRow(r: RunRecord, members: readonly RunRecord[] | null = 
     summary: withSnakeCaseKeys(r.summary),
     ci_method: intervalMethod(r),
     parent_id: r.parentId,
+    ...annotationsJson(r),
     ...(r.kind === 'comparison' && members ? { members: members.map((m) => m.id) } : {}),
   };
 }
@@ -60,6 +61,18 @@ function provenance(run: RunRecord) {
     machine: run.machine,
     /** Why a failed run failed (null otherwise). */
     error: run.error,
+    ...annotationsJson(run),
+  };
+}
+
+/**
+ * A run's labels (an object keyed by the user's own label keys) and notes, oldest first:
+ * part of every run object reckon writes.
+ */
+export function annotationsJson(run: Pick<RunRecord, 'labels' | 'notes'>) {
+  return {
+    labels: { ...run.labels },
+    notes: run.notes.map((n) => ({ added_at: n.addedAt, text: n.text })),
   };
 }
 

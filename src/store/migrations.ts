@@ -88,6 +88,23 @@ export const MIGRATIONS: readonly string[] = [
   `
   ALTER TABLE episode_chunks ADD COLUMN finals BLOB;
   `,
+  // 7: what people say about a run once it exists: labels (one value a key, set again to
+  // change it) to find runs by, and notes (kept in the order they were added).
+  `
+  CREATE TABLE run_labels (
+    run_id TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+    key    TEXT NOT NULL,
+    value  TEXT NOT NULL,
+    PRIMARY KEY (run_id, key)
+  ) WITHOUT ROWID;
+  CREATE INDEX run_labels_by_key ON run_labels (key, value);
+  CREATE TABLE run_notes (
+    run_id   TEXT NOT NULL REFERENCES runs (id) ON DELETE CASCADE,
+    added_at TEXT NOT NULL,
+    text     TEXT NOT NULL
+  );
+  CREATE INDEX run_notes_by_run ON run_notes (run_id);
+  `,
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS.length;

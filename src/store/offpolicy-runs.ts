@@ -26,6 +26,8 @@ export interface NewOffPolicyRun {
   readonly weights: Float64Array;
   /** The report as `offpolicy --json` prints it (without its run id). */
   readonly summary: Record<string, unknown>;
+  readonly labels?: Readonly<Record<string, string>>;
+  readonly note?: string | null;
 }
 
 /** Stands in for the environment of a run that had none: the log itself. */
@@ -48,6 +50,8 @@ export function storeOffPolicyRun(db: Db, run: NewOffPolicyRun): string {
       facts: { log: run.log },
       toolVersion: run.toolVersion,
       machine: run.machine,
+      labels: run.labels,
+      note: run.note,
     });
     db.prepare('INSERT INTO offpolicy_logs (run_id, label, sha256, bytes, episodes, steps, weights) VALUES (?, ?, ?, ?, ?, ?, ?)').run(
       id,

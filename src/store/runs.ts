@@ -6,6 +6,7 @@ import { ownerAlive } from './owner.js';
 import type { DefinitionFileHash } from './definition-files.js';
 import { LEGACY_NOISE, NOISE_MODES, type NoiseMode } from '../engine/noise.js';
 import { NO_FINAL_STATE } from '../engine/episode-block.js';
+import { loadAnnotations, NO_ANNOTATIONS, setLabels, addNote, type RunNote } from './annotations.js';
 
 export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
 export type RunKind = 'estimate' | 'comparison' | 'offpolicy';
@@ -43,6 +44,9 @@ export interface NewRun {
   readonly parentId?: string | null;
   /** The files the definitions were read from, with their hashes (empty for inline definitions). */
   readonly files?: readonly DefinitionFileHash[];
+  /** Labels and a note given when the run was started (`--label`, `--note`). */
+  readonly labels?: Readonly<Record<string, string>>;
+  readonly note?: string | null;
 }
 
 export interface RunRecord {
@@ -79,6 +83,10 @@ export interface RunRecord {
   readonly parentId: string | null;
   /** Null for runs stored before files were recorded. */
   readonly files: readonly DefinitionFileHash[] | null;
+  /** Labels by key (`--label`, `runs label`). */
+  readonly labels: Readonly<Record<string, string>>;
+  /** Notes in the order they were added (`--note`, `runs note`). */
+  readonly notes: readonly RunNote[];
 }
 
 interface RunRow {
@@ -172,6 +180,8 @@ export function createRun(db: Db, run: NewRun): string {
         // A caller from plain JavaScript may leave the mode out: it then ran step-keyed.
         noise: run.noise ?? LEGACY_NOISE,
       });
+      if (run.labels && Object.keys(run.labels).length > 0) setLabels(db, id, run.labels);
+      if (run.note) addNote(db, id, run.note);
       return id;
     } catch (e) {
       if ((e as { code?: string }).code === 'SQLITE_CONSTRAINT_PRIMARYKEY' && attempt < 5) continue;
@@ -248,7 +258,13 @@ export function keepHeartbeat(db: Db, runIds: () => readonly string[], seconds: 
   return () => clearInterval(timer);
 }
 
-function toRecord(row: RunRow): RunRecord {
+/** Rows as records, with their labels and notes. */
+function recordsOf(db: Db, rows: readonly RunRow[]): RunRecord[] {
+  const annotations = loadAnnotations(db, rows.map((r) => r.id));
+  return rows.map((row) => toRecord(row, annotations.get(row.id) ?? NO_ANNOTATIONS));
+}
+
+function toRecord(row: RunRow, annotations: { labels: Readonly<Record<string, string>>; notes: readonly RunNote[] }): RunRecord {
   return {
     id: row.id,
     kind: row.kind,
@@ -277,6 +293,8 @@ function toRecord(row: RunRow): RunRecord {
     parentId: row.parent_id,
     files: row.files_json === null ? null : JSON.parse(row.files_json),
     noise: storedNoise(row.noise),
+    labels: annotations.labels,
+    notes: annotations.notes,
   };
 }
 
@@ -287,7 +305,7 @@ function storedNoise(value: string | null | undefined): NoiseMode {
 
 export function findRun(db: Db, id: string): RunRecord | null {
   const row = db.prepare('SELECT * FROM runs WHERE id = ?').get(id) as RunRow | undefined;
-  return row ? toRecord(row) : null;
+  return row ? recordsOf(db, [row])[0] : null;
 }
 
 export function getRun(db: Db, id: string, storeLabel: string): RunRecord {
@@ -321,7 +339,7 @@ export function listRuns(db: Db, filter: RunFilter = {}): RunRecord[] {
   }
   const sql = `SELECT * FROM runs ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY created_at DESC, rowid DESC LIMIT ?`;
   params.push(filter.limit ?? 20);
-  return (db.prepare(sql).all(...params) as RunRow[]).map(toRecord);
+  return recordsOf(db, db.prepare(sql).all(...params) as RunRow[]);
 }
 
 /**
@@ -336,8 +354,7 @@ export function refuseIfLive(run: RunRecord, what: string): void {
 
 /** A comparison's member runs (one estimate run per policy), in the order of its policies. */
 export function listMembers(db: Db, parentId: string): RunRecord[] {
-  return (db.prepare('SELECT * FROM runs WHERE parent_id = ?').all(parentId) as RunRow[])
-    .map(toRecord)
+  return recordsOf(db, db.prepare('SELECT * FROM runs WHERE parent_id = ?').all(parentId) as RunRow[])
     .sort((x, y) => Number(x.options.policyIndex) - Number(y.options.policyIndex));
 }
 
@@ -385,5 +402,5 @@ export function listRunsForMerge(db: Db, id?: string): RunRecord[] {
   const rows = id
     ? (db.prepare('SELECT * FROM runs WHERE id = ?').all(id) as RunRow[])
     : (db.prepare("SELECT * FROM runs WHERE shard_count IS NOT NULL AND status = 'done' AND kind = 'estimate' ORDER BY shard_index").all() as RunRow[]);
-  return rows.map(toRecord);
+  return recordsOf(db, rows);
 }

@@ -7,9 +7,10 @@ import { ENVS, FIXTURES, reckon, tempFiles } from './run-cli.js';
  * Every JSON object reckon writes spells its keys in snake_case (lower case, digits and
  * underscores). The only exceptions are the camelCase aliases kept beside their snake_case
  * twins where they were first emitted (a stored run's summary interval), and maps keyed by
+ * the user's own names (a run's labels) or by
  * state names.
  */
-const KEYED_BY_NAME = new Set(['states', 'states_infinite', 'start']);
+const KEYED_BY_NAME = new Set(['states', 'states_infinite', 'start', 'labels']);
 
 function badKeys(value: unknown, where = '$'): string[] {
   if (Array.isArray(value)) return value.flatMap((v, i) => badKeys(v, `${where}[${i}]`));

@@ -15,6 +15,8 @@ import { noiseMode } from '../../options/noise-option.js';
 import { ProgressLine } from '../progress.js';
 import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
+import { annotationRecord, storedAnnotations } from '../annotate.js';
+import { annotationsJson } from '../../report/run-json.js';
 
 export const HELP = `reckon compare: is one policy really better than another, and by how much?
 
@@ -53,6 +55,8 @@ Options:
                         environments only). 'estimate --noise MODE' gives each policy's figures
   --workers K           worker threads (default: all cores)
   --store PATH | --no-store
+  --label KEY=VALUE     label the stored comparison (repeatable), for 'runs list --label'
+  --note TEXT           a note kept with the stored comparison
   --step-timeout SECONDS
                         how long one call into a code environment or policy may take
                         before the run fails, naming the episode and step (default 10)
@@ -89,6 +93,8 @@ const OPTIONS = {
   json: { type: 'boolean' },
   'step-timeout': { type: 'string' },
   noise: { type: 'string' },
+  label: { type: 'string', multiple: true },
+  note: { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -105,6 +111,7 @@ export async function run(args: string[]): Promise<number> {
   const { episodes, targetError } = runSize(values);
   const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
   const { method, sequence } = differenceMethod(values.ci, targetError);
+  const annotations = storedAnnotations(values);
 
   const env = readDefinitionFile(envPath);
   const request: CompareRequest = {
@@ -140,7 +147,7 @@ export async function run(args: string[]): Promise<number> {
       onAnalysis: (step, done, total) => progress.analysis(step, done, total),
     };
     if (db) {
-      const stored = await runStoredComparison(db, withProgress, version());
+      const stored = await runStoredComparison(db, withProgress, version(), { annotations });
       result = stored.result;
       runId = stored.runId;
       memberIds = stored.memberIds;
@@ -158,7 +165,7 @@ export async function run(args: string[]): Promise<number> {
   }
   const labels = { env: envPath, policies: policyPaths };
   if (values.json) {
-    process.stdout.write(`${JSON.stringify(compareJson(result, labels, version(), runId, memberIds), null, 2)}\n`);
+    process.stdout.write(`${JSON.stringify({ ...compareJson(result, labels, version(), runId, memberIds), ...annotationsJson(annotationRecord(annotations)) }, null, 2)}\n`);
   } else {
     process.stdout.write(compareText(result, labels));
     if (runId) process.stdout.write(`  Stored as run ${runId} in ${storePath}.\n`);

@@ -18,6 +18,8 @@ import { ProgressLine } from '../progress.js';
 import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 import { prepareRecorder } from '../../evaluate/record-log.js';
+import { annotationRecord, storedAnnotations } from '../annotate.js';
+import { annotationsJson } from '../../report/run-json.js';
 
 export const HELP = `reckon estimate: run seeded episodes and estimate the policy's expected discounted return
 
@@ -69,6 +71,9 @@ Options:
   --store PATH          the run store (default: $RECKON_STORE, else
                         ~/.local/share/reckon/runs.sqlite)
   --no-store            do not keep this run
+  --label KEY=VALUE     label the stored run (repeatable), to find it again with
+                        'reckon runs list --label KEY=VALUE'
+  --note TEXT           a note kept with the stored run ('reckon runs show' prints it)
   --record FILE         also write the run's episodes as a log (JSON Lines, with the policy's
                         probabilities) for 'reckon offpolicy'; the policy must give its
                         probabilities (any built-in kind, or a module with probabilities)
@@ -107,6 +112,8 @@ const OPTIONS = {
   quantiles: { type: 'string' },
   tail: { type: 'string' },
   event: { type: 'string', multiple: true },
+  label: { type: 'string', multiple: true },
+  note: { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -121,6 +128,7 @@ export async function run(args: string[]): Promise<number> {
   const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
   const method = values.ci === undefined ? null : parseOption('ci', 'interval', values.ci);
   const risk = riskRequestFrom(values);
+  const annotations = storedAnnotations(values);
   const targetEvent = values['target-event'] === undefined ? null : parseEvent(values['target-event']);
   if (targetEvent && targetError === null) throw new InputError('--target-event', "needs --target-error E: the half-width to reach on the event's probability, e.g. --target-error 0.001");
 
@@ -159,6 +167,7 @@ export async function run(args: string[]): Promise<number> {
         onProgress: (p) => progress.update(p),
         onAnalysis: (step, done, total) => progress.analysis(step, done, total),
         risk,
+        annotations,
       });
       result = stored.result;
       runId = stored.runId;
@@ -193,7 +202,7 @@ export async function run(args: string[]): Promise<number> {
     }
   }
   if (values.json) {
-    process.stdout.write(`${JSON.stringify(estimateJson(result, labels, version(), runId), null, 2)}\n`);
+    process.stdout.write(`${JSON.stringify({ ...estimateJson(result, labels, version(), runId), ...annotationsJson(annotationRecord(annotations)) }, null, 2)}\n`);
   } else {
     process.stdout.write(estimateText(result, labels));
     if (runId) process.stdout.write(`\n  Stored as run ${runId} in ${storePath}${shard ? ` (shard ${shard.index}/${shard.count})` : ''}.\n`);

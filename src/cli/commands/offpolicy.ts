@@ -7,6 +7,8 @@ import { offPolicyText } from '../../report/offpolicy-text.js';
 import { DEFAULT_RESAMPLES } from '../../stats/bootstrap-resample.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
+import { annotationRecord, storedAnnotations } from '../annotate.js';
+import { annotationsJson } from '../../report/run-json.js';
 import { version } from '../version.js';
 
 export const HELP = `reckon offpolicy: the return a target policy would get, estimated from episodes logged under another
@@ -40,6 +42,8 @@ Options:
   --store PATH        the run store (default: $RECKON_STORE, else
                       ~/.local/share/reckon/runs.sqlite); 'reckon runs show ID' prints it again
   --no-store          do not keep this run
+  --label KEY=VALUE   label the stored run (repeatable), for 'runs list --label'
+  --note TEXT         a note kept with the stored run
   -h, --help          this help
 
 Examples:
@@ -61,6 +65,8 @@ const OPTIONS = {
   json: { type: 'boolean' },
   store: { type: 'string' },
   'no-store': { type: 'boolean' },
+  label: { type: 'string', multiple: true },
+  note: { type: 'string' },
 } as const;
 
 export async function run(args: string[]): Promise<number> {
@@ -72,6 +78,7 @@ export async function run(args: string[]): Promise<number> {
   const logPath = required('offpolicy', 'log', values.log, '--log episodes.jsonl');
   const policyPath = required('offpolicy', 'policy', values.policy, '--policy envs/picker-careful.json');
   const seed = values.seed === undefined ? 1 : parseOption('seed', 'seed', values.seed);
+  const annotations = storedAnnotations(values);
   const request = {
     logPath,
     policyPath,
@@ -87,12 +94,12 @@ export async function run(args: string[]): Promise<number> {
   const db = storePath === null ? null : openStore(storePath);
   let stored;
   try {
-    stored = await runStoredOffPolicy(db, request, { toolVersion: version() });
+    stored = await runStoredOffPolicy(db, request, { toolVersion: version(), annotations });
   } finally {
     db?.close();
   }
   const { json, runId } = stored;
-  if (values.json) process.stdout.write(`${JSON.stringify({ ...json, run_id: runId }, null, 2)}\n`);
+  if (values.json) process.stdout.write(`${JSON.stringify({ ...json, run_id: runId, ...annotationsJson(annotationRecord(annotations)) }, null, 2)}\n`);
   else {
     process.stdout.write(offPolicyText(json));
     if (runId) process.stdout.write(`\n  Stored as run ${runId} in ${storePath}.\n`);

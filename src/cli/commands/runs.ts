@@ -6,7 +6,8 @@ import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-es
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
-import { comparisonShowJson, runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
+import { annotationsJson, comparisonShowJson, runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
+import { annotationsText } from '../../report/annotations-text.js';
 import { analyzeStoredComparison, resumeStoredComparison } from '../../evaluate/stored-compare.js';
 import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
@@ -29,6 +30,8 @@ export const HELP = `reckon runs: review, re-analyse, export, resume and merge s
 Usage:
   reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--all] [--json]
   reckon runs show ID [--ci METHOD] [--confidence L] [--ignore-stop] [--risk ...] [--json]
+  reckon runs label ID KEY=VALUE... [--remove KEY] [--json]
+  reckon runs note ID TEXT [--json]
   reckon runs export ID --format csv|json [--out FILE]
   reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map|cdf] [--arrows]
   reckon runs resume ID [--workers K] [--step-timeout SECONDS] [--json]
@@ -47,6 +50,10 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
            an anytime-valid sequence (betting, empirical-bernstein, ...); --ignore-stop allows
            a fixed-sample interval as a what-if; --risk (with --quantiles, --tail,
            --event as for estimate) adds quantiles, the worst-α mean and event probabilities
+  label    set labels on a run (a key it has takes the new value), or --remove them;
+           estimate, compare and offpolicy take --label KEY=VALUE when they start one
+  note     add a note to a run (notes are kept in order; estimate, compare and offpolicy
+           take --note TEXT)
   export   every episode's return and length, for a notebook or a spreadsheet; for a
            comparison, the paired returns: one row an episode, one column a policy
   plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
@@ -65,6 +72,8 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
 Examples:
   reckon runs list --policy picker --limit 5
   reckon runs show k3x9p2ab --ci bootstrap
+  reckon runs label k3x9p2ab reported=yes quarter=q4
+  reckon runs note k3x9p2ab "the figure in the safety review"
   reckon runs export k3x9p2ab --format csv --out returns.csv
   reckon runs merge shard-1.sqlite shard-2.sqlite shard-3.sqlite --into all.sqlite
 `;
@@ -106,8 +115,12 @@ export async function run(args: string[]): Promise<number> {
       return merge(rest);
     case 'check':
       return check(rest);
+    case 'label':
+      return (await import('./runs-annotate.js')).label(rest, HELP);
+    case 'note':
+      return (await import('./runs-annotate.js')).note(rest, HELP);
     default:
-      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, export, plot, resume, delete, merge or check (see 'reckon runs --help')`);
+      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, label, note, export, plot, resume, delete, merge or check (see 'reckon runs --help')`);
   }
 }
 
@@ -165,8 +178,8 @@ function show(args: string[]): number {
     const onAnalysis = (step: string, done: number, total: number) => progress.analysis(step, done, total);
     if (run.kind === 'offpolicy') {
       // Nothing to recompute: the figures are those of the run, kept whole as its summary.
-      if (values.json) process.stdout.write(`${JSON.stringify({ ...run.summary, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion }, null, 2)}\n`);
-      else process.stdout.write(`Run ${run.id} (off-policy, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n\n${offPolicyText(run.summary as unknown as OffPolicyJson)}`);
+      if (values.json) process.stdout.write(`${JSON.stringify({ ...run.summary, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion, ...annotationsJson(run) }, null, 2)}\n`);
+      else process.stdout.write(`Run ${run.id} (off-policy, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n${annotationsText(run)}\n${offPolicyText(run.summary as unknown as OffPolicyJson)}`);
       return 0;
     }
     if (run.kind === 'comparison') {
@@ -177,7 +190,7 @@ function show(args: string[]): number {
         process.stdout.write(`${JSON.stringify(comparisonShowJson(run, result, labels, members), null, 2)}\n`);
       } else {
         const parts = members.map((m, p) => `[${p}] ${m.id}`).join(', ');
-        process.stdout.write(`Run ${run.id} (comparison, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n  member runs, one a policy: ${parts}\n\n${compareText(result, labels)}`);
+        process.stdout.write(`Run ${run.id} (comparison, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n  member runs, one a policy: ${parts}\n${annotationsText(run)}\n${compareText(result, labels)}`);
       }
       return 0;
     }
@@ -185,7 +198,7 @@ function show(args: string[]): number {
     if (run.episodesDone < 2) {
       // Too few episodes for figures (it failed or stopped at once): say where it stands.
       if (values.json) process.stdout.write(`${JSON.stringify(runPendingJson(run), null, 2)}\n`);
-      else process.stdout.write(`${header}  ${run.episodesDone} episode(s) stored: too few for an interval.\n${statusNote(run, values.store ?? '')}`);
+      else process.stdout.write(`${header}${annotationsText(run)}  ${run.episodesDone} episode(s) stored: too few for an interval.\n${statusNote(run, values.store ?? '')}`);
       return 0;
     }
     const result = analyzeStoredRun(db, run, { method, level, onAnalysis, ignoreStop: values['ignore-stop'] === true, risk });
@@ -195,7 +208,7 @@ function show(args: string[]): number {
       process.stdout.write(`${JSON.stringify(runShowJson(run, result), null, 2)}\n`);
     } else {
       process.stdout.write(header);
-      process.stdout.write(`  environment hash ${run.env.hash.slice(0, 12)}, policy hash ${run.policy.hash.slice(0, 12)}\n\n`);
+      process.stdout.write(`  environment hash ${run.env.hash.slice(0, 12)}, policy hash ${run.policy.hash.slice(0, 12)}\n${annotationsText(run)}\n`);
       process.stdout.write(estimateText(result, labels));
       process.stdout.write(statusNote(run, values.store ?? ''));
     }

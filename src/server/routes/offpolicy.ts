@@ -10,6 +10,7 @@ import { loadOffPolicyLog } from '../../store/offpolicy-runs.js';
 import type { ServerContext } from '../context.js';
 import { queryOptions } from '../query.js';
 import { findStoredRun } from './runs.js';
+import { annotationsJson } from '../../report/run-json.js';
 
 function workerUrl(): string {
   const here = fileURLToPath(import.meta.url);
@@ -84,7 +85,7 @@ export function offPolicyRoutes(app: FastifyInstance, ctx: ServerContext): void 
   app.get<{ Params: { id: string } }>('/api/offpolicy/:id', async (request) => {
     queryOptions(request.query, []);
     const run = offPolicyRun(request.params.id);
-    return { ...run.summary, run_id: run.id, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion };
+    return { ...run.summary, run_id: run.id, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion, ...annotationsJson(run) };
   });
 
   app.get<{ Params: { id: string } }>('/api/offpolicy/:id/plot', async (request) => {
