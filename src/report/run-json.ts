@@ -48,6 +48,10 @@ export function intervalMethod(r: RunRecord): string | null {
  * the run's provenance). test/server/api.test.ts checks the two agree key for key.
  */
 /** Where a run came from and where it stands: the keys every run object adds to its figures. */
+export function runProvenanceJson(run: RunRecord) {
+  return provenance(run);
+}
+
 function provenance(run: RunRecord) {
   return {
     status: run.status,

@@ -316,12 +316,31 @@ export function getRun(db: Db, id: string, storeLabel: string): RunRecord {
 
 export interface RunFilter {
   readonly envHash?: string;
+  /** Exact environment hashes (`--env FILE`: the file's definition as it is now). */
+  readonly envHashes?: readonly string[];
   readonly policy?: string;
   readonly limit?: number;
   readonly parentId?: string | null;
+  /** Every one must match: a key with that value, or (value null) with any value. */
+  readonly labels?: readonly { key: string; value: string | null }[];
+  /** ISO times: created at or after `since`, before `until`. */
+  readonly since?: string | null;
+  readonly until?: string | null;
+  /** As runs read (a run whose process died reads as interrupted). */
+  readonly statuses?: readonly RunStatus[] | null;
+  readonly kinds?: readonly RunKind[] | null;
+  /** A part of a note, of the environment's or policy's name, or of a definition file's path. */
+  readonly text?: string | null;
 }
 
-/** Runs newest first; `envHash` matches a prefix, `policy` a part of the policy's label. */
+function likeAnywhere(text: string): string {
+  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
+/**
+ * Runs newest first; `envHash` matches a prefix, `policy` a part of the policy's label, `text`
+ * a part of any note or name (case-insensitive for ASCII, as SQLite's LIKE is).
+ */
 export function listRuns(db: Db, filter: RunFilter = {}): RunRecord[] {
   const where: string[] = [];
   const params: unknown[] = [];
@@ -329,17 +348,59 @@ export function listRuns(db: Db, filter: RunFilter = {}): RunRecord[] {
     where.push("env_hash LIKE ? ESCAPE '\\'");
     params.push(`${filter.envHash.replace(/[\\%_]/g, (c) => `\\${c}`)}%`);
   }
+  if (filter.envHashes) {
+    where.push(`env_hash IN (${filter.envHashes.map(() => '?').join(',') || "''"})`);
+    params.push(...filter.envHashes);
+  }
   if (filter.policy) {
     where.push("policy_label LIKE ? ESCAPE '\\'");
-    params.push(`%${filter.policy.replace(/[\\%_]/g, (c) => `\\${c}`)}%`);
+    params.push(likeAnywhere(filter.policy));
   }
   if (filter.parentId !== undefined) {
     where.push(filter.parentId === null ? 'parent_id IS NULL' : 'parent_id = ?');
     if (filter.parentId !== null) params.push(filter.parentId);
   }
-  const sql = `SELECT * FROM runs ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY created_at DESC, rowid DESC LIMIT ?`;
-  params.push(filter.limit ?? 20);
-  return recordsOf(db, db.prepare(sql).all(...params) as RunRow[]);
+  for (const label of filter.labels ?? []) {
+    where.push(`EXISTS (SELECT 1 FROM run_labels l WHERE l.run_id = runs.id AND l.key = ?${label.value === null ? '' : ' AND l.value = ?'})`);
+    params.push(label.key, ...(label.value === null ? [] : [label.value]));
+  }
+  if (filter.since) {
+    where.push('created_at >= ?');
+    params.push(filter.since);
+  }
+  if (filter.until) {
+    where.push('created_at < ?');
+    params.push(filter.until);
+  }
+  if (filter.kinds) {
+    where.push(`kind IN (${filter.kinds.map(() => '?').join(',')})`);
+    params.push(...filter.kinds);
+  }
+  if (filter.statuses) {
+    // A run recorded as running may read as interrupted (its process is gone): decided below.
+    const stored = new Set<string>(filter.statuses);
+    if (stored.has('interrupted')) stored.add('running');
+    where.push(`status IN (${[...stored].map(() => '?').join(',')})`);
+    params.push(...stored);
+  }
+  if (filter.text) {
+    const like = likeAnywhere(filter.text);
+    where.push(`(env_label LIKE ?1 ESCAPE '\\' OR policy_label LIKE ?1 ESCAPE '\\' OR files_json LIKE ?1 ESCAPE '\\'
+      OR EXISTS (SELECT 1 FROM run_notes n WHERE n.run_id = runs.id AND n.text LIKE ?1 ESCAPE '\\'))`.replace(/\?1/g, '?'));
+    params.push(like, like, like, like);
+  }
+  const limit = filter.limit ?? 20;
+  const sql = `SELECT * FROM runs ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY created_at DESC, rowid DESC${filter.statuses ? '' : ' LIMIT ?'}`;
+  if (!filter.statuses) params.push(limit);
+  const rows = db.prepare(sql).all(...params) as RunRow[];
+  if (!filter.statuses) return recordsOf(db, rows);
+  const statuses = new Set<string>(filter.statuses);
+  const out: RunRecord[] = [];
+  // Status as read needs each row's owner; read them in pages until the limit is reached.
+  for (let start = 0; start < rows.length && out.length < limit; start += 200) {
+    for (const run of recordsOf(db, rows.slice(start, start + 200))) if (statuses.has(run.status) && out.length < limit) out.push(run);
+  }
+  return out;
 }
 
 /**

@@ -1,7 +1,7 @@
 /**
  * Labels and notes on stored runs: given when a run starts (`--label`, `--note`), added later
  * (`runs label`, `runs note`), and given back by `runs show`, `runs list`, the API and every
- * run JSON; and a store at the schema before them (5) migrates with its runs intact. The
+ * run JSON; and a store at the schema before them (6) migrates with its runs intact. The
  * reference is what was given (common practice: a store gives back what it was given).
  */
 import path from 'node:path';
@@ -21,16 +21,16 @@ function json(result: { code: number | null; stdout: string; stderr: string }) {
 }
 
 describe('labels and notes', () => {
-  it('a store at schema 5 migrates: its runs and episodes are intact, and they take labels', () => {
+  it('a store at schema 6 migrates: its runs and episodes are intact, and they take labels', () => {
     const store = path.join(tempFiles({}), 'runs.sqlite');
     const before = json(reckon(['estimate', ...grid, '--episodes', '500', '--seed', '4', '--store', store, '--json']));
-    // Back to the store the previous reckon left: schema 5, without the tables of labels and notes.
+    // Back to the store the previous reckon left: schema 6, without the tables of labels and notes.
     const old = new Database(store);
-    old.exec('UPDATE reckon_schema SET version = 5; DROP TABLE run_labels; DROP TABLE run_notes;');
+    old.exec('UPDATE reckon_schema SET version = 6; DROP TABLE run_labels; DROP TABLE run_notes;');
     const chunks = old.prepare('SELECT COUNT(*) AS n, SUM(count) AS episodes FROM episode_chunks').get();
     expect(old.prepare("SELECT COUNT(*) AS n FROM sqlite_master WHERE name IN ('run_labels', 'run_notes')").get()).toStrictEqual({ n: 0 });
     old.close();
-    expect(MIGRATIONS.length).toBeGreaterThan(5);
+    expect(MIGRATIONS.length).toBeGreaterThan(6);
 
     const labelled = json(reckon(['runs', 'label', before.run_id, 'reported=yes', '--store', store, '--json']));
     expect(labelled.labels).toStrictEqual({ reported: 'yes' });

@@ -31,8 +31,8 @@ describe('off-policy runs in the store', () => {
     db.close();
     const before = json(reckon(['estimate', ...grid, '--episodes', '800', '--seed', '2', '--store', store, '--json']));
     const old = new Database(store);
-    // back to schema 4: without what migrations 5 (off-policy logs) and 6 (final states) added
-    old.exec('UPDATE reckon_schema SET version = 4; DROP TABLE IF EXISTS offpolicy_logs; ALTER TABLE episode_chunks DROP COLUMN finals;');
+    // back to schema 4: without what migrations 5 (off-policy logs), 6 (final states) and 7 (labels and notes) added
+    old.exec('UPDATE reckon_schema SET version = 4; DROP TABLE IF EXISTS offpolicy_logs; ALTER TABLE episode_chunks DROP COLUMN finals; DROP TABLE IF EXISTS run_labels; DROP TABLE IF EXISTS run_notes;');
     const chunks = old.prepare('SELECT COUNT(*) AS n, SUM(count) AS episodes FROM episode_chunks').get();
     old.close();
 

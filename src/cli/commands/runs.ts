@@ -6,8 +6,10 @@ import { analyzeStoredRun, resumeStoredEstimate } from '../../evaluate/stored-es
 import { estimateJson } from '../../report/estimate-json.js';
 import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
-import { annotationsJson, comparisonShowJson, runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
+import { annotationsJson, runProvenanceJson, comparisonShowJson, runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
 import { annotationsText } from '../../report/annotations-text.js';
+import { analyzeRunsComparisonRun, isRunsCompareRecord } from '../../evaluate/runs-compare-store.js';
+import { runsCompareJson, runsCompareText } from '../../report/runs-compare-report.js';
 import { analyzeStoredComparison, resumeStoredComparison } from '../../evaluate/stored-compare.js';
 import { compareJson } from '../../report/compare-json.js';
 import { compareText } from '../../report/compare-text.js';
@@ -17,6 +19,7 @@ import { checkStore } from '../../store/check.js';
 import { openStore, type Db } from '../../store/open.js';
 import { deleteRun, getRun, listMembers, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
 import { writeOutputFile } from '../output-file.js';
+import { FILTER_HELP, FILTER_OPTIONS, filterFrom, olderVersionsText } from '../run-filter.js';
 import { riskRequestFrom } from '../../options/risk-options.js';
 import { existsSync, rmSync } from 'node:fs';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
@@ -28,8 +31,10 @@ import { version } from '../version.js';
 export const HELP = `reckon runs: review, re-analyse, export, resume and merge stored runs
 
 Usage:
-  reckon runs list [--env-hash H] [--policy NAME] [--limit N] [--all] [--json]
+  reckon runs list [filters] [--limit N] [--all] [--json]
   reckon runs show ID [--ci METHOD] [--confidence L] [--ignore-stop] [--risk ...] [--json]
+  reckon runs compare ID ID [ID...] [--ci t|bootstrap|bootstrap-percentile] [--confidence L]
+                   [--iqm] [--allow-env-change] [--store-result] [--json]
   reckon runs label ID KEY=VALUE... [--remove KEY] [--json]
   reckon runs note ID TEXT [--json]
   reckon runs export ID --format csv|json [--out FILE]
@@ -39,6 +44,8 @@ Usage:
   reckon runs merge DB... [--into DB]
   reckon runs check [--json]
 
+Filters (runs list; runs delete takes them too):
+${FILTER_HELP}
 Every subcommand takes --store PATH (default: $RECKON_STORE, else
 ~/.local/share/reckon/runs.sqlite).
 
@@ -54,6 +61,13 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
            estimate, compare and offpolicy take --label KEY=VALUE when they start one
   note     add a note to a run (notes are kept in order; estimate, compare and offpolicy
            take --note TEXT)
+  compare  stored estimate runs, without running an episode: runs of one environment,
+           seed, episode range and noise mode ran on common random numbers and are paired
+           by episode, giving exactly what 'reckon compare' gives; others are compared as
+           independent samples (Welch's interval, Holm-adjusted for three or more), and
+           the report says why they could not be paired. Runs of different environment
+           hashes are refused unless --allow-env-change (the report names what differs).
+           --store-result keeps the result as a comparison run (runs show, the page)
   export   every episode's return and length, for a notebook or a spreadsheet; for a
            comparison, the paired returns: one row an episode, one column a policy
   plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
@@ -71,7 +85,10 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
 
 Examples:
   reckon runs list --policy picker --limit 5
+  reckon runs list --label reported=yes --since 30d
+  reckon runs list --env envs/warehouse.json --status done --kind estimate
   reckon runs show k3x9p2ab --ci bootstrap
+  reckon runs compare k3x9p2ab m7wq4ctz --store-result
   reckon runs label k3x9p2ab reported=yes quarter=q4
   reckon runs note k3x9p2ab "the figure in the safety review"
   reckon runs export k3x9p2ab --format csv --out returns.csv
@@ -115,12 +132,14 @@ export async function run(args: string[]): Promise<number> {
       return merge(rest);
     case 'check':
       return check(rest);
+    case 'compare':
+      return (await import('./runs-compare.js')).compareRuns(rest, HELP);
     case 'label':
       return (await import('./runs-annotate.js')).label(rest, HELP);
     case 'note':
       return (await import('./runs-annotate.js')).note(rest, HELP);
     default:
-      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, label, note, export, plot, resume, delete, merge or check (see 'reckon runs --help')`);
+      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, label, note, compare, export, plot, resume, delete, merge or check (see 'reckon runs --help')`);
   }
 }
 
@@ -132,8 +151,7 @@ function wantsHelp(values: { help?: boolean }): boolean {
 function list(args: string[]): number {
   const { values } = parseCommandArgs('runs', args, {
     ...COMMON,
-    'env-hash': { type: 'string' },
-    policy: { type: 'string' },
+    ...FILTER_OPTIONS,
     limit: { type: 'string' },
     all: { type: 'boolean' },
   });
@@ -141,14 +159,18 @@ function list(args: string[]): number {
   const limit = values.limit === undefined ? 20 : parseOption('limit', 'limit', values.limit);
   const { db } = storeFor(values.store);
   try {
+    const { filter, envFile, any } = filterFrom(db, values);
     // Comparisons' member runs are listed under their comparison, or (--all) as runs of their own.
-    const runs = listRuns(db, { envHash: values['env-hash'], policy: values.policy, limit, parentId: values.all ? undefined : null });
+    const runs = listRuns(db, { ...filter, limit, parentId: values.all ? undefined : null });
     const members = new Map(runs.filter((r) => r.kind === 'comparison').map((r) => [r.id, listMembers(db, r.id)]));
+    const older = envFile ? olderVersionsText(envFile) : '';
     if (values.json) {
       const rows = runs.map((r) => runListRow(r, members.get(r.id) ?? null));
       process.stdout.write(`${JSON.stringify(rows, null, 2)}\n`);
+      if (older) process.stderr.write(`reckon: ${older}`);
     } else {
-      process.stdout.write(runsListText(runs, values.all ? new Map() : members));
+      process.stdout.write(runs.length === 0 && any ? 'No stored runs match these filters.\n' : runsListText(runs, values.all ? new Map() : members));
+      if (older) process.stdout.write(`\n${older}`);
     }
   } finally {
     db.close();
@@ -180,6 +202,12 @@ function show(args: string[]): number {
       // Nothing to recompute: the figures are those of the run, kept whole as its summary.
       if (values.json) process.stdout.write(`${JSON.stringify({ ...run.summary, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion, ...annotationsJson(run) }, null, 2)}\n`);
       else process.stdout.write(`Run ${run.id} (off-policy, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n${annotationsText(run)}\n${offPolicyText(run.summary as unknown as OffPolicyJson)}`);
+      return 0;
+    }
+    if (isRunsCompareRecord(run)) {
+      const comparison = analyzeRunsComparisonRun(db, run);
+      if (values.json) process.stdout.write(`${JSON.stringify({ ...runsCompareJson(comparison, run.toolVersion, run.id), kind: 'comparison', ...runProvenanceJson(run) }, null, 2)}\n`);
+      else process.stdout.write(`Run ${run.id} (comparison of stored runs, ${run.status}), made ${run.createdAt}, reckon ${run.toolVersion}\n${annotationsText(run)}\n${runsCompareText(comparison)}`);
       return 0;
     }
     if (run.kind === 'comparison') {

@@ -3,7 +3,9 @@ import type { FastifyInstance } from 'fastify';
 import { InputError } from '../../errors.js';
 import { analyzeStoredComparison } from '../../evaluate/stored-compare.js';
 import { listMembers } from '../../store/runs.js';
-import { comparisonShowJson } from '../../report/run-json.js';
+import { comparisonShowJson, runProvenanceJson } from '../../report/run-json.js';
+import { analyzeRunsComparisonRun, isRunsCompareRecord } from '../../evaluate/runs-compare-store.js';
+import { runsCompareJson } from '../../report/runs-compare-report.js';
 import { differencesSpec } from '../../report/plots/differences.js';
 import type { ServerContext } from '../context.js';
 import { comparisonLabels, parseComparisonBody, planComparison } from '../comparison-request.js';
@@ -44,6 +46,10 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
     if (!isSettled(ctx, run)) {
       return { run_id: run.id, kind: 'comparison', env: run.env.label, seed: run.seed, status: live.status, progress: live.progress, created_at: run.createdAt };
     }
+    if (isRunsCompareRecord(run)) {
+      const comparison = ctx.analysis.remember(`runs-compare|${run.id}`, () => analyzeRunsComparisonRun(ctx.db, run));
+      return { ...runsCompareJson(comparison, run.toolVersion, run.id), kind: 'comparison', ...runProvenanceJson(run), status: live.status, progress: null };
+    }
     const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
     const members = ctx.analysis.remember(`members|${run.id}`, () => listMembers(ctx.db, run.id));
     return { ...comparisonShowJson(run, result, labels, members), status: live.status, progress: null };
@@ -53,6 +59,18 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
     queryOptions(request.query, []);
     const run = comparisonRun(request.params.id);
     if (!isSettled(ctx, run)) throw new InputError(`run ${run.id}`, 'is still running; its plot comes when it ends');
+    if (isRunsCompareRecord(run)) {
+      const comparison = ctx.analysis.remember(`runs-compare|${run.id}`, () => analyzeRunsComparisonRun(ctx.db, run));
+      const json = runsCompareJson(comparison, run.toolVersion, run.id);
+      const names = json.policies.map((p) => p.name);
+      return differencesSpec(
+        json.differences.map((d) => ({ pair: `${names[d.a]} − ${names[d.b]}`, mean: d.mean, low: d.low, high: d.high })),
+        {
+          title: `Differences of stored runs on ${comparison.labels.env} (run ${run.id})`,
+          subtitle: `bars: ${Math.round(json.level * 100)}% ${comparison.paired ? `${json.differences[0]?.method ?? ''} interval, paired by episode` : "Welch interval, unpaired"}; dashed: no difference`,
+        },
+      );
+    }
     const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
     const rows = result.comparison.pairs.map((pair, q) => ({
       pair: `${labels.policies[pair.first]} − ${labels.policies[pair.second]}`,

@@ -5,6 +5,7 @@ import { InputError } from '../../errors.js';
 import { getRun, listMembers, listRuns, type RunRecord } from '../../store/runs.js';
 import type { ServerContext } from '../context.js';
 import { queryList, queryOptions } from '../query.js';
+import { parseRunFilter } from '../../options/run-filter-options.js';
 import { runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
 import type { JobState } from '../run-queue.js';
 
@@ -43,9 +44,26 @@ export function findStoredRun(ctx: ServerContext, id: string): RunRecord {
 /** `GET /api/runs` (the filters of `runs list`) and `GET /api/runs/:id` (what `runs show --json` prints). */
 export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
   app.get('/api/runs', async (request) => {
-    const q = queryOptions(request.query, ['env_hash', 'policy', 'limit', 'parent']);
+    const q = queryOptions(request.query, ['env_hash', 'policy', 'limit', 'parent', 'label', 'since', 'until', 'status', 'kind', 'text'], ['label']);
     const limit = q.limit === undefined ? 100 : parseOption('limit', 'limit', q.limit);
-    const runs = listRuns(ctx.db, { envHash: q.env_hash, policy: q.policy, limit, parentId: q.parent ?? null });
+    // Empty fields of the page's filter form mean "any".
+    const given = (text: string | undefined) => (text === undefined || text.trim() === '' ? undefined : text);
+    const choice = parseRunFilter(
+      { label: queryList(request.query, 'label').filter((l) => given(l) !== undefined), since: given(q.since), until: given(q.until), status: given(q.status), kind: given(q.kind), text: given(q.text), policy: given(q.policy), envHash: given(q.env_hash) },
+      (name) => `?${name.replace(/-/g, '_')}`,
+    );
+    const runs = listRuns(ctx.db, {
+      envHash: choice.envHash ?? undefined,
+      policy: choice.policy ?? undefined,
+      labels: choice.labels,
+      since: choice.since,
+      until: choice.until,
+      statuses: choice.statuses,
+      kinds: choice.kinds,
+      text: choice.text,
+      limit,
+      parentId: q.parent ?? null,
+    });
     return runs.map((r) => {
       const live = liveState(ctx, r);
       return { ...runListRow(r, r.kind === 'comparison' ? listMembers(ctx.db, r.id) : null), status: live.status, progress: live.progress };
