@@ -102,13 +102,32 @@ function onLeave(fn) {
 
 // ---- runs list ---------------------------------------------------------------------------
 
-const listState = { sort: 'created_at', descending: true, env: '', policy: '' };
+/** The list's filters and order, kept in the address (#/?label=…&sort=…) so a view can be shared. */
+const FILTER_KEYS = ['env', 'policy', 'label', 'text', 'status', 'kind', 'since', 'until'];
+const SERVER_FILTERS = ['policy', 'label', 'text', 'status', 'kind', 'since', 'until'];
+
+function listStateFromHash() {
+  const query = new URLSearchParams((location.hash.split('?')[1] ?? ''));
+  const state = { sort: query.get('sort') ?? 'created_at', descending: (query.get('order') ?? 'desc') !== 'asc' };
+  for (const key of FILTER_KEYS) state[key] = query.get(key) ?? '';
+  return state;
+}
+
+function listStateToHash(state) {
+  const query = new URLSearchParams();
+  for (const key of FILTER_KEYS) if (state[key]) query.set(key, state[key]);
+  if (state.sort !== 'created_at') query.set('sort', state.sort);
+  if (!state.descending) query.set('order', 'asc');
+  const text = query.toString();
+  return text ? `#/?${text}` : '#/';
+}
 
 const COLUMNS = [
   { key: 'id', label: 'run' },
   { key: 'created_at', label: 'started' },
   { key: 'env', label: 'environment' },
   { key: 'policy', label: 'policy' },
+  { key: 'labels', label: 'labels' },
   { key: 'episodes', label: 'episodes' },
   { key: 'mean', label: 'mean ± half-width' },
   { key: 'status', label: 'status' },
@@ -116,18 +135,35 @@ const COLUMNS = [
 
 function sortValue(row, key) {
   if (key === 'mean') return row.summary?.mean ?? -Infinity;
+  if (key === 'labels') return Object.entries(row.labels ?? {}).map(([k, v]) => `${k}=${v}`).join(', ');
   return row[key] ?? '';
 }
 
+function runsUrl(state) {
+  const query = new URLSearchParams({ limit: '500' });
+  for (const key of SERVER_FILTERS) if (state[key]) query.set(key, state[key]);
+  return `/api/runs?${query}`;
+}
+
 async function renderRunList() {
-  const rows = await api('/api/runs?limit=500');
-  const environments = [...new Set(rows.map((r) => r.env))].sort();
+  const listState = listStateFromHash();
+  let rows = await api(runsUrl(listState));
+  const environments = [...new Set([...rows.map((r) => r.env), listState.env].filter(Boolean))].sort();
+  const message = el('p', { class: 'field-error', id: 'filter-error', role: 'alert' });
   const filterEnv = el('select', { id: 'filter-env', 'aria-label': 'environment' }, el('option', { value: '' }, 'all environments'), environments.map((e) => el('option', { value: e, selected: e === listState.env }, e)));
-  const filterPolicy = el('input', { id: 'filter-policy', type: 'search', placeholder: 'policy contains…', value: listState.policy, 'aria-label': 'policy' });
+  const input = (key, attributes) => el('input', { id: `filter-${key}`, value: listState[key], 'aria-label': key, ...attributes });
+  const filterPolicy = input('policy', { type: 'search', placeholder: 'policy contains…' });
+  const filterLabel = input('label', { type: 'search', placeholder: 'key=value or key' });
+  const filterText = input('text', { type: 'search', placeholder: 'in notes and file names' });
+  const choice = (key, values, all) => el('select', { id: `filter-${key}`, 'aria-label': key }, el('option', { value: '' }, all), values.map((v) => el('option', { value: v, selected: v === listState[key] }, v)));
+  const filterStatus = choice('status', ['done', 'running', 'interrupted', 'failed'], 'any status');
+  const filterKind = choice('kind', ['estimate', 'comparison', 'offpolicy'], 'any kind');
+  const filterSince = input('since', { type: 'date' });
+  const filterUntil = input('until', { type: 'date' });
   const table = el('table', { class: 'runs', id: 'runs-table' });
   const draw = (data) => {
     const shown = data
-      .filter((r) => (!listState.env || r.env === listState.env) && (!listState.policy || r.policy.toLowerCase().includes(listState.policy.toLowerCase())))
+      .filter((r) => !listState.env || r.env === listState.env)
       .sort((a, b) => {
         const x = sortValue(a, listState.sort);
         const y = sortValue(b, listState.sort);
@@ -135,7 +171,7 @@ async function renderRunList() {
         return listState.descending ? -order : order;
       });
     const head = el('tr', {}, COLUMNS.map((c) => el('th', { scope: 'col', 'aria-sort': listState.sort === c.key ? (listState.descending ? 'descending' : 'ascending') : null },
-      el('button', { type: 'button', class: 'sort', onclick: () => { listState.descending = listState.sort === c.key ? !listState.descending : c.key === 'created_at'; listState.sort = c.key; draw(data); } },
+      el('button', { type: 'button', class: 'sort', 'data-key': c.key, onclick: () => { listState.descending = listState.sort === c.key ? !listState.descending : c.key === 'created_at'; listState.sort = c.key; remember(); draw(data); } },
         c.label, listState.sort === c.key ? (listState.descending ? ' ▼' : ' ▲') : ''))));
     const body = shown.map((r) => {
       const link = r.kind === 'comparison' ? `#/comparisons/${r.id}` : r.kind === 'offpolicy' ? `#/offpolicy/${r.id}` : `#/runs/${r.id}`;
@@ -148,25 +184,51 @@ async function renderRunList() {
         el('td', {}, new Date(r.created_at).toLocaleString()),
         el('td', {}, r.env),
         el('td', {}, r.policy),
+        el('td', {}, Object.entries(r.labels ?? {}).map(([k, v]) => el('span', { class: 'label' }, `${k}=${v}`))),
         el('td', { class: 'number' }, r.status === 'done' ? count(done) : `${count(done)} / ${count(r.episodes_requested)}`, r.status === 'running' ? progressBar(r.progress ?? { done, total: r.episodes_requested }) : null),
         el('td', { class: 'number' }, mean),
         el('td', {}, badge(r.status)));
     });
     table.replaceChildren(el('thead', {}, head), el('tbody', {}, body.length ? body : el('tr', {}, el('td', { colspan: COLUMNS.length }, 'No runs match.'))));
   };
-  filterEnv.addEventListener('change', () => { listState.env = filterEnv.value; draw(rows); });
-  filterPolicy.addEventListener('input', () => { listState.policy = filterPolicy.value; draw(rows); });
+  // The address keeps the view; replacing it (not pushing) keeps Back meaning "the page before".
+  const remember = () => history.replaceState(null, '', listStateToHash(listState));
+  let pending = null;
+  const refetch = () => {
+    clearTimeout(pending);
+    pending = setTimeout(async () => {
+      remember();
+      try {
+        rows = await api(runsUrl(listState));
+        message.textContent = '';
+        draw(rows);
+      } catch (error) {
+        message.textContent = error.message;
+      }
+    }, 250);
+  };
+  onLeave(() => clearTimeout(pending));
+  filterEnv.addEventListener('change', () => { listState.env = filterEnv.value; remember(); draw(rows); });
+  for (const [key, control] of [['policy', filterPolicy], ['label', filterLabel], ['text', filterText]]) control.addEventListener('input', () => { listState[key] = control.value.trim(); refetch(); });
+  for (const [key, control] of [['status', filterStatus], ['kind', filterKind], ['since', filterSince], ['until', filterUntil]]) control.addEventListener('change', () => { listState[key] = control.value; refetch(); });
   draw(rows);
+  const anyFilter = FILTER_KEYS.some((key) => listState[key]);
   show(
     el('h1', {}, 'Stored runs'),
-    el('div', { class: 'filters' }, el('label', {}, 'Environment ', filterEnv), el('label', {}, 'Policy ', filterPolicy), el('a', { class: 'button', href: '#/new' }, 'Start an evaluation')),
-    rows.length ? table : el('p', {}, 'No runs yet. Run ', el('code', {}, 'npm start'), ' (the demo) or start an evaluation.'),
+    el('div', { class: 'filters', id: 'filters' },
+      el('label', {}, 'Environment ', filterEnv), el('label', {}, 'Policy ', filterPolicy), el('label', {}, 'Label ', filterLabel),
+      el('label', {}, 'Text ', filterText), el('label', {}, 'Status ', filterStatus), el('label', {}, 'Kind ', filterKind),
+      el('label', {}, 'From ', filterSince), el('label', {}, 'to ', filterUntil),
+      el('a', { href: '#/', id: 'clear-filters' }, 'Clear filters'),
+      el('a', { class: 'button', href: '#/new' }, 'Start an evaluation')),
+    message,
+    rows.length || anyFilter ? table : el('p', {}, 'No runs yet. Run ', el('code', {}, 'npm start'), ' (the demo) or start an evaluation.'),
   );
   // Live progress: refresh while anything runs or waits.
   if (rows.some((r) => r.status === 'running' || r.status === 'queued')) {
     const timer = setTimeout(async () => {
       try {
-        const fresh = await api('/api/runs?limit=500');
+        const fresh = await api(runsUrl(listState));
         rows.splice(0, rows.length, ...fresh);
         draw(rows);
         if (rows.some((r) => r.status === 'running' || r.status === 'queued')) route();
@@ -177,6 +239,43 @@ async function renderRunList() {
 }
 
 // ---- one run -----------------------------------------------------------------------------
+
+const FILE_STATE = { unchanged: 'unchanged on disk', changed: 'changed on disk since the run', missing: 'missing on disk now', appeared: 'missing then, present now' };
+
+/** Where a run came from: the command that reproduces it (with a copy button), its files checked against the disk, reckon and the machine. */
+function provenanceBlock(run) {
+  if (!run.reproduce_command) return null;
+  const status = el('span', { class: 'copy-status', role: 'status' });
+  const command = el('code', { id: 'reproduce-command' }, run.reproduce_command);
+  const copy = el('button', { type: 'button', id: 'copy-command', class: 'copy' }, 'Copy');
+  copy.addEventListener('click', async () => {
+    try {
+      await navigator.clipboard.writeText(run.reproduce_command);
+      status.textContent = 'Copied.';
+    } catch {
+      // No clipboard (an insecure origin, a denied permission): select the text for Ctrl-C.
+      const range = document.createRange();
+      range.selectNodeContents(command);
+      getSelection().removeAllRanges();
+      getSelection().addRange(range);
+      status.textContent = 'Selected: press Ctrl-C to copy.';
+    }
+  });
+  const m = run.machine ?? {};
+  const files = run.files;
+  return el('section', { class: 'provenance', id: 'provenance' },
+    el('h2', {}, 'Provenance'),
+    el('p', {}, 'Reproduce with ', command, ' ', copy, ' ', status),
+    run.reproduce_from_files === false ? el('p', { class: 'warning' }, 'The definitions were given inline, not from files: save them to files first (Definitions and seed, below).') : null,
+    files === null ? el('p', {}, 'Definition files: not recorded (stored by an older reckon).')
+      : files.length === 0 ? el('p', {}, 'Definition files: none (definitions given inline).')
+      : el('table', { class: 'figures', id: 'definition-files' },
+        el('thead', {}, el('tr', {}, ['file', 'part of', 'sha256 at the start', 'now'].map((h) => el('th', { scope: 'col' }, h)))),
+        el('tbody', {}, files.map((f) => el('tr', { 'data-state': f.on_disk },
+          el('td', {}, f.path), el('td', {}, f.role), el('td', {}, el('code', {}, f.sha256 ? `${f.sha256.slice(0, 12)}…` : '–')),
+          el('td', { class: f.on_disk === 'unchanged' ? null : 'error' }, FILE_STATE[f.on_disk] ?? f.on_disk))))),
+    el('p', {}, `reckon ${run.tool_version ?? run.reckon_version ?? '?'} on ${[m.host, m.cores ? `${m.cores} cores` : null, m.cpu, m.node ? `Node ${m.node}` : null, m.platform].filter(Boolean).join(', ')}`));
+}
 
 /** A run's labels (key=value) and notes, oldest first; nothing when it has none. */
 function annotationsBlock(run) {
@@ -369,6 +468,7 @@ async function renderRun(id) {
     run.error ? el('p', { class: 'error' }, run.error) : null,
     run.mean !== undefined ? el('div', { class: 'summary' }, figureRows(run), projectionTable(run)) : el('p', {}, live ? 'The figures and plots appear when the run ends.' : 'No figures: fewer than two episodes are stored.'),
     run.episodes >= 2 && !live ? plots : null,
+    provenanceBlock(run),
     definitions ? el('details', { class: 'definitions' }, el('summary', {}, 'Definitions and seed'),
       el('p', {}, `seed ${run.seed}; environment hash ${run.env_hash.slice(0, 12)}, policy hash ${run.policy_hash.slice(0, 12)}`),
       el('h3', {}, run.env), el('pre', {}, JSON.stringify(definitions.env, null, 2)),
@@ -448,7 +548,10 @@ async function renderComparison(id) {
     el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id),
     el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
     annotationsBlock(c),
-    el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers), ${noiseWords(c.noise)}.`),
+    c.paired === false
+      ? el('p', { id: 'unpaired' }, `Stored runs compared as independent samples (Welch intervals): ${c.reasons.join('; ')}.`)
+      : el('p', {}, `${count(c.episodes)} episodes per policy, seed ${c.seed}, the same environment noise for every policy (common random numbers), ${noiseWords(c.noise)}.`),
+    c.env_change ? el('p', { class: 'warning' }, `Different environments: ${c.env_change.differences.join('; ')}`) : null,
     target,
     (c.warnings ?? []).map((w) => el('p', { class: 'warning' }, w)),
     el('p', {}, 'Each policy\'s own run: ', c.members.map((m, p) => [el('a', { href: `#/runs/${m}` }, names[p] ?? m), ' '])),
@@ -481,6 +584,7 @@ async function renderComparison(id) {
         el('td', { class: 'number' }, d.variance_reduction === null ? '–' : `${num(d.variance_reduction, 3)}×`),
         el('td', { class: 'number' }, `${num(d.probability_of_improvement.estimate, 3)} (${num(d.probability_of_improvement.low, 3)} to ${num(d.probability_of_improvement.high, 3)})`))))),
     el('p', {}, 'Variance reduction: how many times more episodes two independent runs would need for the same interval. P(first returns more): the probability that the first policy returns more than the second in the same episode, with its interval.'),
+    provenanceBlock(c),
   );
   await drawPlot(plot, await api(`/api/comparisons/${encodeURIComponent(id)}/plot`));
 }
@@ -524,6 +628,7 @@ async function renderOffPolicy(id) {
     el('p', { id: 'offpolicy-ess' }, `Effective sample size (Kish) ${num(d.ess)} of ${count(r.log.episodes)} episodes (${num(100 * d.ess_fraction, 3)}%); largest weight ${num(d.max_weight)}${d.max_weight_share === null ? '' : ` (${num(100 * d.max_weight_share, 3)}% of all weight)`}; mean weight ${num(d.mean_weight)} (${level}: ${range(d.mean_weight_interval)}), which should be 1.`),
     plot,
     el('p', {}, 'These are statistical estimates about the logged system; they are not safety evidence.'),
+    provenanceBlock(r),
   );
   await drawPlot(plot, await api(`/api/offpolicy/${encodeURIComponent(id)}/plot`));
 }

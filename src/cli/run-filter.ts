@@ -74,7 +74,7 @@ export function filterFrom(db: Db, values: FilterValues): ParsedFilter {
     kinds: choice.kinds,
     text: choice.text,
   };
-  const any = Object.values(values).some((v) => v !== undefined);
+  const any = Object.keys(FILTER_OPTIONS).some((key) => values[key as keyof FilterValues] !== undefined);
   return { filter, envFile, any };
 }
 

@@ -5,6 +5,7 @@ import type { RunRecord } from '../store/runs.js';
 import type { ComparisonResult } from '../evaluate/compare.js';
 import { compareJson } from './compare-json.js';
 import { withSnakeCaseKeys } from './snake-case.js';
+import { provenanceJson } from './provenance.js';
 
 /**
  * A row of `GET /api/runs`: the fields of `reckon runs list --json`. A comparison lists its
@@ -48,11 +49,11 @@ export function intervalMethod(r: RunRecord): string | null {
  * the run's provenance). test/server/api.test.ts checks the two agree key for key.
  */
 /** Where a run came from and where it stands: the keys every run object adds to its figures. */
-export function runProvenanceJson(run: RunRecord) {
-  return provenance(run);
+export function runProvenanceJson(run: RunRecord, members: readonly RunRecord[] = []) {
+  return provenance(run, members);
 }
 
-function provenance(run: RunRecord) {
+function provenance(run: RunRecord, members: readonly RunRecord[] = []) {
   return {
     status: run.status,
     created_at: run.createdAt,
@@ -66,6 +67,7 @@ function provenance(run: RunRecord) {
     /** Why a failed run failed (null otherwise). */
     error: run.error,
     ...annotationsJson(run),
+    ...provenanceJson(run, members),
   };
 }
 
@@ -90,7 +92,7 @@ export function comparisonShowJson(run: RunRecord, result: ComparisonResult, lab
     ...compareJson(result, labels, run.toolVersion, run.id, members.map((m) => m.id)),
     kind: 'comparison' as const,
     members: members.map((m) => m.id),
-    ...provenance(run),
+    ...provenance(run, members),
   };
 }
 

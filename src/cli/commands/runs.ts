@@ -8,6 +8,7 @@ import { estimateText } from '../../report/estimate-text.js';
 import { runsListText } from '../../report/runs-text.js';
 import { annotationsJson, runProvenanceJson, comparisonShowJson, runListRow, runPendingJson, runShowJson } from '../../report/run-json.js';
 import { annotationsText } from '../../report/annotations-text.js';
+import { provenanceJson, provenanceText } from '../../report/provenance.js';
 import { analyzeRunsComparisonRun, isRunsCompareRecord } from '../../evaluate/runs-compare-store.js';
 import { runsCompareJson, runsCompareText } from '../../report/runs-compare-report.js';
 import { analyzeStoredComparison, resumeStoredComparison } from '../../evaluate/stored-compare.js';
@@ -17,9 +18,10 @@ import { defaultStorePath } from '../../store/location.js';
 import { mergeShards } from '../../store/merge.js';
 import { checkStore } from '../../store/check.js';
 import { openStore, type Db } from '../../store/open.js';
-import { deleteRun, getRun, listMembers, listRuns, loadEpisodes, refuseIfLive, type RunRecord } from '../../store/runs.js';
+import { getRun, listMembers, listRuns, loadEpisodes, type RunRecord } from '../../store/runs.js';
 import { writeOutputFile } from '../output-file.js';
 import { FILTER_HELP, FILTER_OPTIONS, filterFrom, olderVersionsText } from '../run-filter.js';
+import { exportLong } from './runs-housekeeping.js';
 import { riskRequestFrom } from '../../options/risk-options.js';
 import { existsSync, rmSync } from 'node:fs';
 import { parseCommandArgs, type OptionSpec } from '../args.js';
@@ -38,9 +40,11 @@ Usage:
   reckon runs label ID KEY=VALUE... [--remove KEY] [--json]
   reckon runs note ID TEXT [--json]
   reckon runs export ID --format csv|json [--out FILE]
+  reckon runs export ID ID... [--long] [--format csv|json] [--out FILE]
   reckon runs plot ID --out FILE.svg [--kind convergence|histogram|lengths|value-map|cdf] [--arrows]
   reckon runs resume ID [--workers K] [--step-timeout SECONDS] [--json]
-  reckon runs delete ID
+  reckon runs delete ID... | [filters] [--all] [--dry-run] [--yes] [--json]
+  reckon runs vacuum [--json]
   reckon runs merge DB... [--into DB]
   reckon runs check [--json]
 
@@ -69,7 +73,9 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
            hashes are refused unless --allow-env-change (the report names what differs).
            --store-result keeps the result as a comparison run (runs show, the page)
   export   every episode's return and length, for a notebook or a spreadsheet; for a
-           comparison, the paired returns: one row an episode, one column a policy
+           comparison, the paired returns: one row an episode, one column a policy.
+           Several ids (or --long) give one long table, run_id,labels,episode,return,length,
+           that a notebook reads in one call
   plot     a run's plot as SVG (the review page's look): convergence (default), histogram of
            returns, lengths, value-map (gridworlds: start cells marked S, portals ↪ the
            cell they lead to; --arrows adds the policy's likeliest moves), or cdf (the
@@ -77,7 +83,10 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
   resume   continue an interrupted run (Ctrl-C, a crash, a killed job) from its last
            committed episode; the result equals an uninterrupted run's. A comparison
            continues every policy on the same episodes (common random numbers)
-  delete   remove a run and its episodes
+  delete   remove runs and their episodes: the runs named (at once), or those the filters
+           find, listed and confirmed first unless --yes (--dry-run lists them and deletes
+           nothing); a running run is never deleted
+  vacuum   give the space of deleted runs back to the disk
   merge    join the shards of one run ('estimate --shard K/M' on several machines, each with
            its own store) into one run in --into (default: --store)
   check    SQLite's integrity check of the store, and reckon's own: every run's stored
@@ -92,6 +101,8 @@ Examples:
   reckon runs label k3x9p2ab reported=yes quarter=q4
   reckon runs note k3x9p2ab "the figure in the safety review"
   reckon runs export k3x9p2ab --format csv --out returns.csv
+  reckon runs export k3x9p2ab m7wq4ctz --out returns.csv
+  reckon runs delete --label draft=yes --until 30d --dry-run
   reckon runs merge shard-1.sqlite shard-2.sqlite shard-3.sqlite --into all.sqlite
 `;
 
@@ -127,7 +138,9 @@ export async function run(args: string[]): Promise<number> {
     case 'resume':
       return resume(rest);
     case 'delete':
-      return remove(rest);
+      return (await import('./runs-housekeeping.js')).remove(rest, HELP);
+    case 'vacuum':
+      return (await import('./runs-housekeeping.js')).vacuum(rest, HELP);
     case 'merge':
       return merge(rest);
     case 'check':
@@ -139,7 +152,7 @@ export async function run(args: string[]): Promise<number> {
     case 'note':
       return (await import('./runs-annotate.js')).note(rest, HELP);
     default:
-      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, label, note, compare, export, plot, resume, delete, merge or check (see 'reckon runs --help')`);
+      throw new InputError('runs', `unknown subcommand "${sub}"; choose list, show, label, note, compare, export, plot, resume, delete, vacuum, merge or check (see 'reckon runs --help')`);
   }
 }
 
@@ -200,14 +213,14 @@ function show(args: string[]): number {
     const onAnalysis = (step: string, done: number, total: number) => progress.analysis(step, done, total);
     if (run.kind === 'offpolicy') {
       // Nothing to recompute: the figures are those of the run, kept whole as its summary.
-      if (values.json) process.stdout.write(`${JSON.stringify({ ...run.summary, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion, ...annotationsJson(run) }, null, 2)}\n`);
-      else process.stdout.write(`Run ${run.id} (off-policy, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n${annotationsText(run)}\n${offPolicyText(run.summary as unknown as OffPolicyJson)}`);
+      if (values.json) process.stdout.write(`${JSON.stringify({ ...run.summary, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion, machine: run.machine, ...annotationsJson(run), ...provenanceJson(run) }, null, 2)}\n`);
+      else process.stdout.write(`Run ${run.id} (off-policy, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n${annotationsText(run)}\n${offPolicyText(run.summary as unknown as OffPolicyJson)}${provenanceText(run)}`);
       return 0;
     }
     if (isRunsCompareRecord(run)) {
       const comparison = analyzeRunsComparisonRun(db, run);
       if (values.json) process.stdout.write(`${JSON.stringify({ ...runsCompareJson(comparison, run.toolVersion, run.id), kind: 'comparison', ...runProvenanceJson(run) }, null, 2)}\n`);
-      else process.stdout.write(`Run ${run.id} (comparison of stored runs, ${run.status}), made ${run.createdAt}, reckon ${run.toolVersion}\n${annotationsText(run)}\n${runsCompareText(comparison)}`);
+      else process.stdout.write(`Run ${run.id} (comparison of stored runs, ${run.status}), made ${run.createdAt}, reckon ${run.toolVersion}\n${annotationsText(run)}\n${runsCompareText(comparison)}${provenanceText(run)}`);
       return 0;
     }
     if (run.kind === 'comparison') {
@@ -218,7 +231,7 @@ function show(args: string[]): number {
         process.stdout.write(`${JSON.stringify(comparisonShowJson(run, result, labels, members), null, 2)}\n`);
       } else {
         const parts = members.map((m, p) => `[${p}] ${m.id}`).join(', ');
-        process.stdout.write(`Run ${run.id} (comparison, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n  member runs, one a policy: ${parts}\n${annotationsText(run)}\n${compareText(result, labels)}`);
+        process.stdout.write(`Run ${run.id} (comparison, ${run.status}), started ${run.createdAt}, reckon ${run.toolVersion}\n  member runs, one a policy: ${parts}\n${annotationsText(run)}\n${compareText(result, labels)}${provenanceText(run, members)}`);
       }
       return 0;
     }
@@ -239,6 +252,7 @@ function show(args: string[]): number {
       process.stdout.write(`  environment hash ${run.env.hash.slice(0, 12)}, policy hash ${run.policy.hash.slice(0, 12)}\n${annotationsText(run)}\n`);
       process.stdout.write(estimateText(result, labels));
       process.stdout.write(statusNote(run, values.store ?? ''));
+      process.stdout.write(provenanceText(run));
     }
   } finally {
     db.close();
@@ -262,11 +276,12 @@ function statusNote(run: RunRecord, storeOption: string): string {
 }
 
 function exportRun(args: string[]): number {
-  const { values, positionals } = parseCommandArgs('runs', args, { store: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' } }, true);
+  const { values, positionals } = parseCommandArgs('runs', args, { store: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, long: { type: 'boolean' } }, true);
   if (wantsHelp(values)) return 0;
-  const id = oneId('export', positionals);
   const format = values.format ?? 'csv';
   if (format !== 'csv' && format !== 'json') throw new InputError('--format', `must be csv or json (got "${format}")`);
+  if (positionals.length > 1 || (values.long && positionals.length === 1)) return exportLong(positionals, values.store, format, values.out);
+  const id = oneId('export', positionals);
   const { db, label } = storeFor(values.store);
   let text: string;
   try {
@@ -401,21 +416,6 @@ async function resumeComparison(
   if (result.interrupted) {
     process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} again after ${result.episodes} paired episodes, all kept. Continue it with: reckon runs resume ${run.id}${how.storeOption}\n`);
     return stop.exitCode();
-  }
-  return 0;
-}
-
-function remove(args: string[]): number {
-  const { values, positionals } = parseCommandArgs('runs', args, { store: { type: 'string' } }, true);
-  if (wantsHelp(values)) return 0;
-  const id = oneId('delete', positionals);
-  const { db, label } = storeFor(values.store);
-  try {
-    refuseIfLive(getRun(db, id, label), 'delete it');
-    deleteRun(db, id);
-    process.stdout.write(`Deleted run ${id} and its episodes from ${label}.\n`);
-  } finally {
-    db.close();
   }
   return 0;
 }

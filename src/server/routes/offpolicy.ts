@@ -11,6 +11,7 @@ import type { ServerContext } from '../context.js';
 import { queryOptions } from '../query.js';
 import { findStoredRun } from './runs.js';
 import { annotationsJson } from '../../report/run-json.js';
+import { provenanceJson } from '../../report/provenance.js';
 
 function workerUrl(): string {
   const here = fileURLToPath(import.meta.url);
@@ -85,7 +86,7 @@ export function offPolicyRoutes(app: FastifyInstance, ctx: ServerContext): void 
   app.get<{ Params: { id: string } }>('/api/offpolicy/:id', async (request) => {
     queryOptions(request.query, []);
     const run = offPolicyRun(request.params.id);
-    return { ...run.summary, run_id: run.id, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion, ...annotationsJson(run) };
+    return { ...run.summary, run_id: run.id, status: run.status, created_at: run.createdAt, tool_version: run.toolVersion, machine: run.machine, ...annotationsJson(run), ...provenanceJson(run) };
   });
 
   app.get<{ Params: { id: string } }>('/api/offpolicy/:id/plot', async (request) => {
