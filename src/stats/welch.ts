@@ -1,6 +1,7 @@
 import tCdfImpl from '@stdlib/stats-base-dists-t-cdf';
 import { requireLevel } from './interval.js';
 import { tQuantile } from './quantiles.js';
+import { satterthwaite } from './groups/satterthwaite.js';
 
 /** Welch's interval and test for the difference of two independent samples' means. */
 export interface WelchComparison {
@@ -46,7 +47,7 @@ export function welchComparison(a: SampleMoments, b: SampleMoments, level: numbe
     // No spread in either sample: the difference is known exactly.
     return { meanDifference, standardError, degreesOfFreedom: Infinity, low: meanDifference, high: meanDifference, level, pValue: meanDifference === 0 ? 1 : 0, tStatistic: meanDifference === 0 ? Number.NaN : Math.sign(meanDifference) * Infinity };
   }
-  const degreesOfFreedom = (va + vb) ** 2 / ((va * va) / (a.n - 1) + (vb * vb) / (b.n - 1));
+  const degreesOfFreedom = satterthwaite([va, a.n - 1], [vb, b.n - 1]);
   const halfWidth = tQuantile(1 - (1 - level) / 2, Math.max(1, degreesOfFreedom)) * standardError;
   const tStatistic = meanDifference / standardError;
   const pValue = Math.min(1, 2 * tCdfImpl(-Math.abs(tStatistic), degreesOfFreedom));
