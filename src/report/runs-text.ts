@@ -9,6 +9,10 @@ function clip(text: string, width: number): string {
   return text.length <= width ? text : `…${text.slice(text.length - width + 1)}`;
 }
 
+function clipEnd(text: string, width: number): string {
+  return text.length <= width ? text : `${text.slice(0, width - 1)}…`;
+}
+
 /** The interval method a run's figures use, short enough for a column. */
 function methodOf(run: RunRecord): string {
   const summary = run.summary as { ci?: { method?: string } } | null;
@@ -61,10 +65,13 @@ function offPolicyEstimate(summary: Record<string, unknown> | null): string {
  */
 export function runsListText(runs: readonly RunRecord[], members: ReadonlyMap<string, readonly RunRecord[]> = new Map()): string {
   if (runs.length === 0) return "No runs stored yet. Start one with 'reckon estimate --env F --policy F'.\n";
-  const rows = [['id', 'started (UTC)', 'environment', 'policy', 'episodes', 'mean ± half-width', 'interval', 'status']];
+  // Labels get a column when any run listed has one.
+  const labelled = runs.some((r) => Object.keys(r.labels ?? {}).length > 0);
+  const labelsOf = (run: RunRecord) => (labelled ? [clipEnd(Object.entries(run.labels ?? {}).map(([k, v]) => `${k}=${v}`).join(', '), 40)] : []);
+  const rows = [['id', 'started (UTC)', 'environment', 'policy', 'episodes', 'mean ± half-width', 'interval', 'status', ...(labelled ? ['labels'] : [])]];
   for (const run of runs) {
-    rows.push(rowOf(run, run.id));
-    for (const member of members.get(run.id) ?? []) rows.push(rowOf(member, `  └ ${member.id}`));
+    rows.push([...rowOf(run, run.id), ...labelsOf(run)]);
+    for (const member of members.get(run.id) ?? []) rows.push([...rowOf(member, `  └ ${member.id}`), ...labelsOf(member)]);
   }
-  return columns(rows, '').join('\n') + '\n';
+  return columns(rows, '').map((line) => line.trimEnd()).join('\n') + '\n';
 }

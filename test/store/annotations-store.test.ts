@@ -63,6 +63,7 @@ describe('labels and notes', () => {
     expect(text).toContain('reported in the review');
     const listed = json(reckon(['runs', 'list', '--store', store, '--json']));
     expect(listed[0].labels).toStrictEqual({ owner: 'bo', release: 'v2.1' });
+    expect(reckon(['runs', 'list', '--store', store]).stdout).toMatch(new RegExp(`${id} .* done +owner=bo, release=v2\\.1\n`));
 
     const compared = json(reckon(['compare', ...grid.slice(0, 2), '--policy', grid[3], '--policy', uniform, '--episodes', '200', '--seed', '2', '--label', 'study=docks', '--note', 'first pass', '--store', store, '--json']));
     expect(compared.labels).toStrictEqual({ study: 'docks' });
@@ -70,8 +71,14 @@ describe('labels and notes', () => {
     expect(showCompared.labels).toStrictEqual({ study: 'docks' });
     expect(showCompared.notes[0].text).toBe('first pass');
 
+    const OP = path.join(FIXTURES, 'off-policy');
+    const offpolicy = json(reckon(['offpolicy', '--log', path.join(OP, 'three-episodes.jsonl'), '--policy', path.join(OP, 'two-state-target.json'), '--resamples', '200', '--label', 'log=week48', '--store', store, '--json']));
+    expect(offpolicy.labels).toStrictEqual({ log: 'week48' });
+    expect(json(reckon(['runs', 'show', offpolicy.run_id, '--store', store, '--json'])).labels).toStrictEqual({ log: 'week48' });
+
     const app = await buildApp({ storePath: store, toolVersion: 'test', workers: 1 });
     try {
+      expect((await app.inject({ url: `/api/offpolicy/${offpolicy.run_id}` })).json().labels).toStrictEqual({ log: 'week48' });
       const apiRun = (await app.inject({ url: `/api/runs/${id}` })).json();
       expect(apiRun.labels).toStrictEqual(shown.labels);
       expect(apiRun.notes).toStrictEqual(shown.notes);

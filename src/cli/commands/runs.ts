@@ -30,7 +30,7 @@ import { ProgressLine } from '../progress.js';
 import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 
-export const HELP = `reckon runs: review, re-analyse, export, resume and merge stored runs
+export const HELP = `reckon runs: find, label, review, re-analyse, compare, export, resume, merge and tidy stored runs
 
 Usage:
   reckon runs list [filters] [--limit N] [--all] [--json]
@@ -60,7 +60,9 @@ Every subcommand takes --store PATH (default: $RECKON_STORE, else
            re-analyse them without new episodes. A run that stopped at a target error keeps
            an anytime-valid sequence (betting, empirical-bernstein, ...); --ignore-stop allows
            a fixed-sample interval as a what-if; --risk (with --quantiles, --tail,
-           --event as for estimate) adds quantiles, the worst-α mean and event probabilities
+           --event as for estimate) adds quantiles, the worst-α mean and event probabilities.
+           Ends with the run's provenance: the command that reproduces it, its definition
+           files' hashes and whether each file still matches, reckon's version, the machine
   label    set labels on a run (a key it has takes the new value), or --remove them;
            estimate, compare and offpolicy take --label KEY=VALUE when they start one
   note     add a note to a run (notes are kept in order; estimate, compare and offpolicy
