@@ -277,14 +277,36 @@ function provenanceBlock(run) {
     el('p', {}, `reckon ${run.tool_version ?? run.reckon_version ?? '?'} on ${[m.host, m.cores ? `${m.cores} cores` : null, m.cpu, m.node ? `Node ${m.node}` : null, m.platform].filter(Boolean).join(', ')}`));
 }
 
-/** A run's labels (key=value) and notes, oldest first; nothing when it has none. */
+/** A run's labels (key=value) and notes, oldest first, with fields that add more (POST /api/runs/:id/labels, …/notes). */
 function annotationsBlock(run) {
+  const id = run.run_id ?? run.id;
   const labels = Object.entries(run.labels ?? {});
   const notes = run.notes ?? [];
-  if (labels.length === 0 && notes.length === 0) return null;
+  const message = el('span', { class: 'field-error', id: 'annotation-error', role: 'alert' });
+  const labelInput = el('input', { id: 'add-label', type: 'text', placeholder: 'key=value', 'aria-label': 'label to add' });
+  const noteInput = el('input', { id: 'add-note', type: 'text', placeholder: 'a note', 'aria-label': 'note to add', size: 40 });
+  const send = async (path, body) => {
+    try {
+      await api(`/api/runs/${encodeURIComponent(id)}/${path}`, { method: 'POST', body: JSON.stringify(body) });
+      route();
+    } catch (error) {
+      message.textContent = error.message;
+    }
+  };
+  const addLabel = el('button', { type: 'button', id: 'add-label-button', class: 'copy' }, 'Add label');
+  addLabel.addEventListener('click', () => {
+    const text = labelInput.value.trim();
+    const at = text.indexOf('=');
+    if (at < 1) { message.textContent = 'a label is key=value, e.g. reported=yes'; return; }
+    send('labels', { labels: { [text.slice(0, at).trim()]: text.slice(at + 1).trim() } });
+  });
+  const addNote = el('button', { type: 'button', id: 'add-note-button', class: 'copy' }, 'Add note');
+  addNote.addEventListener('click', () => send('notes', { text: noteInput.value }));
   return el('section', { class: 'annotations', id: 'annotations' },
     labels.length ? el('p', { class: 'labels' }, 'Labels: ', labels.map(([k, v]) => el('span', { class: 'label', 'data-key': k }, `${k}=${v}`))) : null,
-    notes.length ? el('ul', { class: 'notes' }, notes.map((n) => el('li', {}, el('time', { datetime: n.added_at }, new Date(n.added_at).toLocaleString()), ' ', n.text))) : null);
+    notes.length ? el('ul', { class: 'notes' }, notes.map((n) => el('li', {}, el('time', { datetime: n.added_at }, new Date(n.added_at).toLocaleString()), ' ', n.text))) : null,
+    el('details', { class: 'annotate' }, el('summary', {}, 'Add a label or a note'),
+      el('p', {}, labelInput, ' ', addLabel, ' ', noteInput, ' ', addNote, ' ', message)));
 }
 
 /** A run's noise mode in words; runs stored before the mode was recorded are step-keyed. */

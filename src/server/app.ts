@@ -16,6 +16,7 @@ import { exampleRoutes } from './routes/examples.js';
 import { pageRoutes } from './routes/page.js';
 import { runDataRoutes } from './routes/run-data.js';
 import { runRoutes } from './routes/runs.js';
+import { annotationRoutes } from './routes/annotations.js';
 
 export interface ServerOptions {
   /** The run store file (shared with the command line). */
@@ -71,6 +72,7 @@ export async function buildApp(options: ServerOptions): Promise<FastifyInstance>
   app.setNotFoundHandler((request, reply) => reply.code(404).send({ error: `${request.method} ${request.url.split('?')[0]}: no such page or endpoint` }));
 
   runRoutes(app, ctx);
+  annotationRoutes(app, ctx);
   runDataRoutes(app, ctx);
   eventRoutes(app, ctx);
   evaluationRoutes(app, ctx);

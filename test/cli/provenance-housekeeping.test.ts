@@ -90,6 +90,7 @@ describe('housekeeping', () => {
   const drafts = [estimate(1, '--label', 'draft=yes'), estimate(2, '--label', 'draft=yes')];
   const kept = estimate(3, '--label', 'reported=yes');
   const live = estimate(4, '--label', 'draft=yes');
+  const comparison = json(reckon(['compare', ...env, '--policy', policy, '--policy', uniform, '--episodes', '200', '--seed', '5', ...s, '--json']));
   // A run whose process (this one) is alive reads as running: it must survive every delete.
   const db = new Database(store);
   db.prepare("UPDATE runs SET status = 'running', owner_pid = ?, owner_host = ?, heartbeat_at = ? WHERE id = ?").run(process.pid, hostname(), new Date().toISOString(), live);
@@ -126,6 +127,10 @@ describe('housekeeping', () => {
     expect(refused.code).toBe(2);
     expect(refused.stderr).toBe('reckon: runs delete: would delete 2 runs found by the filters; add --yes to confirm (there is no terminal to ask), and see them first with --dry-run\n');
     expect(ids()).toEqual(before);
+    // A comparison's member runs go only with their comparison.
+    const estimates = json(reckon(['runs', 'delete', '--all', '--kind', 'estimate', '--dry-run', ...s, '--json']));
+    expect([...estimates.kept_members].sort()).toEqual([...comparison.policies.map((p: { run_id: string }) => p.run_id)].sort());
+    expect([...estimates.would_delete].sort()).toEqual([...drafts, kept].sort());
     const nothing = reckon(['runs', 'delete', ...s]);
     expect(nothing.code).toBe(2);
     expect(nothing.stderr).toMatch(/^reckon: runs delete: needs run ids or filters/);
@@ -136,7 +141,7 @@ describe('housekeeping', () => {
     const deleted = json(reckon(['runs', 'delete', '--label', 'draft=yes', '--yes', ...s, '--json']));
     expect([...deleted.deleted].sort()).toEqual([...drafts].sort());
     expect(deleted.kept_running).toEqual([live]);
-    expect(ids()).toEqual([kept, live].sort());
+    expect(ids()).toEqual([kept, live, comparison.run_id].sort());
     const refused = reckon(['runs', 'delete', live, ...s]);
     expect(refused.code).toBe(2);
     expect(refused.stderr).toContain('is still running');

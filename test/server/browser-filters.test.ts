@@ -96,6 +96,22 @@ describe.skipIf(!haveChromium)('the runs table filters in headless Chromium', ()
     await page.click('#copy-command');
     await expect.poll(() => page.textContent('.copy-status')).toMatch(/Copied|Selected/);
     if ((await page.textContent('.copy-status'))?.startsWith('Copied')) expect(await page.evaluate(() => navigator.clipboard.readText())).toBe(command);
+
+    // Labels and notes added from the page are stored, and a bad one is refused beside the field.
+    await page.click('details.annotate summary');
+    await page.fill('#add-label', 'bad key=1');
+    await page.click('#add-label-button');
+    await expect.poll(() => page.textContent('#annotation-error')).toMatch(/a label key is 1 to 64/);
+    await page.fill('#add-label', 'release=v3');
+    await page.click('#add-label-button');
+    await expect.poll(() => page.textContent('#annotations')).toMatch(/release=v3/);
+    await page.click('details.annotate summary');
+    await page.fill('#add-note', 'checked again in the page');
+    await page.click('#add-note-button');
+    await expect.poll(() => page.textContent('#annotations')).toMatch(/checked again in the page/);
+    const stored = json(reckon(['runs', 'show', ids.reported, '--store', store, '--json']));
+    expect(stored.labels).toStrictEqual({ release: 'v3', reported: 'yes' });
+    expect(stored.notes.map((n: { text: string }) => n.text)).toEqual(['the figure in the dock review', 'checked again in the page']);
     expect(problems, 'errors in the page').toEqual([]);
     await context.close();
   }, 90_000);

@@ -84,6 +84,20 @@ describe('labels and notes', () => {
       expect(apiRun.notes).toStrictEqual(shown.notes);
       const apiComparison = (await app.inject({ url: `/api/comparisons/${compared.run_id}` })).json();
       expect(apiComparison.labels).toStrictEqual({ study: 'docks' });
+      // The page adds labels and notes over the API, checked by the same rules.
+      const post = (url: string, body: unknown, type = 'application/json') => app.inject({ method: 'POST', url, headers: { 'content-type': type }, payload: JSON.stringify(body) });
+      const labelled = await post(`/api/runs/${compared.run_id}/labels`, { labels: { checked: 'yes' }, remove: ['study'] });
+      expect(labelled.statusCode).toBe(200);
+      expect(labelled.json().labels).toStrictEqual({ checked: 'yes' });
+      const noted = await post(`/api/runs/${compared.run_id}/notes`, { text: 'second look' });
+      expect(noted.statusCode).toBe(201);
+      expect(noted.json().notes.map((n: { text: string }) => n.text)).toEqual(['first pass', 'second look']);
+      const bad = await post(`/api/runs/${compared.run_id}/labels`, { labels: { 'a b': 'x' } });
+      expect(bad.statusCode).toBe(400);
+      expect(bad.json().error).toMatch(/^labels\.a b: a label key is 1 to 64/);
+      expect((await post(`/api/runs/${compared.run_id}/notes`, { text: ' ' })).json().error).toBe('text: a note needs some text');
+      expect((await post(`/api/runs/${compared.run_id}/notes`, { text: 'x' }, 'text/plain')).statusCode).toBe(415);
+      expect((await post('/api/runs/zzzzzzzz/notes', { text: 'x' })).statusCode).toBe(404);
       const rows = (await app.inject({ url: '/api/runs' })).json();
       expect(rows.find((r: { id: string }) => r.id === id).labels).toStrictEqual(shown.labels);
     } finally {

@@ -46,22 +46,30 @@ export async function remove(args: string[], help: string): Promise<number> {
     if (positionals.length > 0 && any) throw new InputError('runs delete', 'takes run ids or filters, not both: delete the named runs, or the runs the filters find');
     let targets: RunRecord[];
     let live: RunRecord[] = [];
+    let members: RunRecord[] = [];
     if (positionals.length > 0) {
       targets = positionals.map((id) => getRun(db, id, storeLabel));
       for (const run of targets) refuseIfLive(run, 'delete it');
     } else {
       const found = listRuns(db, { ...filter, limit: Number.MAX_SAFE_INTEGER, parentId: values.all ? undefined : null });
       live = found.filter((r) => r.status === 'running');
-      targets = found.filter((r) => r.status !== 'running');
+      // A comparison's member run goes with its comparison, never alone (that would leave the
+      // comparison without the episodes it is computed from).
+      const chosen = new Set(found.map((r) => r.id));
+      members = found.filter((r) => r.parentId !== null && !chosen.has(r.parentId));
+      // (members whose comparison goes are deleted with it)
+      targets = found.filter((r) => r.status !== 'running' && r.parentId === null);
     }
     const episodes = targets.reduce((n, r) => n + (r.kind === 'comparison' ? listMembers(db, r.id).reduce((m, x) => m + x.episodesDone, 0) : r.episodesDone), 0);
     const ids = targets.map((r) => r.id);
     const report = (deleted: boolean) => {
       if (values.json) {
-        process.stdout.write(`${JSON.stringify({ store: storeLabel, dry_run: !deleted, deleted: deleted ? ids : [], would_delete: deleted ? [] : ids, episodes, kept_running: live.map((r) => r.id) }, null, 2)}\n`);
+        process.stdout.write(`${JSON.stringify({ store: storeLabel, dry_run: !deleted, deleted: deleted ? ids : [], would_delete: deleted ? [] : ids, episodes, kept_running: live.map((r) => r.id), kept_members: members.map((r) => r.id) }, null, 2)}\n`);
         return;
       }
-      const keptNote = live.length ? `Kept ${live.length} running run${live.length === 1 ? '' : 's'} (${live.map((r) => r.id).join(', ')}): a running run is never deleted.\n` : '';
+      const keptNote =
+        (live.length ? `Kept ${live.length} running run${live.length === 1 ? '' : 's'} (${live.map((r) => r.id).join(', ')}): a running run is never deleted.\n` : '') +
+        (members.length ? `Kept ${members.length} member run${members.length === 1 ? '' : 's'} of comparisons (${members.map((r) => r.id).join(', ')}): delete the comparison to delete them.\n` : '');
       if (!deleted) process.stdout.write(`${targets.length === 0 ? 'No runs match: nothing would be deleted.\n' : `Would delete ${targets.length} run${targets.length === 1 ? '' : 's'} (${episodes.toLocaleString('en-US')} episodes) from ${storeLabel}:\n${runsListText(targets)}`}${keptNote}`);
       else process.stdout.write(`Deleted ${targets.length === 1 ? `run ${ids[0]}` : `${targets.length} runs`} and ${targets.length === 1 ? 'its' : 'their'} episodes from ${storeLabel}.${targets.length > 1 ? ` (${ids.join(', ')})` : ''}\n${keptNote}`);
     };
