@@ -1,6 +1,6 @@
 import { InputError } from '../errors.js';
 import type { Db } from '../store/open.js';
-import { loadEpisodes, refuseIfLive, type RunRecord } from '../store/runs.js';
+import { loadEpisodes, refuseIfLive, type RunRecord, type StoredEpisodes } from '../store/runs.js';
 import { holmAdjust, type DifferenceMethod } from '../stats/index.js';
 import { probabilityOfImprovementInterval, type ImprovementEstimate } from '../stats/probability-of-improvement.js';
 import { rankByMean } from '../stats/policy-ranking.js';
@@ -144,11 +144,11 @@ export function compareStoredRuns(db: Db, runs: readonly RunRecord[], options: R
 }
 
 /** The figures `compare` would have printed for these policies, seed and episodes. */
-function pairedComparison(runs: readonly RunRecord[], episodes: readonly { returns: Float64Array; lengths: Uint32Array }[], options: RunsCompareOptions): ComparisonResult {
+function pairedComparison(runs: readonly RunRecord[], episodes: readonly StoredEpisodes[], options: RunsCompareOptions): ComparisonResult {
   const facts = runs.map((r) => r.facts as EnvironmentFacts);
   const buffers = episodes.map((e, p) => {
     const buffer = new ReturnsBuffer(e.returns.length, facts[p].horizon);
-    buffer.append(e.returns, e.lengths);
+    buffer.append(e.returns, e.lengths, e.finals);
     return buffer;
   });
   const first = runs[0];
