@@ -177,7 +177,7 @@ async function renderRunList() {
       const link = r.kind === 'comparison' ? `#/comparisons/${r.id}` : r.kind === 'offpolicy' ? `#/offpolicy/${r.id}` : `#/runs/${r.id}`;
       const summary = r.summary;
       const first = r.kind === 'comparison' ? summary?.differences?.[0] : null;
-      const mean = r.kind === 'offpolicy' ? offPolicyHeadline(summary) : r.kind === 'comparison' ? (first ? `Δ[${first.a}−${first.b}] ${num(first.mean)} ± ${num(first.half_width, 2)}` : 'comparison') : summary?.mean !== undefined ? `${num(summary.mean)} ± ${num(summary.ci?.halfWidth ?? summary.ci?.half_width, 2)}` : r.progress?.mean != null ? `${num(r.progress.mean)} ± ${num(r.progress.half_width, 2)} (so far)` : '–';
+      const mean = r.kind === 'offpolicy' ? offPolicyHeadline(summary) : r.kind === 'comparison' ? (summary?.groups?.length ? summary.groups.map((g) => `${g.name} ${num(g.mean)} ± ${num(g.half_width, 2)}`).join(', ') : first ? `Δ[${first.a}−${first.b}] ${num(first.mean)} ± ${num(first.half_width, 2)}` : 'comparison') : summary?.mean !== undefined ? `${num(summary.mean)} ± ${num(summary.ci?.halfWidth ?? summary.ci?.half_width, 2)}` : r.progress?.mean != null ? `${num(r.progress.mean)} ± ${num(r.progress.half_width, 2)} (so far)` : '–';
       const done = r.progress ? r.progress.done : r.episodes;
       return el('tr', { 'data-id': r.id, 'data-status': r.status },
         el('td', {}, el('a', { href: link }, r.id)),
@@ -608,7 +608,40 @@ async function renderComparison(id) {
     el('p', {}, 'Variance reduction: how many times more episodes two independent runs would need for the same interval. P(first returns more): the probability that the first policy returns more than the second in the same episode, with its interval.'),
     provenanceBlock(c),
   );
+  const groupsPlot = c.groups?.length ? groupSection(c, names) : null;
   await drawPlot(plot, await api(`/api/comparisons/${encodeURIComponent(id)}/plot`));
+  if (groupsPlot) await drawPlot(groupsPlot, await api(`/api/comparisons/${encodeURIComponent(id)}/groups-plot`));
+}
+
+/**
+ * Groups of policies (one a training seed): the members and group means plot, and per group
+ * the split of its uncertainty between seeds and episodes as a bar, with what would narrow it.
+ * Added after the differences; returns the figure the plot goes into.
+ */
+function groupSection(c, names) {
+  const figure = el('figure', { class: 'plot', id: 'plot-groups' });
+  const level = `${Math.round(c.level * 100)}%`;
+  const groups = c.groups.map((g) => {
+    const seeds = Math.round((1 - g.uncertainty.episode_share) * 100);
+    return el('section', { class: 'group', 'data-group': g.name },
+      el('h3', {}, `${g.name}: ${g.members.length} members`),
+      el('p', {}, `Group mean ${num(g.mean)} (${num(g.ci.low)} to ${num(g.ci.high)}), ${level} t interval over seeds; IQM of members ${num(g.iqm.estimate)}. `,
+        `Between seeds σ_b ${num(Math.sqrt(g.variance.between_seeds), 3)}, within a policy σ_w ${num(Math.sqrt(g.variance.within_policy), 3)}, intraclass correlation ${num(g.variance.icc, 3)}, design effect ${num(g.variance.design_effect, 3)}.`),
+      el('div', { class: 'split', role: 'img', 'aria-label': `uncertainty: seeds ${seeds}%, episodes ${100 - seeds}%` },
+        el('span', { class: 'split-seeds', style: `width: ${seeds}%` }, seeds >= 12 ? `seeds ${seeds}%` : ''),
+        el('span', { class: 'split-episodes', style: `width: ${100 - seeds}%` }, 100 - seeds >= 12 ? `episodes ${100 - seeds}%` : '')),
+      el('p', { class: 'advice' }, g.advice_text));
+  });
+  const differences = c.group_differences.length === 0 ? null : el('table', { class: 'figures' },
+    el('thead', {}, el('tr', {}, ['groups', 'difference of means', `${level} Welch interval`, 'adjusted p', 'P(member of first is better)'].map((h) => el('th', { scope: 'col' }, h)))),
+    el('tbody', {}, c.group_differences.map((d) => el('tr', {},
+      el('td', {}, `${c.groups[d.a].name} − ${c.groups[d.b].name}`),
+      el('td', { class: 'number' }, num(d.mean)),
+      el('td', { class: 'number' }, `${num(d.low)} to ${num(d.high)}`),
+      el('td', { class: 'number' }, num(d.adjusted_p_value, 2)),
+      el('td', { class: 'number' }, num(d.probability_of_improvement.estimate, 3))))));
+  document.getElementById('plot-differences').before(el('h2', {}, 'Groups: training methods across seeds'), figure, ...groups, ...(differences ? [differences] : []), el('h2', {}, 'Policy by policy'));
+  return figure;
 }
 
 // ---- off-policy runs ----------------------------------------------------------------------

@@ -2,6 +2,7 @@
 export { readDefinitionFile, parseJsonText, type DefinitionFile } from './read-file.js';
 export * from './schemas.js';
 export { parseEnvironment, parsePolicy } from './parse.js';
+export { groupMembers, isGroupJson, parseGroupOption, readGroupOption, type GroupOption } from './policy-group.js';
 export { buildEnvironment } from './build-environment.js';
 export { buildPolicy } from './build-policy.js';
 export { loadEnvironmentFile, loadPolicyFile, type LoadedEnvironment, type LoadedPolicy } from './load.js';

@@ -22,6 +22,7 @@ export type {
 } from './policy-schema.js';
 export { gridworldSchema, tabularSchema, moduleEnvironmentSchema, processEnvironmentSchema };
 export type { GridworldDefinition, TabularDefinition, ModuleEnvironmentDefinition, ProcessEnvironmentDefinition };
+export { groupSchema, groupMemberSchema, type GroupDefinition, type GroupMemberEntry } from './group-schema.js';
 
 export type EnvironmentDefinition = GridworldDefinition | TabularDefinition | ModuleEnvironmentDefinition | ProcessEnvironmentDefinition;
 

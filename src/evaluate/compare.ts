@@ -8,6 +8,7 @@ import type { RolloutSpec } from '../engine/spec.js';
 import type { NoiseMode } from '../engine/noise.js';
 import { InputError, StoppedEarly } from '../errors.js';
 import { comparePolicies, differenceBounds, type DifferenceMethod, type PolicyComparison, type RunningInterval } from '../stats/index.js';
+import { compareGroups, type GroupComparison, type PolicyGroup } from '../stats/groups/index.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import type { EstimateResult } from './estimate.js';
 import { differenceWarnings } from './interval-advice.js';
@@ -40,6 +41,8 @@ export interface CompareRequest {
   readonly interquartileMean: boolean;
   /** Risk figures of each policy and their paired differences (`--risk`). */
   readonly risk?: RiskRequest | null;
+  /** Policies trained by one method with different seeds (`--group`), by position in `policies`. */
+  readonly groups?: readonly PolicyGroup[] | null;
   readonly signal?: AbortSignal;
   /** Seconds one call into a plug-in may take before the run fails (default 10). */
   readonly stepTimeout?: number;
@@ -84,6 +87,8 @@ export interface ComparisonResult {
   readonly warnings: readonly string[];
   /** Per pair (in `comparison.pairs` order), the differences of the risk figures; null without `--risk`. */
   readonly riskDifferences: readonly PairedRiskDifferences[] | null;
+  /** The two-level report of each group and the differences between groups; null without `--group`. */
+  readonly groups: GroupComparison | null;
 }
 
 /**
@@ -351,6 +356,10 @@ export function summarizeComparison(
       }
     });
   }
+  // Every member ran on the same episodes: their shared noise counts (docs/methods.md §15.3).
+  const groups = request.groups && request.groups.length > 0
+    ? compareGroups(buffers.map((b) => b.view()), request.groups, { level: request.level, seed: request.seed, sharedEpisodes: true })
+    : null;
   const target = request.targetError === null ? null : { error: request.targetError, reached, maxEpisodes: request.episodes };
   const analysisSeconds = (performance.now() - analysisStarted) / 1000;
   return {
@@ -367,6 +376,7 @@ export function summarizeComparison(
     interrupted: target ? !reached && episodes < request.episodes : episodes < request.episodes,
     warnings,
     riskDifferences,
+    groups,
   };
 }
 

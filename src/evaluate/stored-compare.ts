@@ -9,6 +9,7 @@ import { HEARTBEAT_SECONDS } from '../store/owner.js';
 import { InputError, StoppedEarly } from '../errors.js';
 import type { DifferenceMethod } from '../stats/index.js';
 import { needsEpisodes, runComparison, summarizeComparison, type CompareRequest, type ComparisonResult } from './compare.js';
+import type { PolicyGroup } from '../stats/groups/index.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import type { AnalysisProgress } from './figures.js';
 import { ReturnsBuffer } from './returns-buffer.js';
@@ -29,6 +30,8 @@ interface ComparisonOptions {
   policies: string[];
   /** Seconds one plug-in call may take (absent in comparisons stored before it was kept: the default). */
   stepTimeout?: number;
+  /** Policy groups by position in `policies` (absent in comparisons stored without groups). */
+  groups?: PolicyGroup[];
 }
 
 /** The files a comparison was defined by: the environment's and every policy's, with their hashes now. */
@@ -76,6 +79,7 @@ export async function runStoredComparison(
         workers: request.workers,
         policies: labels,
         ...(request.stepTimeout === undefined ? {} : { stepTimeout: request.stepTimeout }),
+        ...(request.groups && request.groups.length > 0 ? { groups: request.groups.map((g) => ({ name: g.name, members: [...g.members] })) } : {}),
       };
       const env = { label: request.env.source.label, json: request.env.json, baseDir: request.env.source.baseDir, hash: definitionHash(request.env.json, request.env.source.baseDir) };
       runs.parentId = createRun(db, {
@@ -239,6 +243,7 @@ function comparisonSummary(result: ComparisonResult): Record<string, unknown> {
       mean: pair.meanDifference,
       half_width: result.differenceIntervals[q].halfWidth,
     })),
+    ...(result.groups ? { groups: result.groups.groups.map((g) => ({ name: g.name, mean: g.mean, half_width: g.interval.halfWidth, episode_share: g.episodeShare })) } : {}),
   };
 }
 
@@ -281,5 +286,6 @@ function storedRequest(run: RunRecord, members: readonly RunRecord[], options: C
     sigma: options.sigma,
     targetError: options.targetError,
     interquartileMean: options.interquartileMean,
+    groups: options.groups ?? null,
   };
 }

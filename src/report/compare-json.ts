@@ -1,6 +1,7 @@
 import { riskJson } from './risk-report.js';
 import { exactBeside } from './exact-beside.js';
 import type { ComparisonResult } from '../evaluate/compare.js';
+import { groupsJson } from './group-json.js';
 
 /**
  * The `compare --json` object. `policies` and `differences` (with a, b indices into
@@ -75,6 +76,7 @@ export function compareJson(
     })),
     ranking: [...comparison.policies].sort((x, y) => x.rank - y.rank || x.policy - y.policy).map((p) => p.policy),
     p_value_adjustment: holm ? 'holm' : 'none',
+    ...groupsJson(result.groups ?? null),
     target_error: result.target?.error ?? null,
     target_reached: result.target ? result.target.reached : null,
     max_episodes: result.target?.maxEpisodes ?? null,

@@ -2,6 +2,7 @@ import { exactBeside } from './exact-beside.js';
 import type { ComparisonResult } from '../evaluate/compare.js';
 import { columns, count, decimalsFor, fixed, sig, timeSplit } from './format.js';
 import { NOISE_WORDS } from './noise-words.js';
+import { groupText } from './group-text.js';
 
 function pText(p: number): string {
   return p < 1e-4 ? '< 0.0001' : p.toFixed(4);
@@ -51,9 +52,14 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
       lines.push(`    [${p.policy}] ${fixed(iqm.estimate, d)}  (${fixed(iqm.interval.low, d)} … ${fixed(iqm.interval.high, d)})`);
     }
   }
-  lines.push('', `  Paired differences (first − second), ${level} ${result.differenceIntervals[0]?.method ?? ''} intervals:`);
+  lines.push(...groupText(result, labels, d));
+  // With groups, the many member-by-member pairs would bury the report: they stay in --json.
+  const listPairs = !result.groups || comparison.pairs.length <= 6;
+  if (listPairs) lines.push('', `  Paired differences (first − second), ${level} ${result.differenceIntervals[0]?.method ?? ''} intervals:`);
+  else lines.push('', `  ${comparison.pairs.length} paired differences between single policies are in --json (differences).`);
   const multiple = comparison.pairs.length > 1;
   comparison.pairs.forEach((pair, q) => {
+    if (!listPairs) return;
     const interval = result.differenceIntervals[q];
     const sign = pair.meanDifference >= 0 ? '+' : '';
     const pPart = multiple ? `p ${pText(pair.pValue)}, Holm-adjusted ${pText(pair.adjustedPValue)}` : `p ${pText(pair.pValue)}`;
@@ -85,7 +91,7 @@ export function compareText(result: ComparisonResult, labels: { env: string; pol
     });
   }
   if (result.warnings.length > 0) lines.push('', ...result.warnings.map((w) => `  warning: ${w}`));
-  if (multiple) lines.push('', `  With ${comparison.pairs.length} pairs, p-values are Holm-adjusted (Holm 1979) to keep the chance of any false difference at ${(100 - result.request.level * 100).toFixed(0)}%.`);
+  if (multiple && listPairs) lines.push('', `  With ${comparison.pairs.length} pairs, p-values are Holm-adjusted (Holm 1979) to keep the chance of any false difference at ${(100 - result.request.level * 100).toFixed(0)}%.`);
   lines.push('', `  time ${timeSplit(result.samplingSeconds, result.analysisSeconds)} on ${result.request.workers} worker${result.request.workers === 1 ? '' : 's'}`);
   if (result.interrupted) lines.push(`  Stopped early after ${count(result.episodes)} episodes; the figures above use those.`);
   return lines.join('\n') + '\n';

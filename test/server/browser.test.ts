@@ -195,4 +195,40 @@ describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
 
     expect(problems, 'errors in the page').toEqual([]);
   }, 120_000);
+
+  it('shows a comparison of groups: a dot per member, the group intervals, the variance split bar and the advice', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 1500 } });
+    const problems: string[] = [];
+    page.on('pageerror', (e) => problems.push(e.message));
+    const group = (base: string, epsilons: number[]) => ({ kind: 'group', policies: epsilons.map((epsilon) => ({ kind: 'epsilon', epsilon, base: readJson(base) })) });
+    const posted = await fetch(`${base}/api/comparisons`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({
+        env: readJson('warehouse.json'),
+        env_name: 'warehouse.json',
+        groups: [
+          { name: 'shortcut', definition: group('picker-direct.json', [0.03, 0.06, 0.12]) },
+          { name: 'detour', definition: group('picker-careful.json', [0.05, 0.09, 0.15]) },
+        ],
+        episodes: 1000,
+        seed: 2,
+      }),
+    });
+    expect(posted.status).toBe(202);
+    const comparison = ((await posted.json()) as { id: string }).id;
+    await page.goto(`${base}/#/comparisons/${comparison}`);
+    await page.waitForSelector('#plot-groups[data-rendered="true"]', { timeout: 30_000 }).catch(async (e) => {
+      throw new Error(`${e.message}; the page says: ${await page.textContent('#main')}; errors: ${problems.join('; ')}`);
+    });
+    // Six members and two group means: eight dots and eight interval rules.
+    expect(await page.$$eval('#plot-groups g.mark-symbol.role-mark path', (points) => points.length)).toBe(8);
+    expect(await page.$$eval('#plot-groups g.mark-rule.role-mark line', (rules) => rules.length)).toBe(8);
+    expect(await page.$$eval('section.group .split', (bars) => bars.length)).toBe(2);
+    const share = await page.$eval('section.group[data-group="shortcut"] .split-seeds', (span) => (span as HTMLElement).style.width);
+    expect(Number.parseFloat(share)).toBeGreaterThan(0);
+    expect(await page.textContent('section.group[data-group="detour"] p.advice')).toMatch(/seeds|episodes/);
+    expect(await page.textContent('#main')).toMatch(/shortcut − detour/);
+    expect(problems, 'errors in the page').toEqual([]);
+  });
 });

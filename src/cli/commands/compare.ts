@@ -1,4 +1,5 @@
-import { readDefinitionFile } from '../../definitions/index.js';
+import { parseGroupOption, readDefinitionFile, readGroupOption, type DefinitionFile } from '../../definitions/index.js';
+import type { PolicyGroup } from '../../stats/groups/index.js';
 import { InputError, StoppedEarly } from '../../errors.js';
 import { runComparison, type CompareRequest, type ComparisonResult } from '../../evaluate/compare.js';
 import { differenceMethod } from '../../options/difference-method.js';
@@ -27,11 +28,22 @@ returns, how many times cheaper pairing made the comparison, and the probability
 first policy returns more than the second. With three or more policies the p-values are
 Holm-adjusted and the policies ranked.
 
+With --group NAME=FILE,FILE,... (repeatable) the policies are the members of a training
+method, one a training seed: reckon reports each group's mean over its seeds with an interval
+that counts both the seed variability and the episode noise, the variance split between
+them, what would narrow the interval (more seeds or more episodes), and between groups the
+difference of group means (Welch over seeds), the probability of improvement over members
+and Holm-adjusted p-values.
+
 Usage: reckon compare --env FILE --policy A --policy B [--policy C ...] [options]
+       reckon compare --env FILE --group NAME=FILE,FILE[,...] [--group NAME=...] [--policy P] [options]
 
 Options:
   --env FILE            environment definition
-  --policy FILE         a policy definition; give two or more
+  --policy FILE         a policy definition; give two or more (or groups)
+  --group NAME=FILES    a group of policies trained by one method with different seeds:
+                        policy files separated by commas, or a group file
+                        {"kind": "group", "policies": [FILE or policy, ...]}; at least 2
   --episodes N          episodes per policy (default 10000); with --target-error, the cap
   --target-error E      run until every difference's half-width is at most E, with intervals
                         that stay valid although the run stops on the data
@@ -62,17 +74,22 @@ Options:
                         before the run fails, naming the episode and step (default 10)
   --json                one JSON object: policies[{name, mean, std, ci, episodes}],
                         differences[{a, b, mean, low, high, p_value, correlation,
-                        variance_reduction, ...}] with a, b indices into policies
+                        variance_reduction, ...}] with a, b indices into policies; with
+                        --group also groups[{name, members, mean, ci, iqm, variance,
+                        uncertainty, advice, ...}] and group_differences[{a, b, mean, low,
+                        high, p_value, adjusted_p_value, probability_of_improvement}]
 
 Examples:
   reckon compare --env envs/warehouse.json --policy envs/picker-direct.json --policy envs/picker-careful.json --seed 1
   reckon compare --env envs/warehouse.json --policy envs/picker-direct.json --policy envs/picker-direct-eps.json --target-error 0.05
   reckon compare --env envs/restock-env.json --policy envs/restock-base-stock.json --policy envs/restock-fixed.json --iqm
+  reckon compare --env envs/warehouse.json --group shortcut=envs/seeds/shortcut-trainer.json --group detour=envs/seeds/detour-trainer.json --episodes 2000 --seed 1
 `;
 
 const OPTIONS = {
   env: { type: 'string' },
   policy: { type: 'string', multiple: true },
+  group: { type: 'string', multiple: true },
   episodes: { type: 'string' },
   'target-error': { type: 'string' },
   'max-episodes': { type: 'string' },
@@ -104,9 +121,13 @@ export async function run(args: string[]): Promise<number> {
     return 0;
   }
   const envPath = required('compare', 'env', values.env, '--env envs/warehouse.json');
-  const policyPaths = (values.policy as string[] | undefined) ?? [];
-  if (policyPaths.length < 2) {
-    throw new InputError('--policy', `give at least two policies to compare (got ${policyPaths.length}), e.g. --policy envs/picker-direct.json --policy envs/picker-careful.json`);
+  const plainPaths = (values.policy as string[] | undefined) ?? [];
+  const groupOptions = ((values.group as string[] | undefined) ?? []).map(parseGroupOption);
+  groupOptions.forEach((option, i) => {
+    if (groupOptions.findIndex((o) => o.name === option.name) !== i) throw new InputError('--group', `the name "${option.name}" is given twice; give each group its own name`);
+  });
+  if (plainPaths.length < 2 && groupOptions.length === 0) {
+    throw new InputError('--policy', `give at least two policies to compare (got ${plainPaths.length}), e.g. --policy envs/picker-direct.json --policy envs/picker-careful.json, or --group NAME=FILE,FILE`);
   }
   const { episodes, targetError } = runSize(values);
   const { seed, workers, level, bounds, sigma, start, stepTimeout } = parseRunOptions(values);
@@ -114,9 +135,19 @@ export async function run(args: string[]): Promise<number> {
   const annotations = storedAnnotations(values);
 
   const env = readDefinitionFile(envPath);
+  const policyFiles: DefinitionFile[] = plainPaths.map((p) => readDefinitionFile(p));
+  const groups: PolicyGroup[] = [];
+  for (const option of groupOptions) {
+    const members = readGroupOption(option);
+    groups.push({ name: option.name, members: members.map((_, i) => policyFiles.length + i) });
+    policyFiles.push(...members);
+  }
+  if (policyFiles.length < 2) throw new InputError('--policy', 'a group alone is one method: add another --group or a --policy to compare it with');
+  const policyPaths = policyFiles.map((f) => f.source.label);
   const request: CompareRequest = {
     env,
-    policies: policyPaths.map((p) => readDefinitionFile(p)),
+    policies: policyFiles,
+    groups: groups.length > 0 ? groups : null,
     seed,
     start,
     noise: noiseMode(values.noise, 'compare', env.json),

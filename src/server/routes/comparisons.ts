@@ -7,6 +7,7 @@ import { comparisonShowJson, runProvenanceJson } from '../../report/run-json.js'
 import { analyzeRunsComparisonRun, isRunsCompareRecord } from '../../evaluate/runs-compare-store.js';
 import { runsCompareJson } from '../../report/runs-compare-report.js';
 import { differencesSpec } from '../../report/plots/differences.js';
+import { groupMembersSpec, type GroupPlotRow } from '../../report/plots/group-members.js';
 import type { ServerContext } from '../context.js';
 import { comparisonLabels, parseComparisonBody, planComparison } from '../comparison-request.js';
 import { queryOptions } from '../query.js';
@@ -16,7 +17,8 @@ import { submitRun } from './submit.js';
 /**
  * `POST /api/comparisons` (as `reckon compare`: policies on common random numbers, stored as
  * a comparison run with one member run per policy), `GET /api/comparisons/:id` (what
- * `runs show ID --json` prints for it, plus status and progress) and its differences plot.
+ * `runs show ID --json` prints for it, plus status and progress), its differences plot, and
+ * for a comparison of groups the plot of members and group means.
  */
 export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void {
   app.post('/api/comparisons', async (request, reply) => {
@@ -28,7 +30,7 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
     } catch (e) {
       if (!(e instanceof InputError)) throw e;
       const policy = labels.policies.indexOf(e.where);
-      const field = e.where === labels.env ? 'env' : policy >= 0 ? `policies[${policy}]` : e.where.startsWith('--') ? e.where.slice(2).replace(/-/g, '_') : null;
+      const field = e.where === labels.env ? 'env' : policy >= 0 ? labels.fields[policy] : e.where.startsWith('groups[') ? e.where : e.where.startsWith('--') ? e.where.slice(2).replace(/-/g, '_') : null;
       return reply.code(e.httpStatus).send({ error: e.message, field });
     }
   });
@@ -84,5 +86,25 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
       subtitle: `bars: ${Math.round(result.request.level * 100)}% ${interval?.method ?? ''} interval of each difference; dashed: no difference`,
     });
   });
-}
 
+  app.get<{ Params: { id: string } }>('/api/comparisons/:id/groups-plot', async (request) => {
+    queryOptions(request.query, []);
+    const run = comparisonRun(request.params.id);
+    if (!isSettled(ctx, run)) throw new InputError(`run ${run.id}`, 'is still running; its plot comes when it ends');
+    const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
+    if (!result.groups) throw new InputError(`run ${run.id}`, 'compares no groups of policies; see its differences at /api/comparisons/' + run.id + '/plot');
+    const rows: GroupPlotRow[] = [];
+    for (const g of result.groups.groups) {
+      g.members.forEach((p, i) => {
+        const e = result.estimates[p];
+        rows.push({ row: `${g.name}: ${labels.policies[p]}`, group: g.name, kind: 'member', mean: g.components.memberMeans[i], low: e.ci.low, high: e.ci.high });
+      });
+      rows.push({ row: `${g.name}: group mean`, group: g.name, kind: 'group', mean: g.mean, low: g.interval.low, high: g.interval.high });
+    }
+    const level = Math.round(result.request.level * 100);
+    return groupMembersSpec(rows, {
+      title: `Groups on ${labels.env} (run ${run.id}, ${result.episodes.toLocaleString('en-US')} episodes a member)`,
+      subtitle: `blue: each member with its ${level}% interval from episode noise only; red: the group mean with its ${level}% interval over seeds`,
+    });
+  });
+}
