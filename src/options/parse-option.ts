@@ -23,6 +23,19 @@ const positiveNumberText = (what: string) =>
     .transform((s) => Number(s))
     .refine((n) => Number.isFinite(n) && n > 0, { message: `must be a positive number (${what})` });
 
+const DURATION_UNITS: Record<string, number> = { '': 1, s: 1, m: 60, min: 60, h: 3600, d: 86400 };
+
+/** A duration as a number of seconds, or with a unit: 45s, 30m, 2h, 1.5d. */
+const durationText = (what: string) =>
+  z
+    .string()
+    .regex(/^\s*\d+(\.\d+)?\s*(s|m|min|h|d)?\s*$/, { message: `must be a duration such as 90s, 30m, 2h or 1.5d (${what})` })
+    .transform((s) => {
+      const [, value, , unit = ''] = s.trim().match(/^(\d+(\.\d+)?)\s*(s|m|min|h|d)?$/)!;
+      return Number(value) * DURATION_UNITS[unit];
+    })
+    .refine((n) => n > 0, { message: `must be longer than 0 (${what})` });
+
 export const optionSchemas = {
   episodes: integerText(2, 1e12, 'episodes to run, at least 2'),
   seed: integerText(0, MAX_SEED, 'any whole number from 0'),
@@ -44,6 +57,7 @@ export const optionSchemas = {
   targetError: positiveNumberText('the half-width to reach'),
   start: z.string().min(1, { message: 'must name a state' }),
   stepTimeout: positiveNumberText('seconds one plug-in call may take'),
+  seedCost: durationText('what training one more seed costs'),
   limit: integerText(1, 1e6, 'how many runs to list'),
   noise: z.enum(NOISE_MODES, { message: `must be one of ${NOISE_MODES.join(', ')} (how draws are keyed: by step, or by state visit)` }),
 } as const;

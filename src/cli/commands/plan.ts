@@ -10,6 +10,8 @@ import { parseOption } from '../../options/parse-option.js';
 import { parseRunOptions } from '../../options/run-options.js';
 import { noiseMode } from '../../options/noise-option.js';
 import { NOISE_WORDS } from '../../report/noise-words.js';
+import { parseGroupOption } from '../../definitions/index.js';
+import { groupPlanText, planGroups } from './plan-groups.js';
 
 export const HELP = `reckon plan: how many episodes, and how long, before running them
 
@@ -24,11 +26,22 @@ difference D with the given power.
 Usage:
   reckon plan --env FILE --policy FILE --target-error E [options]
   reckon plan --env FILE --policy A --policy B --difference D [--power P] [options]
+  reckon plan --env FILE --group NAME=FILES [--group ...] [--seed-cost T]
+              (--target-error E | --difference D) [options]
+
+With --group (policies of one training method, one a seed, as for 'compare --group') it
+pilots every member and splits the variability between seeds and episodes; with the cost of
+training one more seed (--seed-cost) it gives the episodes a member that spend a budget best,
+and the seeds that reach a half-width E of the group mean or detect a difference D between
+methods with the given power.
 
 Options:
   --target-error E      the half-width to reach
   --difference D        the smallest true difference worth detecting (two policies)
   --power P             chance of detecting it (default 0.8)
+  --group NAME=FILES    a training method's policies, one a seed (files, or a group file)
+  --seed-cost T         what training one more seed costs: 90s, 30m, 2h, 1.5d (with --group)
+  --episodes N          episodes a member to plan at without --seed-cost (default 10000)
   --pilot N             pilot episodes (default: adaptive, about 2 seconds)
   --confidence L        two-sided level (default 0.95)
   --bounds LOW,HIGH     bounds on every return, when the environment cannot give them
@@ -42,11 +55,15 @@ Options:
 Examples:
   reckon plan --env envs/warehouse.json --policy envs/picker-direct.json --target-error 0.01
   reckon plan --env envs/warehouse.json --policy envs/picker-direct.json --policy envs/picker-direct-eps.json --difference 0.05
+  reckon plan --env envs/warehouse.json --group shortcut=envs/seeds/shortcut-trainer.json --seed-cost 2h --target-error 0.2
 `;
 
 const OPTIONS = {
   env: { type: 'string' },
   policy: { type: 'string', multiple: true },
+  group: { type: 'string', multiple: true },
+  'seed-cost': { type: 'string' },
+  episodes: { type: 'string' },
   'target-error': { type: 'string' },
   difference: { type: 'string' },
   power: { type: 'string' },
@@ -95,6 +112,31 @@ export async function run(args: string[]): Promise<number> {
   }
   const envPath = required('plan', 'env', values.env, '--env envs/warehouse.json');
   const policyPaths = (values.policy as string[] | undefined) ?? [];
+  const groupValues = (values.group as string[] | undefined) ?? [];
+  if (groupValues.length > 0) {
+    if (policyPaths.length > 0) throw new InputError('--policy', 'plan with --group or with --policy, not both');
+    const groups = groupValues.map(parseGroupOption);
+    const options = parseRunOptions(values);
+    const env = readDefinitionFile(envPath);
+    const plan = await planGroups({
+      envPath,
+      groups,
+      seed: options.seed,
+      start: options.start,
+      noise: noiseMode(values.noise, 'compare', env.json),
+      workers: options.workers,
+      level: options.level,
+      seedCost: values['seed-cost'] === undefined ? null : parseOption('seed-cost', 'seedCost', values['seed-cost']),
+      episodes: values.episodes === undefined ? 10_000 : parseOption('episodes', 'episodes', values.episodes),
+      targetError: values['target-error'] === undefined ? null : parseOption('target-error', 'targetError', values['target-error']),
+      difference: values.difference === undefined ? null : parseOption('difference', 'targetError', values.difference),
+      power: values.power === undefined ? 0.8 : parseOption('power', 'confidence', values.power),
+      pilotEpisodes: values.pilot === undefined ? null : parseOption('pilot', 'episodes', values.pilot),
+    });
+    process.stdout.write(values.json ? `${JSON.stringify(plan, null, 2)}\n` : groupPlanText(plan));
+    return 0;
+  }
+  if (values['seed-cost'] !== undefined) throw new InputError('--seed-cost', 'plans a training method: give it with --group NAME=FILES');
   if (policyPaths.length === 0) throw new InputError('--policy', "is required; e.g. --policy envs/picker-direct.json (see 'reckon plan --help')");
   if (policyPaths.length > 2) throw new InputError('--policy', 'plan takes one policy (an estimate) or two (a comparison)');
   const { seed, workers, level, bounds: userBounds, sigma: givenSigma, start } = parseRunOptions(values);
