@@ -4,6 +4,7 @@ import { buildEnvironment } from '../../src/definitions/build-environment.js';
 import { buildPolicy } from '../../src/definitions/build-policy.js';
 import type { DefinitionSource } from '../../src/definitions/built.js';
 import { parseEnvironment, parsePolicy } from '../../src/definitions/parse.js';
+import { groupSchema } from '../../src/definitions/group-schema.js';
 
 /** The README's definition examples are the ones users copy first: they must load as shown. */
 const readme = readFileSync(new URL('../../README.md', import.meta.url), 'utf8');
@@ -45,5 +46,11 @@ describe('README examples', () => {
     const [tabular] = examples('tabular');
     const env = await buildEnvironment(parseEnvironment(tabular, source), source);
     expect(env.kind).toBe('finite');
+  });
+
+  test('the group file example is a valid group file', () => {
+    const [group] = examples('group');
+    expect(group).toBeDefined();
+    expect(groupSchema.safeParse(group).success).toBe(true);
   });
 });
