@@ -50,6 +50,8 @@ describe('JSON keys', () => {
       check: json(reckon(['check', ...grid, '--policy', policy, '--json'])),
       plan: json(reckon(['plan', ...grid, '--policy', policy, '--target-error', '0.05', '--pilot', '200', '--seed', '1', '--json'])),
       plan_difference: json(reckon(['plan', ...grid, '--policy', policy, '--policy', uniform, '--difference', '0.5', '--pilot', '200', '--seed', '1', '--json'])),
+      compare_groups: json(reckon(['compare', ...grid, '--group', `g=${policy},${uniform}`, '--policy', policy, '--episodes', '200', '--seed', '1', '--no-store', '--json'])),
+      plan_groups: json(reckon(['plan', ...grid, '--group', `g=${policy},${uniform}`, '--seed-cost', '1h', '--target-error', '0.5', '--pilot', '200', '--seed', '1', '--json'])),
       list: json(reckon(['runs', 'list', '--store', store, '--all', '--json'])),
       show: json(reckon(['runs', 'show', estimate.run_id, '--store', store, '--json'])),
       show_comparison: json(reckon(['runs', 'show', compare.run_id, '--store', store, '--json'])),

@@ -137,3 +137,25 @@ describe('shared episode noise under common random numbers (docs/methods.md §15
     expect(sharedEpisodeCovariance(members)).toBeCloseTo(pairs.reduce((a, b) => a + b) / 3 / 5, 12);
   });
 });
+
+describe('the seed-level bootstrap from 20 members (Davison & Hinkley 1997, §3.8)', () => {
+  // 25 members with means spread like a normal sample, two episodes each at mean ± 1.
+  const normalScores = Array.from({ length: 25 }, (_, i) => {
+    // Blom's approximate normal scores (common practice) give a fixed, symmetric spread.
+    const p = (i + 1 - 0.375) / (25 + 0.25);
+    const t = Math.sqrt(-2 * Math.log(Math.min(p, 1 - p)));
+    const z = t - (2.515517 + 0.802853 * t + 0.010328 * t * t) / (1 + 1.432788 * t + 0.189269 * t * t + 0.001308 * t ** 3);
+    return p < 0.5 ? -z : z;
+  });
+  const members = membersWithMeans(normalScores.map((z) => 10 + 0.3 * z));
+  it('is reported from K = 20 on, and its width matches the resampling-seeds expectation E var* = ((K − 1)/K)·s²(Ȳ_k)/K', () => {
+    const g = groupMean(members, { level: 0.95, seed: 3 });
+    expect(g.seedBootstrap).not.toBeNull();
+    const k = 25;
+    const expected = 1.959964 * Math.sqrt(((k - 1) / k) * (g.components.varianceOfMemberMeans / k));
+    // 2000 resamples: the percentile half-width is within a few percent of its expectation.
+    expect(g.seedBootstrap!.halfWidth / expected).toBeGreaterThan(0.9);
+    expect(g.seedBootstrap!.halfWidth / expected).toBeLessThan(1.1);
+    expect(groupMean(members.slice(0, 19), { level: 0.95 }).seedBootstrap).toBeNull();
+  });
+});
