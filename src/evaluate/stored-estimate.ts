@@ -5,9 +5,8 @@ import { definitionHash } from '../store/definition-hash.js';
 import { definitionFiles, displayPath, firstChangedFile } from '../store/definition-files.js';
 import { machineFacts } from '../store/machine.js';
 import type { Db } from '../store/open.js';
-import { appendChunk, claimRun, createRun, finishRun, keepHeartbeat, loadEpisodes, refuseIfLive, type RunRecord, type ShardInfo } from '../store/runs.js';
+import { appendChunk, claimRun, createRun, finishRun, keepHeartbeat, loadEpisodes, refuseIfLive, runKindPhrase, type RunRecord, type ShardInfo } from '../store/runs.js';
 import { HEARTBEAT_SECONDS } from '../store/owner.js';
-import type { CiMethod } from '../stats/index.js';
 import type { IntervalChoice } from './estimate.js';
 import type { EnvironmentFacts } from './environment-facts.js';
 import { runEstimate, type EstimateProgress, type EstimateResult } from './estimate.js';
@@ -106,7 +105,7 @@ export async function resumeStoredEstimate(
   run: RunRecord,
   extra: { signal?: AbortSignal; onProgress?: (p: EstimateProgress) => void; workers?: number; stepTimeout?: number },
 ): Promise<{ runId: string; result: EstimateResult }> {
-  if (run.kind !== 'estimate') throw new InputError(`run ${run.id}`, `is a ${run.kind} run; only estimate runs can be resumed`);
+  if (run.kind !== 'estimate') throw new InputError(`run ${run.id}`, `is ${runKindPhrase(run.kind)}; only estimate runs can be resumed`);
   if (run.status === 'done') throw new InputError(`run ${run.id}`, "is already done; see it with 'reckon runs show " + run.id + "'");
   refuseIfLive(run, 'resume it');
   const spec: RolloutSpec = {

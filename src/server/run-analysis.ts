@@ -1,7 +1,6 @@
 import type { EstimateResult } from '../evaluate/estimate.js';
 import { analyzeStoredRun, type AnalysisOverrides } from '../evaluate/stored-estimate.js';
 import { exactForRun, type RunExactValues } from '../report/plots/exact-for-run.js';
-import type { CiMethod } from '../stats/index.js';
 import type { Db } from '../store/open.js';
 import { loadEpisodes, type RunRecord } from '../store/runs.js';
 

@@ -11,6 +11,11 @@ import { loadAnnotations, NO_ANNOTATIONS, setLabels, addNote, type RunNote } fro
 export type RunStatus = 'running' | 'done' | 'interrupted' | 'failed';
 export type RunKind = 'estimate' | 'comparison' | 'offpolicy';
 
+/** A run's kind as messages say it, with its article: "an estimate run", "an off-policy run". */
+export function runKindPhrase(kind: RunKind): string {
+  return kind === 'estimate' ? 'an estimate run' : kind === 'offpolicy' ? 'an off-policy run' : 'a comparison run';
+}
+
 export interface StoredDefinition {
   readonly label: string;
   readonly json: unknown;

@@ -2,7 +2,7 @@ import { readDefinitionFile } from '../../definitions/index.js';
 import { InputError } from '../../errors.js';
 import { runPilot, type PilotResult } from '../../evaluate/pilot.js';
 import { columns, count, duration, rate as formatRate, sig } from '../../report/format.js';
-import { comparePolicies, differenceBounds, pairedSampleSize, planEpisodes, summarize, tInterval } from '../../stats/index.js';
+import { comparePolicies, pairedSampleSize, planEpisodes, summarize, tInterval } from '../../stats/index.js';
 import { projectedAnalysisSeconds } from '../../evaluate/figures.js';
 import { pairingGain } from '../../stats/pairing-gain.js';
 import { parseCommandArgs, required } from '../args.js';

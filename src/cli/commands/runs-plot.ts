@@ -7,7 +7,7 @@ import { RUN_PLOT_KINDS, runPlotSpec, type RunPlotKind } from '../../report/plot
 import { renderSvg } from '../../report/plots/svg.js';
 import { defaultStorePath } from '../../store/location.js';
 import { openStore } from '../../store/open.js';
-import { getRun, listMembers, loadEpisodes } from '../../store/runs.js';
+import { getRun, listMembers, loadEpisodes, runKindPhrase } from '../../store/runs.js';
 import { writeOutputFile } from '../output-file.js';
 import { parseCommandArgs } from '../args.js';
 import { parseOption } from '../../options/parse-option.js';
@@ -48,7 +48,7 @@ export async function plot(args: string[], help: string): Promise<number> {
     }
     if (run.kind !== 'estimate') {
       const members = listMembers(db, run.id).map((m) => m.id);
-      throw new InputError(`run ${run.id}`, `is a ${run.kind} run; plot one of its member runs (${members.join(', ')}), e.g. 'reckon runs plot ${members[0]} --out ${values.out}'`);
+      throw new InputError(`run ${run.id}`, `is ${runKindPhrase(run.kind)}; plot one of its member runs (${members.join(', ')}), e.g. 'reckon runs plot ${members[0]} --out ${values.out}'`);
     }
     const level = values.confidence === undefined ? ((run.options as { level?: number }).level ?? 0.95) : parseOption('confidence', 'confidence', values.confidence);
     const { returns, lengths } = loadEpisodes(db, run);

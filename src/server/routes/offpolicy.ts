@@ -7,6 +7,7 @@ import { OFFPOLICY_BODY_LIMIT, offPolicyFieldOf, planOffPolicy, type OffPolicyTa
 import type { FromOffPolicyWorker, OffPolicyWorkerData } from '../offpolicy-worker.js';
 import { offPolicyWeightsSpec } from '../../report/plots/offpolicy-weights.js';
 import { loadOffPolicyLog } from '../../store/offpolicy-runs.js';
+import { runKindPhrase } from '../../store/runs.js';
 import type { ServerContext } from '../context.js';
 import { queryOptions } from '../query.js';
 import { findStoredRun } from './runs.js';
@@ -79,7 +80,7 @@ export function offPolicyRoutes(app: FastifyInstance, ctx: ServerContext): void 
 
   const offPolicyRun = (id: string) => {
     const run = findStoredRun(ctx, id);
-    if (run.kind !== 'offpolicy') throw new InputError(`run ${run.id}`, `is a ${run.kind} run, not an off-policy one`);
+    if (run.kind !== 'offpolicy') throw new InputError(`run ${run.id}`, `is ${runKindPhrase(run.kind)}, not an off-policy one`);
     return run;
   };
 

@@ -2,7 +2,7 @@ import type { FastifyInstance } from 'fastify';
 import { parseOption } from '../../options/parse-option.js';
 import { riskRequestFrom } from '../../options/risk-options.js';
 import { InputError } from '../../errors.js';
-import { getRun, listMembers, listRuns, type RunRecord } from '../../store/runs.js';
+import { getRun, listMembers, listRuns, runKindPhrase, type RunRecord } from '../../store/runs.js';
 import type { ServerContext } from '../context.js';
 import { queryList, queryOptions } from '../query.js';
 import { parseRunFilter } from '../../options/run-filter-options.js';
@@ -84,7 +84,7 @@ export function runRoutes(app: FastifyInstance, ctx: ServerContext): void {
     const run = findStoredRun(ctx, request.params.id);
     const live = liveState(ctx, run);
     if (run.kind !== 'estimate') {
-      throw new InputError(`run ${run.id}`, `is a ${run.kind} run; see it at /api/${run.kind === 'offpolicy' ? 'offpolicy' : 'comparisons'}/${run.id}`);
+      throw new InputError(`run ${run.id}`, `is ${runKindPhrase(run.kind)}; see it at /api/${run.kind === 'offpolicy' ? 'offpolicy' : 'comparisons'}/${run.id}`);
     }
     // A run still growing is summarised by its progress (running mean and half-width from the
     // engine): recomputing every figure from millions of stored returns on each request would
