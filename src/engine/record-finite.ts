@@ -4,11 +4,12 @@
  * line of the logged-episode format, with the behaviour policy's probabilities. Such a log
  * has a known truth: `reckon exact` gives any target policy's value on the environment.
  */
-import { closeSync, openSync, writeSync } from 'node:fs';
+import { closeSync, openSync } from 'node:fs';
 import type { BuiltPolicy } from '../definitions/built.js';
 import type { FiniteMdp } from '../definitions/finite-mdp.js';
 import { InputError } from '../errors.js';
 import { checkedAction } from './checked-action.js';
+import { LogLines } from './log-lines.js';
 import { startSupport } from './finite-rollout.js';
 import { STREAM, seedStream } from './streams.js';
 import { Xoshiro128 } from './xoshiro128.js';
@@ -46,22 +47,13 @@ export function recordFiniteEpisodes(path: string, request: RecordRequest): Floa
   const returns = new Float64Array(count);
   const names = stateNames.map((n) => JSON.stringify(n));
   const rows = Array.from({ length: mdp.stateCount }, (_, s) => `[${Array.from(matrix.probability.subarray(s * actionCount, (s + 1) * actionCount)).join(',')}]`);
-  let buffer = `${JSON.stringify({
-    kind: 'header',
-    format: 'reckon-episodes',
-    version: 1,
+  const lines = new LogLines(fd, {
     discount,
     reward_bounds: mdp.rewardRange,
     horizon,
     actions: actionNames,
     description: request.description,
-  })}\n`;
-  const flush = (force: boolean) => {
-    if (force || buffer.length > 1 << 20) {
-      writeSync(fd, buffer);
-      buffer = '';
-    }
-  };
+  });
   try {
     for (let i = 0; i < count; i++) {
       const episode = first + i;
@@ -102,14 +94,13 @@ export function recordFiniteEpisodes(path: string, request: RecordRequest): Floa
         const next = outcomeNext[k];
         t++;
         const end = terminal[next] !== 0 ? '"terminal"' : t >= horizon ? '"truncated"' : 'null';
-        buffer += `{"episode":${episode},"t":${t - 1},"state":${names[s]},"action":${JSON.stringify(actionNames[a])},"reward":${reward},"behaviour_prob":${p},"behaviour_probs":${rows[s]},"next_state":${names[next]},"end":${end}}\n`;
-        flush(false);
+        lines.add(`{"episode":${episode},"t":${t - 1},"state":${names[s]},"action":${JSON.stringify(actionNames[a])},"reward":${reward},"behaviour_prob":${p},"behaviour_probs":${rows[s]},"next_state":${names[next]},"end":${end}}\n`);
         s = next;
         if (terminal[s] !== 0) break;
       }
       returns[i] = g;
     }
-    flush(true);
+    lines.flush();
   } finally {
     closeSync(fd);
   }

@@ -5,11 +5,12 @@
  * `probabilitiesAt`. States are written by the environment's `stateName` (else `String`), the
  * names a target policy is matched by. Runs on a worker thread, like every call into plug-in code.
  */
-import { closeSync, openSync, writeSync } from 'node:fs';
+import { closeSync, openSync } from 'node:fs';
 import type { CodePolicy, ModuleEnvironment } from '../definitions/built.js';
 import { InputError, PluginError } from '../errors.js';
 import type { StepResult } from '../plugin.js';
 import { checkedAction } from './checked-action.js';
+import { LogLines } from './log-lines.js';
 import { pluginRngs } from './episode-rng.js';
 import { pluginClock } from './plugin-clock.js';
 import { STREAM, seedStream } from './streams.js';
@@ -43,22 +44,13 @@ export function recordModuleEpisodes(path: string, request: ModuleRecordRequest)
   const out: StepResult = { state: undefined, reward: 0, done: false };
   const returns = new Float64Array(count);
   const actionText = actionNames.map((a) => JSON.stringify(a));
-  let buffer = `${JSON.stringify({
-    kind: 'header',
-    format: 'reckon-episodes',
-    version: 1,
+  const lines = new LogLines(fd, {
     discount,
     ...(built.rewardRange ? { reward_bounds: built.rewardRange } : {}),
     horizon,
     actions: actionNames,
     description: request.description,
-  })}\n`;
-  const flush = (force: boolean) => {
-    if (force || buffer.length > 1 << 20) {
-      writeSync(fd, buffer);
-      buffer = '';
-    }
-  };
+  });
   try {
     for (let i = 0; i < count; i++) {
       const episode = first + i;
@@ -96,14 +88,13 @@ export function recordModuleEpisodes(path: string, request: ModuleRecordRequest)
         t++;
         const next = JSON.stringify(nameOf(state));
         const end = result.done ? '"terminal"' : t >= horizon ? '"truncated"' : 'null';
-        buffer += `{"episode":${episode},"t":${t - 1},"state":${name},"action":${actionText[a]},"reward":${reward},"behaviour_prob":${p},"behaviour_probs":[${Array.from(row).join(',')}],"next_state":${next},"end":${end}}\n`;
-        flush(false);
+        lines.add(`{"episode":${episode},"t":${t - 1},"state":${name},"action":${actionText[a]},"reward":${reward},"behaviour_prob":${p},"behaviour_probs":[${Array.from(row).join(',')}],"next_state":${next},"end":${end}}\n`);
         name = next;
         if (result.done) break;
       }
       returns[i] = g;
     }
-    flush(true);
+    lines.flush();
   } finally {
     closeSync(fd);
   }
