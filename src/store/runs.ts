@@ -252,12 +252,19 @@ export function recordHeartbeat(db: Db, runIds: readonly string[]): void {
 
 /**
  * Keeps recording heartbeats for the given runs every `seconds` until the returned function
- * is called; the timer never keeps the process alive on its own.
+ * is called; the timer never keeps the process alive on its own. A heartbeat that cannot be
+ * written (the store busy past its timeout) is skipped: the next chunk commit records one
+ * too, and a thrown timer callback would end the whole run without its report.
  */
 export function keepHeartbeat(db: Db, runIds: () => readonly string[], seconds: number): () => void {
   const timer = setInterval(() => {
     const ids = runIds();
-    if (ids.length > 0 && db.open) recordHeartbeat(db, ids);
+    if (ids.length === 0 || !db.open) return;
+    try {
+      recordHeartbeat(db, ids);
+    } catch (e) {
+      if (!String((e as { code?: string }).code ?? '').startsWith('SQLITE_BUSY')) throw e;
+    }
   }, seconds * 1000);
   timer.unref();
   return () => clearInterval(timer);

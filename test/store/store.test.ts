@@ -353,15 +353,18 @@ describe('two writers', () => {
   it('two estimate runs writing one store at once both succeed', async () => {
     const store = storeIn(tempFiles({}));
     const start = (seed: string) =>
-      new Promise<number | null>((resolve) => {
+      new Promise<string>((resolve) => {
         const child = spawn(process.execPath, [CLI, 'estimate', ...slow, '--episodes', '4000', '--seed', seed, '--workers', '1', '--store', store], {
-          env: { ...process.env, RECKON_NO_PROGRESS: '1' },
-          stdio: 'ignore',
+          env: { ...process.env, RECKON_NO_PROGRESS: '1', RECKON_DEBUG: '1' },
+          stdio: ['ignore', 'ignore', 'pipe'],
         });
-        child.on('exit', resolve);
+        let stderr = '';
+        child.stderr.on('data', (d) => (stderr += d));
+        // The exit code with what the run said, so a failure here shows its reason.
+        child.on('close', (code) => resolve(`exit ${code}${code === 0 ? '' : `: ${stderr}`}`));
       });
-    const codes = await Promise.all([start('1'), start('2')]);
-    expect(codes).toStrictEqual([0, 0]);
+    const outcomes = await Promise.all([start('1'), start('2')]);
+    expect(outcomes).toStrictEqual(['exit 0', 'exit 0']);
     const runs = json(reckon(['runs', 'list', '--store', store, '--json']));
     expect(runs).toHaveLength(2);
     expect(runs.every((r: { status: string; episodes: number }) => r.status === 'done' && r.episodes === 4000)).toBe(true);
