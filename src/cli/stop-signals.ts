@@ -1,4 +1,5 @@
 import type { StoppedEarly } from '../errors.js';
+import { count } from '../report/format.js';
 
 /**
  * Ctrl-C (SIGINT) and SIGTERM, what a batch scheduler sends at a job's time limit, end a run
@@ -46,7 +47,7 @@ export class StopSignals {
  */
 export function reportStoppedEarly(e: StoppedEarly, stop: StopSignals, resumeCommand: (runId: string) => string): number {
   const how = e.runId ? ` Continue it with: ${resumeCommand(e.runId)}` : ' No episode had run, so nothing was stored.';
-  const when = e.creating ? 'while the environment and policy were being created' : `after ${e.episodes} of ${e.requested} episodes, all kept`;
+  const when = e.creating ? 'while the environment and policy were being created' : `after ${count(e.episodes)} of ${count(e.requested)} episodes, all kept`;
   process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} ${when}.${how}\n`);
   return stop.exitCode();
 }

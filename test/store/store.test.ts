@@ -164,7 +164,7 @@ describe('crash safety', () => {
     expect(row.status).toBe('interrupted');
     expect(row.episodes_done).toBeGreaterThanOrEqual(200);
     expect(chunked.n).toBe(row.episodes_done);
-    expect(stderr).toContain(`after ${row.episodes_done} of ${episodes} episodes`);
+    expect(stderr).toContain(`after ${row.episodes_done.toLocaleString('en-US')} of ${Number(episodes).toLocaleString('en-US')} episodes`);
   });
 
   it('a live run cannot be deleted: refused with its process id, and the run goes on untouched', async () => {

@@ -18,6 +18,7 @@ import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
 import { annotationRecord, storedAnnotations } from '../annotate.js';
 import { annotationsJson } from '../../report/run-json.js';
+import { count } from '../../report/format.js';
 
 export const HELP = `reckon compare: is one policy really better than another, and by how much?
 
@@ -207,7 +208,7 @@ export async function run(args: string[]): Promise<number> {
   }
   if (result.interrupted) {
     const kept = runId ? ` Its ${result.episodes} paired episodes are kept as run ${runId}; 'reckon runs show ${runId}' reports them, and 'reckon runs resume ${runId}${values.store ? ` --store ${storePath}` : ''}' continues it.` : '';
-    process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} after ${result.episodes} episodes.${kept}\n`);
+    process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} after ${count(result.episodes)} episodes.${kept}\n`);
     return stop.exitCode();
   }
   return 0;

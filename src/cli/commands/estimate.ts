@@ -20,6 +20,7 @@ import { version } from '../version.js';
 import { prepareRecorder } from '../../evaluate/record-log.js';
 import { annotationRecord, storedAnnotations } from '../annotate.js';
 import { annotationsJson } from '../../report/run-json.js';
+import { count } from '../../report/format.js';
 
 export const HELP = `reckon estimate: run seeded episodes and estimate the policy's expected discounted return
 
@@ -215,7 +216,7 @@ export async function run(args: string[]): Promise<number> {
   }
   if (result.interrupted) {
     const how = runId ? ` Continue it with: reckon runs resume ${runId}${values.store ? ` --store ${storePath}` : ''}` : '';
-    process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} after ${result.episodes} of ${range.count} episodes, all kept.${how}\n`);
+    process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} after ${count(result.episodes)} of ${count(range.count)} episodes, all kept.${how}\n`);
     return stop.exitCode();
   }
   return 0;

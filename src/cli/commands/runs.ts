@@ -29,6 +29,7 @@ import { parseOption } from '../../options/parse-option.js';
 import { ProgressLine } from '../progress.js';
 import { reportStoppedEarly, StopSignals } from '../stop-signals.js';
 import { version } from '../version.js';
+import { count } from '../../report/format.js';
 
 export const HELP = `reckon runs: find, label, review, re-analyse, compare, export, resume, merge and tidy stored runs
 
@@ -269,7 +270,7 @@ function statusNote(run: RunRecord, storeOption: string): string {
     case 'running':
       return `\n  Still running (process ${run.ownerPid}${run.ownerHost ? ` on ${run.ownerHost}` : ''}): the figures above cover the episodes committed so far.\n`;
     case 'interrupted':
-      return `\n  Interrupted after ${run.episodesDone} of ${run.episodesRequested} episodes: continue it with 'reckon runs resume ${run.id}${store}'.\n`;
+      return `\n  Interrupted after ${count(run.episodesDone)} of ${count(run.episodesRequested)} episodes: continue it with 'reckon runs resume ${run.id}${store}'.\n`;
     case 'failed':
       return `\n  Failed: ${run.error ?? 'no reason was recorded'}\n  The ${run.episodesDone} episodes committed before the failure are kept; once the cause is fixed, 'reckon runs resume ${run.id}${store}' continues it.\n`;
     default:
@@ -378,7 +379,7 @@ async function resume(args: string[]): Promise<number> {
     else process.stdout.write(`Run ${run.id} resumed from episode ${run.firstEpisode + run.episodesDone}.\n\n${estimateText(result, labels)}`);
     if (result.interrupted) {
       const store = values.store ? ` --store ${label}` : '';
-      process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} again after ${result.episodes} episodes, all kept. Continue it with: reckon runs resume ${run.id}${store}\n`);
+      process.stderr.write(`reckon: interrupted${stop.received ? ` (${stop.received})` : ''} again after ${count(result.episodes)} episodes, all kept. Continue it with: reckon runs resume ${run.id}${store}\n`);
       return stop.exitCode();
     }
   } finally {
@@ -416,7 +417,7 @@ async function resumeComparison(
   if (how.json) process.stdout.write(`${JSON.stringify(compareJson(result, labels, version(), run.id, memberIds), null, 2)}\n`);
   else process.stdout.write(`Comparison ${run.id} resumed from episode ${from}.\n\n${compareText(result, labels)}`);
   if (result.interrupted) {
-    process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} again after ${result.episodes} paired episodes, all kept. Continue it with: reckon runs resume ${run.id}${how.storeOption}\n`);
+    process.stderr.write(`reckon: comparison interrupted${stop.received ? ` (${stop.received})` : ''} again after ${count(result.episodes)} paired episodes, all kept. Continue it with: reckon runs resume ${run.id}${how.storeOption}\n`);
     return stop.exitCode();
   }
   return 0;
