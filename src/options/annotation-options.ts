@@ -56,3 +56,13 @@ export interface Annotations {
 export function annotationsFrom(values: { label?: string[]; note?: string }): Annotations {
   return { labels: parseLabels('--label', values.label), note: parseNote('--note', values.note) };
 }
+
+/** The same labels and note in an HTTP request body: `"labels": {"k": "v"}, "note": "…"`. */
+export const annotationBodyFields = {
+  labels: z.record(labelKeySchema, labelValueSchema).optional(),
+  note: noteSchema.optional(),
+};
+
+export function annotationsFromBody(body: { labels?: Record<string, string>; note?: string }): Annotations {
+  return { labels: body.labels ?? {}, note: body.note ?? null };
+}

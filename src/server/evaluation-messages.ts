@@ -2,11 +2,12 @@ import type { RolloutSpec } from '../engine/spec.js';
 import type { CompareRequest } from '../evaluate/compare.js';
 import type { StoredOptions } from '../evaluate/stored-estimate.js';
 import type { JobProgress } from './run-queue.js';
+import type { Annotations } from '../options/annotation-options.js';
 
 /** What to run: one policy's estimate, or a comparison (plain data: no callbacks cross threads). */
 export type EvaluationTask =
-  | { readonly kind: 'estimate'; readonly spec: RolloutSpec; readonly options: StoredOptions }
-  | { readonly kind: 'comparison'; readonly request: CompareRequest };
+  | { readonly kind: 'estimate'; readonly spec: RolloutSpec; readonly options: StoredOptions; readonly annotations?: Annotations }
+  | { readonly kind: 'comparison'; readonly request: CompareRequest; readonly annotations?: Annotations };
 
 /** What an evaluation thread is started with; it then runs one task after another (ToEvaluationWorker). */
 export interface EvaluationWorkerData {

@@ -7,6 +7,7 @@ import { InputError } from '../errors.js';
 import type { StoredOptions } from '../evaluate/stored-estimate.js';
 import { refuseCodeAndPaths } from './inline-definitions.js';
 import { noiseMode } from '../options/noise-option.js';
+import { annotationBodyFields, annotationsFromBody, type Annotations } from '../options/annotation-options.js';
 
 /** A definition's display name: what `runs list` shows and what error messages start with. */
 export const nameSchema = z
@@ -24,6 +25,7 @@ export const runOptionFields = {
   bounds: z.tuple([z.number(), z.number()]).optional(),
   sigma: z.number().optional(),
   noise: z.string().optional(),
+  ...annotationBodyFields,
 };
 
 /**
@@ -55,6 +57,7 @@ export interface ServerLimits {
 export interface EvaluationPlan {
   readonly spec: RolloutSpec;
   readonly options: StoredOptions;
+  readonly annotations: Annotations;
 }
 
 /** The field of the form (or body) an InputError from this request belongs to. */
@@ -107,5 +110,5 @@ export function planEvaluation(body: EvaluationBody, seed: number, limits: Serve
     start,
     noise: noiseMode(body.noise, 'estimate', body.env),
   };
-  return { spec, options };
+  return { spec, options, annotations: annotationsFromBody(body) };
 }

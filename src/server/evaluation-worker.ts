@@ -44,6 +44,7 @@ async function runTask(db: ReturnType<typeof openStore>, task: EvaluationTask, g
       first: 0,
       signal: controller.signal,
       onRunId: created,
+      annotations: task.annotations,
       onProgress: (p) => {
         checkStop();
         send({ type: 'progress', progress: { done: p.done, total: p.total, seconds: p.seconds, mean: p.mean, halfWidth: p.halfWidth } });
@@ -62,7 +63,7 @@ async function runTask(db: ReturnType<typeof openStore>, task: EvaluationTask, g
       },
     },
     data.toolVersion,
-    { onRunId: created },
+    { onRunId: created, annotations: task.annotations },
   );
   return result;
 }

@@ -7,6 +7,7 @@ import { parseOffPolicyOption } from '../options/offpolicy-options.js';
 import { parseOption } from '../options/parse-option.js';
 import { nameSchema } from './evaluation-request.js';
 import { refuseCodeAndPaths } from './inline-definitions.js';
+import { annotationBodyFields, annotationsFromBody, type Annotations } from '../options/annotation-options.js';
 
 /** Largest body of `POST /api/offpolicy`: a log is sent whole, so it may be far larger than other bodies. */
 export const OFFPOLICY_BODY_LIMIT = 16 * 1024 * 1024;
@@ -31,6 +32,7 @@ export const offPolicyBodySchema = z
     resamples: z.number().optional(),
     folds: z.number().optional(),
     seed: z.number().optional(),
+    ...annotationBodyFields,
   })
   .strict();
 
@@ -48,6 +50,7 @@ export interface OffPolicyTask {
   readonly seed: number;
   readonly resamples: number;
   readonly folds: number;
+  readonly annotations: Annotations;
 }
 
 /** A checked body to the task the thread runs; throws InputError (HTTP 400) naming the field. */
@@ -71,6 +74,7 @@ export function planOffPolicy(body: unknown): OffPolicyTask {
     seed: b.seed === undefined ? 1 : parseOption('seed', 'seed', text(b.seed)),
     resamples: b.resamples === undefined ? DEFAULT_RESAMPLES : parseOffPolicyOption('resamples', text(b.resamples)),
     folds: b.folds === undefined ? 5 : parseOffPolicyOption('folds', text(b.folds)),
+    annotations: annotationsFromBody(b),
   };
 }
 

@@ -50,7 +50,7 @@ try {
       resamples: task.resamples,
       folds: task.folds,
     },
-    { toolVersion: data.toolVersion, baseDir: data.baseDir },
+    { toolVersion: data.toolVersion, baseDir: data.baseDir, annotations: task.annotations },
   );
   port.postMessage({ type: 'done', runId: stored.runId!, json: { ...stored.json, run_id: stored.runId } } satisfies FromOffPolicyWorker);
 } catch (e) {

@@ -13,6 +13,7 @@ import { comparisonLabels, parseComparisonBody, planComparison } from '../compar
 import { queryOptions } from '../query.js';
 import { findStoredRun, isSettled, liveState } from './runs.js';
 import { submitRun } from './submit.js';
+import { annotationsFromBody } from '../../options/annotation-options.js';
 
 /**
  * `POST /api/comparisons` (as `reckon compare`: policies on common random numbers, stored as
@@ -26,7 +27,7 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
     const labels = comparisonLabels(body);
     try {
       const plan = planComparison(body, randomInt(0, 2 ** 31), ctx.limits);
-      return await submitRun(ctx, reply, { kind: 'comparison', request: plan }, { seed: plan.seed, episodes: plan.episodes });
+      return await submitRun(ctx, reply, { kind: 'comparison', request: plan, annotations: annotationsFromBody(body) }, { seed: plan.seed, episodes: plan.episodes });
     } catch (e) {
       if (!(e instanceof InputError)) throw e;
       const policy = labels.policies.indexOf(e.where);

@@ -16,7 +16,7 @@ export function evaluationRoutes(app: FastifyInstance, ctx: ServerContext): void
     const labels = { env: body.env_name ?? 'env', policy: body.policy_name ?? 'policy' };
     try {
       const plan = planEvaluation(body, randomInt(0, 2 ** 31), ctx.limits);
-      return await submitRun(ctx, reply, { kind: 'estimate', spec: plan.spec, options: plan.options }, { seed: plan.spec.seed, episodes: plan.options.episodes });
+      return await submitRun(ctx, reply, { kind: 'estimate', spec: plan.spec, options: plan.options, annotations: plan.annotations }, { seed: plan.spec.seed, episodes: plan.options.episodes });
     } catch (e) {
       if (e instanceof InputError) return reply.code(e.httpStatus).send({ error: e.message, field: fieldOf(e, labels) });
       throw e;
