@@ -71,3 +71,15 @@ export function analyzeRunsComparisonRun(db: Db, run: RunRecord): RunsComparison
   });
   return compareStoredRuns(db, runs, record);
 }
+
+/**
+ * Stored `runs compare` results that compare any of `ids` and are not among them: deleting
+ * those runs leaves these results unable to recompute their figures, so `runs delete` names them.
+ */
+export function comparisonsDependingOn(db: Db, ids: readonly string[]): string[] {
+  const going = new Set(ids);
+  const rows = db.prepare("SELECT id, options_json FROM runs WHERE kind = 'comparison' AND options_json LIKE '%\"fromRuns\"%'").all() as { id: string; options_json: string }[];
+  return rows
+    .filter((row) => !going.has(row.id) && ((JSON.parse(row.options_json) as { fromRuns?: string[] }).fromRuns ?? []).some((id) => going.has(id)))
+    .map((row) => row.id);
+}

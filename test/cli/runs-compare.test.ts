@@ -119,6 +119,19 @@ describe('runs compare', () => {
     }
   }, 60_000);
 
+  it('runs delete names a stored result that compares the runs going, in --dry-run, after deleting and in --json', () => {
+    const sources = [0, 1].map(() => json(reckon(['estimate', '--env', env, '--policy', policies[0], '--episodes', '200', '--seed', '9', ...s, '--json'])).run_id as string);
+    const result = json(reckon(['runs', 'compare', sources[0], sources[1], '--store-result', ...s, '--json'])).run_id as string;
+    const dry = json(reckon(['runs', 'delete', sources[0], '--dry-run', ...s, '--json']));
+    expect(dry.orphaned_comparisons).toStrictEqual([result]);
+    const deleted = reckon(['runs', 'delete', sources[0], ...s]);
+    expect(deleted.code).toBe(0);
+    expect(deleted.stdout).toContain(`Stored comparison ${result} compares deleted runs and can no longer be recomputed; delete it too with 'reckon runs delete ${result}'.`);
+    expect(reckon(['runs', 'show', result, ...s]).stderr).toContain('which is no longer stored');
+    // Deleting the result with its last source names nothing.
+    expect(json(reckon(['runs', 'delete', sources[1], result, ...s, '--json'])).orphaned_comparisons).toStrictEqual([]);
+  }, 60_000);
+
   it('bad input: one line naming the place, exit 2', () => {
     const comparison = json(reckon(['compare', '--env', env, '--policy', policies[0], '--policy', policies[1], '--episodes', '100', '--seed', '1', ...s, '--json'])).run_id;
     const cases: [string[], RegExp][] = [

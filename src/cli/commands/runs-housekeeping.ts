@@ -8,6 +8,7 @@ import { runsListText } from '../../report/runs-text.js';
 import { parseCommandArgs } from '../args.js';
 import { writeOutputFile } from '../output-file.js';
 import { FILTER_OPTIONS, filterFrom } from '../run-filter.js';
+import { comparisonsDependingOn } from '../../evaluate/runs-compare-store.js';
 
 /** Asks on the terminal; false unless the answer is yes. */
 async function confirm(question: string): Promise<boolean> {
@@ -62,14 +63,16 @@ export async function remove(args: string[], help: string): Promise<number> {
     }
     const episodes = targets.reduce((n, r) => n + (r.kind === 'comparison' ? listMembers(db, r.id).reduce((m, x) => m + x.episodesDone, 0) : r.episodesDone), 0);
     const ids = targets.map((r) => r.id);
+    const orphaned = comparisonsDependingOn(db, ids);
     const report = (deleted: boolean) => {
       if (values.json) {
-        process.stdout.write(`${JSON.stringify({ store: storeLabel, dry_run: !deleted, deleted: deleted ? ids : [], would_delete: deleted ? [] : ids, episodes, kept_running: live.map((r) => r.id), kept_members: members.map((r) => r.id) }, null, 2)}\n`);
+        process.stdout.write(`${JSON.stringify({ store: storeLabel, dry_run: !deleted, deleted: deleted ? ids : [], would_delete: deleted ? [] : ids, episodes, kept_running: live.map((r) => r.id), kept_members: members.map((r) => r.id), orphaned_comparisons: orphaned }, null, 2)}\n`);
         return;
       }
       const keptNote =
         (live.length ? `Kept ${live.length} running run${live.length === 1 ? '' : 's'} (${live.map((r) => r.id).join(', ')}): a running run is never deleted.\n` : '') +
-        (members.length ? `Kept ${members.length} member run${members.length === 1 ? '' : 's'} of comparisons (${members.map((r) => r.id).join(', ')}): delete the comparison to delete them.\n` : '');
+        (members.length ? `Kept ${members.length} member run${members.length === 1 ? '' : 's'} of comparisons (${members.map((r) => r.id).join(', ')}): delete the comparison to delete them.\n` : '') +
+        (orphaned.length ? orphanNote(orphaned, deleted) : '');
       if (!deleted) process.stdout.write(`${targets.length === 0 ? 'No runs match: nothing would be deleted.\n' : `Would delete ${targets.length} run${targets.length === 1 ? '' : 's'} (${episodes.toLocaleString('en-US')} episodes) from ${storeLabel}:\n${runsListText(targets)}`}${keptNote}`);
       else process.stdout.write(`Deleted ${targets.length === 1 ? `run ${ids[0]}` : `${targets.length} runs`} and ${targets.length === 1 ? 'its' : 'their'} episodes from ${storeLabel}.${targets.length > 1 ? ` (${ids.join(', ')})` : ''}\n${keptNote}`);
     };
@@ -95,6 +98,14 @@ export async function remove(args: string[], help: string): Promise<number> {
     db.close();
   }
   return 0;
+}
+
+/** Names the stored `runs compare` results that lose (or would lose) the runs they are computed from. */
+function orphanNote(ids: readonly string[], deleted: boolean): string {
+  const one = ids.length === 1;
+  const what = `Stored comparison${one ? '' : 's'} ${ids.join(', ')} compare${one ? 's' : ''}`;
+  const then = deleted ? 'deleted runs and can no longer be recomputed' : 'runs that would go, and could then no longer be recomputed';
+  return `${what} ${then}; delete ${one ? 'it' : 'them'} too with 'reckon runs delete ${ids.join(' ')}'.\n`;
 }
 
 function bytesOf(file: string): number {
