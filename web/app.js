@@ -555,6 +555,12 @@ async function renderComparison(id) {
     onLeave(() => clearTimeout(timer));
     return;
   }
+  if (c.figures_unavailable) {
+    show(el('p', { class: 'crumbs' }, el('a', { href: '#/' }, 'Runs'), ' / ', id), el('h1', {}, `Comparison on ${c.env} `, badge(c.status)),
+      el('p', { class: 'warning', id: 'comparison-unavailable' }, c.figures_unavailable),
+      el('p', {}, 'Each policy\'s own run: ', c.members.map((m) => [el('a', { href: `#/runs/${m}` }, m), ' '])));
+    return;
+  }
   const names = c.policies.map((p) => p.name);
   const level = `${+(c.level * 100).toFixed(2)}%`;
   const pValue = (p) => (p === null || p === undefined ? '–' : p < 1e-16 ? '< 1e-16' : num(p, 2));

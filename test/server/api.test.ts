@@ -342,4 +342,38 @@ describe('stopping a run over the API', () => {
       await app.close();
     }
   });
+
+  it('POST /api/runs/:id/stop on a running comparison leaves it and its members interrupted, and its page says how to go on', async () => {
+    const storePath = tempStore();
+    const app = await buildApp({ storePath, toolVersion: 'test', workers: 1, maxEpisodes: 1e9 });
+    const uniform = readJson('textbook/uniform.json');
+    let id = '';
+    try {
+      const payload = { env: grid, policies: [{ name: 'optimal', definition: optimal }, { name: 'uniform', definition: uniform }], episodes: 300_000_000, seed: 4 };
+      const posted = await app.inject({ method: 'POST', url: '/api/comparisons', payload });
+      expect(posted.statusCode, posted.body).toBe(202);
+      id = posted.json().id;
+      for (let i = 0; i < 200; i++) {
+        const members = JSON.parse(reckon(['runs', 'list', '--all', '--store', storePath, '--json']).stdout) as { parent_id: string | null; episodes: number }[];
+        if (members.some((m) => m.parent_id === id && m.episodes > 0)) break;
+        await new Promise((r) => setTimeout(r, 50));
+      }
+      const stop = await app.inject({ method: 'POST', url: `/api/runs/${id}/stop`, payload: {} });
+      expect(stop.statusCode, stop.body).toBe(202);
+      const ended = await waitForRun(async () => (await app.inject({ url: `/api/comparisons/${id}` })).json());
+      expect(ended.status).toBe('interrupted');
+      // Policies run block by block, so a stop can fall between two members' blocks: then there
+      // are no paired episodes yet, and the page says how to go on instead of failing.
+      if (ended.figures_unavailable) expect(ended.figures_unavailable).toContain(`reckon runs resume ${id}`);
+      else expect(ended.episodes).toBeGreaterThan(0);
+    } finally {
+      await app.close();
+    }
+    const runs = JSON.parse(reckon(['runs', 'list', '--all', '--store', storePath, '--json']).stdout) as { id: string; parent_id: string | null; status: string; episodes: number }[];
+    const members = runs.filter((r) => r.parent_id === id);
+    expect(members).toHaveLength(2);
+    expect(members.every((m) => m.status === 'interrupted')).toBe(true);
+    expect(members.some((m) => m.episodes > 0)).toBe(true);
+    expect(runs.find((r) => r.id === id)?.status).toBe('interrupted');
+  });
 });

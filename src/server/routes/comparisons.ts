@@ -53,9 +53,16 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
       const comparison = ctx.analysis.remember(`runs-compare|${run.id}`, () => analyzeRunsComparisonRun(ctx.db, run));
       return { ...runsCompareJson(comparison, run.toolVersion, run.id), kind: 'comparison', ...runProvenanceJson(run), status: live.status, progress: null };
     }
-    const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
     const members = ctx.analysis.remember(`members|${run.id}`, () => listMembers(ctx.db, run.id));
-    return { ...comparisonShowJson(run, result, labels, members), status: live.status, progress: null };
+    let analysed: ReturnType<typeof analyzeStoredComparison>;
+    try {
+      analysed = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
+    } catch (e) {
+      // Stopped before its members held two paired episodes: still a run with a status and a way on.
+      if (!(e instanceof InputError) || live.status === 'done') throw e;
+      return { run_id: run.id, kind: 'comparison', env: run.env.label, seed: run.seed, status: live.status, progress: null, created_at: run.createdAt, members: members.map((m) => m.id), figures_unavailable: e.message };
+    }
+    return { ...comparisonShowJson(run, analysed.result, analysed.labels, members), status: live.status, progress: null };
   });
 
   app.get<{ Params: { id: string } }>('/api/comparisons/:id/plot', async (request) => {
