@@ -646,7 +646,10 @@ function groupSection(c, names) {
       el('td', { class: 'number' }, `${num(d.low)} to ${num(d.high)}`),
       el('td', { class: 'number' }, num(d.adjusted_p_value, 2)),
       el('td', { class: 'number' }, num(d.probability_of_improvement.estimate, 3))))));
-  document.getElementById('plot-differences').before(el('h2', {}, 'Groups: training methods across seeds'), figure, ...groups, ...(differences ? [differences] : []), el('h2', {}, 'Policy by policy'));
+  const differencesPlot = document.getElementById('plot-differences');
+  differencesPlot.before(el('h2', {}, 'Groups: training methods across seeds'), figure, ...groups, ...(differences ? [differences] : []), el('h2', {}, 'Policy by policy'));
+  // With two groups or more the differences plot draws the differences of group means: it goes with them.
+  if (differences) differences.after(differencesPlot);
   return figure;
 }
 

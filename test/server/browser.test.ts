@@ -229,6 +229,10 @@ describe.skipIf(!haveChromium)('the review page in headless Chromium', () => {
     expect(Number.parseFloat(share)).toBeGreaterThan(0);
     expect(await page.textContent('section.group[data-group="detour"] p.advice')).toMatch(/seeds|episodes/);
     expect(await page.textContent('#main')).toMatch(/shortcut − detour/);
+    // The differences plot draws the one difference of group means, placed with the groups' figures.
+    await page.waitForSelector('#plot-differences[data-rendered="true"]', { timeout: 30_000 });
+    expect(await page.$$eval('#plot-differences g.mark-symbol path', (points) => points.length)).toBe(1);
+    expect(await page.$eval('#plot-differences', (figure) => figure.previousElementSibling?.tagName)).toBe('TABLE');
     expect(problems, 'errors in the page').toEqual([]);
   });
 });

@@ -38,6 +38,11 @@ describe('comparisons of groups over HTTP', () => {
       expect(rows.filter((r) => r.kind === 'member')).toHaveLength(5);
       const groupRows = rows.filter((r) => r.kind === 'group');
       expect(groupRows.map((r) => [r.mean, r.low, r.high])).toEqual(done.groups.map((g: any) => [g.mean, g.ci.low, g.ci.high]));
+      // The differences plot of a group comparison draws the difference of group means, one bar, not the 10 member pairs.
+      const differences = (await app.inject({ url: `/api/comparisons/${id}/plot` })).json().data.values as { pair: string; mean: number; low: number; high: number }[];
+      expect(differences).toHaveLength(1);
+      expect(differences[0].pair).toBe('low − high');
+      expect([differences[0].mean, differences[0].low, differences[0].high]).toEqual([done.group_differences[0].mean, done.group_differences[0].low, done.group_differences[0].high]);
     } finally {
       await app.close();
     }

@@ -82,6 +82,18 @@ export function comparisonRoutes(app: FastifyInstance, ctx: ServerContext): void
       );
     }
     const { result, labels } = ctx.analysis.remember(`comparison|${run.id}`, () => analyzeStoredComparison(ctx.db, run));
+    // Between training methods the question is the difference of group means (Welch on member
+    // means): the pairs of individual members would bury it under K_A·K_B bars.
+    if (result.groups && result.groups.pairs.length > 0) {
+      const groups = result.groups.groups;
+      return differencesSpec(
+        result.groups.pairs.map((pair) => ({ pair: `${groups[pair.first].name} − ${groups[pair.second].name}`, mean: pair.mean, low: pair.interval.low, high: pair.interval.high })),
+        {
+          title: `Differences of group means on ${labels.env} (run ${run.id}, ${result.episodes.toLocaleString('en-US')} episodes a member)`,
+          subtitle: `bars: ${Math.round(result.request.level * 100)}% Welch interval on the members' means (seeds and episodes); dashed: no difference`,
+        },
+      );
+    }
     const rows = result.comparison.pairs.map((pair, q) => ({
       pair: `${labels.policies[pair.first]} − ${labels.policies[pair.second]}`,
       mean: pair.meanDifference,
