@@ -1,4 +1,4 @@
-import type { Environment, Rng } from '../plugin.js';
+import type { Environment, Policy, Rng } from '../plugin.js';
 import type { FiniteMdp, PolicyMatrix } from './finite-mdp.js';
 import type { ProcessConnection } from './process-connection.js';
 
@@ -70,4 +70,11 @@ export interface CodePolicy {
 /** Chooses an action index for a state; `stateName` is the env's name for it (for table lookups). */
 export interface ActingPolicy {
   act(state: unknown, rng: Rng): number;
+  /**
+   * For a module policy on a module environment: the plug-in itself, and what `act` does with
+   * its answer (the action index, or the error `act` throws). The code environment's rollout
+   * loop calls the plug-in directly, one call fewer a step, which leaves the JIT the room to
+   * inline both plug-ins' hot paths; `act(s, rng)` is `index(policy.act(s, rng))`.
+   */
+  readonly direct?: { readonly policy: Policy; index(answer: unknown): number };
 }

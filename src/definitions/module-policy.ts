@@ -50,7 +50,8 @@ export async function buildModulePolicy(
 
   const where = `${source.label}: ${label}`;
   if (env.kind === 'module') {
-    const acting: ActingPolicy = { act: (state, rng) => actionIndexOf(policy.act(state, rng), actions, where) };
+    const index = (answer: unknown) => actionIndexOf(answer, actions, where);
+    const acting: ActingPolicy = { act: (state, rng) => index(policy.act(state, rng)), direct: { policy, index } };
     if (!policy.probabilities) return { kind: 'code', acting, matrix: null };
     const describe = (state: unknown) => (env.env.stateName ? env.env.stateName(state) : String(state));
     const probabilitiesAt = (state: unknown) => probabilityRow(policy, state, actions, (detail) => new InputError(source.label, `${label}: probabilities("${describe(state)}") ${detail}`));

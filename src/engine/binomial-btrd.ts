@@ -70,7 +70,13 @@ export function binomialBtrd(rand: () => number, n: number, p: number): number {
   }
 }
 
-const correction = createRequire(import.meta.url)('@stdlib/random-base-binomial/lib/correction.js') as (k: number) => number;
+let stirling: ((k: number) => number) | null = null;
+
+/** stdlib's Stirling correction term, loaded on the first large-mean binomial draw (its module tree costs every thread tens of milliseconds). */
+function correction(k: number): number {
+  stirling ??= createRequire(import.meta.url)('@stdlib/random-base-binomial/lib/correction.js') as (k: number) => number;
+  return stirling(k);
+}
 
 /**
  * Binomial(n, p) for n·p < 10 and p <= 1/2 by inversion, searching up from 0 with one

@@ -16,30 +16,30 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     /** Uniform in the open interval (0, 1), so no sampler ever takes ln(0). */
     private readonly open = (): number => (this.uint32() + 0.5) * 2.3283064365386963e-10;
     private readonly bits = (): number => this.uint32();
-    /** Built on the first named draw, so a plug-in that uses none never loads them. */
-    private built: Samplers | null = null;
+    /** Each built on its first draw, so a plug-in loads only the samplers it uses. */
+    private readonly built: Partial<Samplers> = {};
     private knuthLambda = NaN;
     private knuthLimit = 0;
 
-    private get samplers(): Samplers {
-      return (this.built ??= makeSamplers(this.open, this.bits));
+    private sampler<K extends keyof Samplers>(name: K): Samplers[K] {
+      return (this.built[name] ??= makeSampler(name, this.open, this.bits));
     }
 
     normal(mu: number, sigma: number): number {
       if (typeof mu !== 'number' || !Number.isFinite(mu)) bad('normal', 'mu', mu, 'a finite number');
       if (!isPositive(sigma)) bad('normal', 'sigma', sigma, 'a finite number > 0');
-      return mu + sigma * this.samplers.normal();
+      return mu + sigma * this.sampler('normal')();
     }
 
     poisson(lambda: number): number {
       if (!isPositive(lambda)) bad('poisson', 'lambda', lambda, 'a finite number > 0');
-      if (lambda >= 30) return this.samplers.poisson(lambda);
+      if (lambda >= 30) return this.sampler('poisson')(lambda);
       // Below 30, stdlib's own method: Knuth's product of uniforms (TAOCP vol. 2, 3.4.1), which
       // stdlib's knuth.js runs recomputing e^-lambda (its exp) at every factor; here it is
       // computed once per lambda with the same exp, so the draws are the same, about 2× sooner.
       if (lambda !== this.knuthLambda) {
         this.knuthLambda = lambda;
-        this.knuthLimit = stdlib().exp(-lambda);
+        this.knuthLimit = stdlib('exp')(-lambda);
       }
       const limit = this.knuthLimit;
       let product = this.open();
@@ -53,7 +53,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
 
     exponential(rate: number): number {
       if (!isPositive(rate)) bad('exponential', 'rate', rate, 'a finite number > 0');
-      return this.samplers.exponential(rate);
+      return this.sampler('exponential')(rate);
     }
 
     gamma(shape: number, scale: number): number {
@@ -65,7 +65,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     beta(a: number, b: number): number {
       if (!isPositive(a)) bad('beta', 'a', a, 'a finite number > 0');
       if (!isPositive(b)) bad('beta', 'b', b, 'a finite number > 0');
-      return stdlib().beta(this.open, this.samplers.normal, a, b);
+      return stdlib('beta')(this.open, this.sampler('normal'), a, b);
     }
 
     binomial(n: number, p: number): number {
@@ -79,7 +79,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     geometric(p: number): number {
       if (!isProbability(p) || p === 0) bad('geometric', 'p', p, 'a probability in (0, 1]');
       if (p === 1) return 0;
-      return this.samplers.geometric(p);
+      return this.sampler('geometric')(p);
     }
 
     categorical(weights: ArrayLike<number>): number {
@@ -132,7 +132,7 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
 
     bernoulli(p: number): boolean {
       if (!isProbability(p)) bad('bernoulli', 'p', p, 'a probability in [0, 1]');
-      return this.samplers.bernoulli(p) === 1;
+      return this.sampler('bernoulli')(p) === 1;
     }
 
     /**
@@ -142,10 +142,10 @@ export function withDistributions<B extends UniformConstructor>(Base: B) {
     private standardGamma(shape: number): number {
       if (shape < 1) {
         const d = shape + 1 - 1 / 3;
-        return stdlib().gamma(this.open, this.samplers.normal, 1, d, 1 / Math.sqrt(9 * d)) * Math.pow(this.open(), 1 / shape);
+        return stdlib('gamma')(this.open, this.sampler('normal'), 1, d, 1 / Math.sqrt(9 * d)) * Math.pow(this.open(), 1 / shape);
       }
       const d = shape - 1 / 3;
-      return stdlib().gamma(this.open, this.samplers.normal, 1, d, 1 / Math.sqrt(9 * d));
+      return stdlib('gamma')(this.open, this.sampler('normal'), 1, d, 1 / Math.sqrt(9 * d));
     }
   };
 }
@@ -201,35 +201,39 @@ interface Samplers {
   bernoulli: Sampler1;
 }
 
-let loaded: Stdlib | null = null;
+const STDLIB_FILES: { readonly [K in keyof Stdlib]: readonly [file: string, member: string | null] } = {
+  ziggurat: ['@stdlib/random-base-improved-ziggurat/lib/improved_ziggurat.js', null],
+  gamma: ['@stdlib/random-base-gamma/lib/gamma.js', null],
+  beta: ['@stdlib/random-base-beta/lib/beta.js', null],
+  exp: ['@stdlib/math-base-special-exp', null],
+  poisson: ['@stdlib/random-base-poisson', 'factory'],
+  exponential: ['@stdlib/random-base-exponential', 'factory'],
+  geometric: ['@stdlib/random-base-geometric', 'factory'],
+  bernoulli: ['@stdlib/random-base-bernoulli', 'factory'],
+};
 
-/** The @stdlib parts, loaded on first use: some 0.3 s of module loading a thread need not pay. */
-function stdlib(): Stdlib {
-  if (loaded === null) {
-    const require = createRequire(import.meta.url);
-    loaded = {
-      ziggurat: require('@stdlib/random-base-improved-ziggurat/lib/improved_ziggurat.js'),
-      gamma: require('@stdlib/random-base-gamma/lib/gamma.js'),
-      beta: require('@stdlib/random-base-beta/lib/beta.js'),
-      exp: require('@stdlib/math-base-special-exp'),
-      poisson: require('@stdlib/random-base-poisson').factory,
-      exponential: require('@stdlib/random-base-exponential').factory,
-      geometric: require('@stdlib/random-base-geometric').factory,
-      bernoulli: require('@stdlib/random-base-bernoulli').factory,
-    };
+const loaded: Partial<Stdlib> = {};
+
+/**
+ * One @stdlib part, loaded on its first use: each costs tens of milliseconds of module
+ * loading (the Poisson factory alone about 0.1 s), paid by every worker thread, so a
+ * plug-in loads only the ones it draws from (a small-mean Poisson needs just `exp`).
+ */
+function stdlib<K extends keyof Stdlib>(name: K): Stdlib[K] {
+  let part = loaded[name];
+  if (part === undefined) {
+    const [file, member] = STDLIB_FILES[name];
+    const exported = createRequire(import.meta.url)(file) as Record<string, unknown>;
+    part = (member === null ? exported : exported[member]) as Stdlib[K];
+    loaded[name] = part;
   }
-  return loaded;
+  return part as Stdlib[K];
 }
 
-function makeSamplers(open: Uniform, bits: Uniform): Samplers {
-  const lib = stdlib();
-  return {
-    normal: lib.ziggurat(open, bits),
-    poisson: lib.poisson({ prng: open }),
-    exponential: lib.exponential({ prng: open }),
-    geometric: lib.geometric({ prng: open }),
-    bernoulli: lib.bernoulli({ prng: open }),
-  };
+/** Builds one sampler of {@link Samplers} on the given stream (none draws while being built). */
+function makeSampler<K extends keyof Samplers>(name: K, open: Uniform, bits: Uniform): Samplers[K] {
+  if (name === 'normal') return stdlib('ziggurat')(open, bits) as Samplers[K];
+  return stdlib(name as Exclude<K, 'normal'>)({ prng: open }) as Samplers[K];
 }
 
 /**

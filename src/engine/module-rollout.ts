@@ -1,7 +1,7 @@
 import type { ActingPolicy, ModuleEnvironment } from '../definitions/built.js';
 import type { StepResult } from '../plugin.js';
 import { PluginError } from '../errors.js';
-import { checkedAction } from './checked-action.js';
+import { checkedAction, checkedDirectAction } from './checked-action.js';
 import { pluginRngs } from './episode-rng.js';
 import { STREAM, seedStream } from './streams.js';
 import { NO_FINAL_STATE, type EpisodeBlock } from './episode-block.js';
@@ -22,6 +22,7 @@ export function rolloutModule(
   const { env: envRng, policy: policyRng } = pluginRngs();
   const { env, discount, horizon } = built;
   const actionCount = built.actionNames.length;
+  const direct = acting.direct;
   const out: StepResult = { state: undefined, reward: 0, done: false };
   const { returns, lengths, finals, first, count } = block;
   finals.fill(NO_FINAL_STATE);
@@ -46,7 +47,9 @@ export function rolloutModule(
     let t = 0;
     while (t < horizon) {
       clock[1] = 2 * t;
-      const a = checkedAction(acting, state, policyRng, actionCount, episode, t);
+      const a = direct
+        ? checkedDirectAction(direct.policy, direct.index, state, policyRng, actionCount, episode, t)
+        : checkedAction(acting, state, policyRng, actionCount, episode, t);
       clock[1] = 2 * t + 1;
       let result: StepResult;
       try {
