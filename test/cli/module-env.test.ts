@@ -60,6 +60,36 @@ describe('module environments', () => {
     expect(text.stderr).toContain('returned a bad reward at episode 0, step 2: "1" (a string) is not a finite number');
   });
 
+  it('a module policy on a module environment may answer by index or by name; anything else names the episode and step', () => {
+    // Reward 1 for "go", 0 for "stay", discount 1/2, four steps: always going returns
+    // 1 + 1/2 + 1/4 + 1/8 = 1.875 (a geometric sum, worked by hand).
+    const dir = tempFiles({
+      'env.json': { kind: 'module', path: './lane.js', options: {} },
+      'lane.js': `export default () => ({
+        actions: ['stay', 'go'], discount: 0.5, horizon: 4,
+        reset: () => 0,
+        step(state, action, rng, out) { out.state = state + 1; out.reward = action; out.done = false; return out; },
+      });`,
+      'by-name.json': { kind: 'module', path: './by-name.js', options: {} },
+      'by-name.js': `export default () => ({ act: () => 'go' });`,
+      'by-index.json': { kind: 'module', path: './by-index.js', options: {} },
+      'by-index.js': `export default () => ({ act: (state, rng) => (rng.uniform() < 2 ? 1 : 0) });`,
+      'off.json': { kind: 'module', path: './off.js', options: {} },
+      'off.js': `export default () => ({ act: (state) => (state === 1 ? 2 : 1) });`,
+    });
+    for (const policy of ['by-name.json', 'by-index.json']) {
+      for (const workers of ['1', '2']) {
+        const out = reckon(['estimate', '--env', 'env.json', '--policy', policy, '--episodes', '200', '--seed', '3', '--workers', workers, '--no-store', '--json'], { cwd: dir });
+        expect(out.code).toBe(0);
+        expect(JSON.parse(out.stdout).mean).toBe(1.875);
+      }
+    }
+    const off = reckon(['estimate', '--env', 'env.json', '--policy', 'off.json', '--episodes', '10', '--seed', '1', '--no-store'], { cwd: dir });
+    expect(off.code).toBe(1);
+    expect(off.stderr).toMatch(/episode 0, step 1/);
+    expect(off.stderr).toContain('act returned 2, which is not an action (an index below 2 or one of stay, go)');
+  });
+
   it('hoeffding without any known bounds says to give --bounds (exit 2)', () => {
     const dir = tempFiles({
       'env.json': { kind: 'module', path: './walk.js', options: {} },
