@@ -99,14 +99,15 @@ const RUNNERS = {
   /**
    * The engine on all workers, its blocks either dropped (`keep` false: memory should not
    * grow with the episodes at all) or their returns kept in one preallocated array, as an
-   * estimate keeps them for re-analysis (8 bytes an episode).
+   * estimate keeps them for re-analysis (8 bytes an episode). Both copy in onBlock, so they
+   * let the pool reuse block memory (`reuseBlocks`), as runEstimate does.
    */
   async episodes({ env, policy, seed, episodes, workers, keep }) {
     const { runEpisodes } = await import('../../dist/engine/pool.js');
     const spec = await specOf(env, policy, seed);
     const kept = keep ? new Float64Array(episodes) : null;
     const { result, seconds, cpuSeconds } = await timed(() =>
-      runEpisodes(spec, { first: 0, count: episodes, workers, onBlock: (b) => kept?.set(b.returns, b.first) }),
+      runEpisodes(spec, { first: 0, count: episodes, workers, reuseBlocks: true, onBlock: (b) => kept?.set(b.returns, b.first) }),
     );
     return { seconds, cpuSeconds, steps: result.steps, episodes: result.episodes };
   },

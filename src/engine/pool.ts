@@ -3,7 +3,7 @@ import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 import { InputError } from '../errors.js';
-import { newBlock, type EpisodeBlock } from './episode-block.js';
+import { BlockMemory, blockMemory, newBlock, type EpisodeBlock } from './episode-block.js';
 import { prepareRollout, type PreparedRollout } from './prepare.js';
 import { rolloutTables } from './finite-rollout.js';
 import type { TableWorkerData } from './table-worker.js';
@@ -25,6 +25,13 @@ export interface RunOptions {
   readonly workers: number;
   /** Called with every block, in episode order, exactly once each. */
   readonly onBlock: (block: EpisodeBlock, steps: number) => void;
+  /**
+   * Set when `onBlock` copies what it keeps and reads nothing of the block after it returns:
+   * the block's memory is then filled again by a later block (on any thread), so a long run
+   * allocates nothing per block. Transferred block memory is collected late, and would
+   * otherwise add its 16 bytes an episode to the run's peak memory.
+   */
+  readonly reuseBlocks?: boolean;
   /** Stops issuing new blocks; blocks already running still finish and are delivered in order. */
   readonly signal?: AbortSignal;
   /** Wall-clock seconds a block should take (sets its size; never affects results). */
@@ -135,9 +142,10 @@ async function runInline(prepared: PreparedRollout, options: RunOptions): Promis
   const end = options.first + options.count;
   let next = options.first;
   let steps = 0;
+  const memory = options.reuseBlocks ? new BlockMemory() : null;
   while (next < end && !options.signal?.aborted) {
     const count = Math.min(sizer.size, end - next);
-    const block = newBlock(next, count);
+    const block = memory ? memory.take(next, count) : newBlock(next, count);
     const t0 = performance.now();
     const blockSteps = prepared.runBlock(block);
     const t1 = performance.now();
@@ -146,6 +154,7 @@ async function runInline(prepared: PreparedRollout, options: RunOptions): Promis
     steps += blockSteps;
     next += count;
     options.onBlock(block, blockSteps);
+    memory?.giveBack(blockMemory(block));
     await yieldToEventLoop();
     previousEnd = sharedClock();
   }
@@ -248,6 +257,8 @@ async function runThreaded(
   const blockSeconds = options.blockSeconds ?? 0.1;
   const entry = workerEntry(spec, prepared);
   const pending = new Map<number, { block: EpisodeBlock; steps: number }>();
+  /** Memory of blocks already delivered, for this thread's next blocks and sent back to workers. */
+  const memory = options.reuseBlocks ? new BlockMemory() : null;
   const threads: Worker[] = [];
   let next = options.first;
   let delivered = options.first;
@@ -284,6 +295,7 @@ async function runThreaded(
         delivered += item.block.count;
         steps += item.steps;
         options.onBlock(item.block, item.steps);
+        memory?.giveBack(blockMemory(item.block));
       }
     } catch (e) {
       fail(e as Error);
@@ -319,7 +331,9 @@ async function runThreaded(
       while (inHand < wanted) {
         const range = take(sizer.size);
         if (!range) return;
-        worker.postMessage({ type: 'run', first: range.first, count: range.count, stepTimeout });
+        const spare = memory?.spare() ?? null;
+        if (spare) worker.postMessage({ type: 'run', first: range.first, count: range.count, stepTimeout, spare }, [spare.returns, spare.lengths, spare.finals]);
+        else worker.postMessage({ type: 'run', first: range.first, count: range.count, stepTimeout });
         inFlight++;
         inHand++;
       }
@@ -393,7 +407,7 @@ async function runThreaded(
       if (failure) throw failure;
       const range = callerRuns && prepared ? take(sizer.size) : null;
       if (range) {
-        const block = newBlock(range.first, range.count);
+        const block = memory ? memory.take(range.first, range.count) : newBlock(range.first, range.count);
         const t0 = performance.now();
         const blockSteps = prepared!.runBlock(block);
         const t1 = performance.now();

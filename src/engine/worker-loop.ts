@@ -1,5 +1,5 @@
 import type { MessagePort } from 'node:worker_threads';
-import { newBlock, type EpisodeBlock } from './episode-block.js';
+import { BlockMemory, type EpisodeBlock } from './episode-block.js';
 import { DEFAULT_STEP_TIMEOUT_SECONDS } from './step-watch.js';
 import { threadTimes } from './thread-times.js';
 import type { FromWorker, ToWorker } from './worker-messages.js';
@@ -24,9 +24,10 @@ function wallClock(): number {
 export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock, stepTimeout: number) => number | Promise<number>): void {
   const send = (message: FromWorker, transfer: ArrayBuffer[] = []) => port.postMessage(message, transfer);
   let lastEnd = wallClock();
+  const memory = new BlockMemory();
   const run = async (message: Extract<ToWorker, { type: 'run' }>) => {
     try {
-      const block = newBlock(message.first, message.count);
+      const block = memory.take(message.first, message.count);
       const start = wallClock();
       const steps = await runBlock(block, message.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS);
       const end = wallClock();
@@ -60,6 +61,7 @@ export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock, s
       port.close();
       return;
     }
+    if (message.spare) memory.giveBack(message.spare);
     queue = queue.then(() => run(message));
   });
   lastEnd = wallClock();

@@ -1,6 +1,9 @@
 /** Messages between the pool and its worker threads. */
+import type { SpareBlock } from './episode-block.js';
+
 /** `stepTimeout`: seconds a process environment's program may stay silent (the pool's --step-timeout). */
-export type ToWorker = { type: 'run'; first: number; count: number; stepTimeout?: number } | { type: 'stop' };
+/** `spare`: the memory of a block already read, transferred back for the worker to fill again. */
+export type ToWorker = { type: 'run'; first: number; count: number; stepTimeout?: number; spare?: SpareBlock } | { type: 'stop' };
 
 /**
  * What a worker thread says. The timing fields feed the pool's per-thread timings

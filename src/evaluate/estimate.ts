@@ -215,6 +215,8 @@ async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null
       workers: request.workers,
       stepTimeout: request.stepTimeout,
       signal,
+      // Every block is copied into the buffer (and the store, when stored) before onBlock returns.
+      reuseBlocks: true,
       onBlock: (block) => {
         if (reached) return;
         const keep = offer(block.returns, block.lengths, block.finals);

@@ -38,6 +38,7 @@ export async function runPilot(spec: RolloutSpec, options: PilotOptions): Promis
     count: options.episodes ?? options.maxEpisodes,
     workers: options.workers,
     signal: stop.signal,
+    reuseBlocks: true, // onBlock copies the returns
     onBlock: (block) => {
       buffer.append(block.returns, block.lengths);
       const seconds = (performance.now() - started) / 1000;
