@@ -4,42 +4,18 @@
  * declaration is checked. Only threads that run episodes keep the program running
  * (keepProcessConnections); elsewhere it is asked and ended.
  */
-import { existsSync } from 'node:fs';
-import path from 'node:path';
 import { InputError } from '../errors.js';
 import type { Environment } from '../plugin.js';
 import type { DefinitionSource, ModuleEnvironment } from './built.js';
 import { checkedCodeEnvironment } from './module-environment.js';
 import { PROTOCOL_VERSION, ProcessConnection, ProcessFaultError } from './process-connection.js';
 import type { ProcessEnvironmentDefinition } from './process-schema.js';
+import { keepsProcessConnections, programLabel, resolveCommand, takeStartedProgram } from './process-start.js';
 
 /** Seconds a program may take to start and answer `open` (Python with numpy takes well under one). */
 const OPEN_TIMEOUT_SECONDS = 60;
 
-let keepConnections = false;
-
-/** Called by worker threads that run episodes: process environments built here stay running. */
-export function keepProcessConnections(): void {
-  keepConnections = true;
-}
-
-/** Arguments starting with ./ or ../ are files relative to the definition's folder: resolved and checked. */
-export function resolveCommand(command: readonly string[], source: DefinitionSource): string[] {
-  return command.map((arg, i) => {
-    if (!arg.startsWith('./') && !arg.startsWith('../')) return arg;
-    const absolute = path.resolve(source.baseDir, arg);
-    if (!existsSync(absolute)) {
-      throw new InputError(source.label, `command[${i}]: "${arg}" not found (looked for ${absolute})`);
-    }
-    return absolute;
-  });
-}
-
-/** The program's short name: its script when one is named, else the program. */
-export function programLabel(command: readonly string[]): string {
-  const script = command.slice(1).find((arg) => /\.(py|pyw)$/.test(arg));
-  return path.basename(script ?? command[0]);
-}
+export { keepProcessConnections, programLabel, resolveCommand } from './process-start.js';
 
 interface OpenAnswer {
   reckon?: unknown;
@@ -55,7 +31,9 @@ export async function buildProcessEnvironment(def: ProcessEnvironmentDefinition,
   const command = resolveCommand(def.command, source);
   const label = programLabel(def.command);
   const where = `environment from ${label}`;
-  const connection = new ProcessConnection(command, source.baseDir, label);
+  // A worker started the program already, while it loaded this module (process-start.ts).
+  const connection = takeStartedProgram(command, source.baseDir) ?? new ProcessConnection(command, source.baseDir, label);
+  const keepConnections = keepsProcessConnections();
   let answer: OpenAnswer;
   try {
     connection.send(JSON.stringify({ reckon: PROTOCOL_VERSION, op: 'open', options: def.options }));

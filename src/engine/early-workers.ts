@@ -1,5 +1,5 @@
 import { Worker } from 'node:worker_threads';
-import { newClockBuffer } from './plugin-clock.js';
+import { killClockProgram, newClockBuffer } from './plugin-clock.js';
 import type { RolloutSpec } from './spec.js';
 import type { FromWorker } from './worker-messages.js';
 import type { CodeWorkerData } from './worker.js';
@@ -25,14 +25,27 @@ export interface StartedWorker {
  */
 export class EarlyWorkers {
   private readonly waiting: StartedWorker[] = [];
+  private readonly factsAnswer: Promise<FactsAnswer> | null = null;
 
-  constructor(url: string, spec: RolloutSpec, count: number) {
+  /** With `facts`, the first thread also reports the environment's facts (see {@link facts}). */
+  constructor(url: string, spec: RolloutSpec, count: number, options: { facts?: boolean } = {}) {
     for (let i = 0; i < count; i++) {
       const clock = newClockBuffer();
       const createdAt = performance.timeOrigin + performance.now();
-      const worker = new Worker(url, { workerData: { spec, clock } satisfies CodeWorkerData });
+      const facts = options.facts === true && i === 0;
+      const worker = new Worker(url, { workerData: { spec, clock, facts } satisfies CodeWorkerData });
       this.wait(worker, clock, createdAt, []);
+      if (facts) this.factsAnswer = answerOf(worker);
     }
+  }
+
+  /**
+   * What the first thread said once it had built the spec: its facts, or the error that
+   * stopped it. Null unless asked for at construction. While it is awaited the thread keeps
+   * the process alive.
+   */
+  facts(): Promise<FactsAnswer> | null {
+    return this.factsAnswer;
   }
 
   /** One waiting thread, or null when none is left. */
@@ -50,9 +63,12 @@ export class EarlyWorkers {
     this.wait(worker, clock, now, [{ type: 'ready', at: now, cpuSeconds: null }]);
   }
 
-  /** Ends the threads nobody took. */
+  /** Ends the threads nobody took, and the programs they started. */
   close(): void {
-    for (const started of this.waiting.splice(0)) void started.worker.terminate();
+    for (const started of this.waiting.splice(0)) {
+      void started.worker.terminate();
+      killClockProgram(started.clock);
+    }
   }
 
   private wait(worker: Worker, clock: SharedArrayBuffer, createdAt: number, said: FromWorker[]): void {
@@ -77,4 +93,28 @@ export class EarlyWorkers {
       },
     });
   }
+}
+
+/** The first thread's answer to "build the spec and say what it is". */
+export type FactsAnswer = Extract<FromWorker, { type: 'facts' } | { type: 'error' }>;
+
+function answerOf(worker: Worker): Promise<FactsAnswer> {
+  return new Promise<FactsAnswer>((resolve, reject) => {
+    worker.ref();
+    const settle = (done: () => void) => {
+      worker.off('message', onMessage);
+      worker.off('error', onError);
+      worker.off('exit', onExit);
+      worker.unref(); // the pool refs it again when it takes it
+      done();
+    };
+    const onMessage = (message: FromWorker) => {
+      if (message.type === 'facts' || message.type === 'error') settle(() => resolve(message));
+    };
+    const onError = (error: Error) => settle(() => reject(error));
+    const onExit = (code: number) => settle(() => reject(new Error(`the thread building the environment ended (code ${code}) before it was ready`)));
+    worker.on('message', onMessage);
+    worker.on('error', onError);
+    worker.on('exit', onExit);
+  });
 }

@@ -44,3 +44,15 @@ export function clockPosition(episode: number, position: number): { plugin: stri
   const step = Math.floor(position / 2);
   return { plugin: position % 2 === 0 ? 'the policy' : 'the environment (step)', episode, step };
 }
+
+/** Ends the program a worker's clock names (a process environment's), if any: one that hung would outlive its thread. */
+export function killClockProgram(buffer: SharedArrayBuffer): void {
+  const pid = new Float64Array(buffer)[CLOCK_PID];
+  if (pid > 0) {
+    try {
+      process.kill(pid, 'SIGKILL');
+    } catch {
+      // already gone
+    }
+  }
+}

@@ -9,7 +9,7 @@ import { rolloutTables } from './finite-rollout.js';
 import type { TableWorkerData } from './table-worker.js';
 import type { RolloutSpec } from './spec.js';
 import type { FromWorker } from './worker-messages.js';
-import { CLOCK_PID, newClockBuffer } from './plugin-clock.js';
+import { killClockProgram, newClockBuffer } from './plugin-clock.js';
 import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-watch.js';
 import type { CodeWorkerData } from './worker.js';
 import { EarlyWorkers } from './early-workers.js';
@@ -75,7 +75,7 @@ export function defaultWorkers(): number {
  * computes) is the same whatever the number of workers or the block sizes.
  */
 export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promise<RunOutcome> {
-  const workers = Math.max(1, Math.min(options.workers, Math.ceil(options.count / 64) || 1));
+  const workers = threadsFor(options.workers, options.count);
   // Plug-in code runs on worker threads only, its loading and factory included: a call that
   // hangs must not stop this thread from answering signals and from noticing the hang
   // (step-watch.ts).
@@ -90,9 +90,19 @@ export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promi
  * For a code environment run on more than one worker: its worker threads, started now, so
  * they load while the caller prepares the spec (early-workers.ts). Null for any other spec.
  */
-export function startCodeWorkers(spec: RolloutSpec, workers: number): EarlyWorkers | null {
-  if (workers < 2 || !runsPluginCode(spec)) return null;
-  return new EarlyWorkers(workerUrl('worker.js'), spec, workers);
+export function startCodeWorkers(spec: RolloutSpec, workers: number, episodes?: number): EarlyWorkers | null {
+  if (!runsPluginCode(spec)) return null;
+  const threads = episodes === undefined ? workers : threadsFor(workers, episodes);
+  // A process environment's first thread also describes it (EarlyWorkers.facts), from the
+  // program it runs the episodes with: no program is started only to say what it is.
+  if (isProcessSpec(spec)) return new EarlyWorkers(workerUrl('worker.js'), spec, Math.max(1, threads), { facts: true });
+  if (threads < 2) return null;
+  return new EarlyWorkers(workerUrl('worker.js'), spec, threads);
+}
+
+/** Threads a run of `count` episodes uses: no more than one per 64 episodes. */
+function threadsFor(workers: number, count: number): number {
+  return Math.max(1, Math.min(workers, Math.ceil(count / 64) || 1));
 }
 
 /**
@@ -192,16 +202,7 @@ const PROCESS_WATCH_GRACE_SECONDS = 3;
 
 /** Ends the programs of process environments whose threads were terminated (one that hung would live on). */
 function killPrograms(clocks: readonly SharedArrayBuffer[]): void {
-  for (const buffer of clocks) {
-    const pid = new Float64Array(buffer)[CLOCK_PID];
-    if (pid > 0) {
-      try {
-        process.kill(pid, 'SIGKILL');
-      } catch {
-        // already gone
-      }
-    }
-  }
+  for (const buffer of clocks) killClockProgram(buffer);
 }
 
 /**
@@ -354,9 +355,9 @@ async function runThreaded(
         accept({ first: message.first, count: message.count, returns: message.returns, lengths: message.lengths, finals: message.finals }, message.steps);
         issue();
         wake?.();
-      } else {
+      } else if (message.type === 'error') {
         fail(rebuildError(message));
-      }
+      } // 'facts': already read by whoever asked for them (EarlyWorkers.facts)
     };
     const onError = (e: Error) => fail(e);
     if (started) started.adopt(onMessage, onError);

@@ -1,3 +1,5 @@
+import type { EnvironmentFacts } from '../evaluate/environment-facts.js';
+
 /** Messages between the pool and its worker threads. */
 import type { SpareBlock } from './episode-block.js';
 
@@ -29,4 +31,6 @@ export type FromWorker =
       cpuSeconds?: number | null;
       queuedSeconds?: number | null;
     }
-  | { type: 'error'; name: string; message: string; where?: string; detail?: string };
+  | { type: 'error'; name: string; message: string; where?: string; detail?: string }
+  /** The environment's facts, from a worker asked for them (CodeWorkerData.facts), before 'ready'. */
+  | { type: 'facts'; facts: EnvironmentFacts };

@@ -1,11 +1,14 @@
 /**
  * Worker-thread entry: prepares the spec it is given, then runs blocks of episodes on
- * request and sends the results back (buffers transferred, not copied).
+ * request and sends the results back (buffers transferred, not copied). A process
+ * environment's program is started before anything heavy is loaded, so that Python starts
+ * while this thread loads the definitions layer; the first worker of a run may also be asked
+ * for the environment's facts, which it learns from that program (no program of its own is
+ * started just to describe the environment).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { keepProcessConnections } from '../definitions/process-environment.js';
-import { shareClock } from './plugin-clock.js';
-import { prepareRollout } from './prepare.js';
+import { keepProcessConnections, startProgramEarly } from '../definitions/process-start.js';
+import { CLOCK_PID, pluginClock, shareClock } from './plugin-clock.js';
 import type { RolloutSpec } from './spec.js';
 import { describeError, serveBlocks } from './worker-loop.js';
 
@@ -13,6 +16,8 @@ import { describeError, serveBlocks } from './worker-loop.js';
 export interface CodeWorkerData {
   readonly spec: RolloutSpec;
   readonly clock: SharedArrayBuffer;
+  /** Post the environment's facts ({ type: 'facts' }) once prepared, before 'ready'. */
+  readonly facts?: boolean;
 }
 
 const port = parentPort;
@@ -20,8 +25,17 @@ if (!port) throw new Error('worker.js must run as a worker thread');
 const data = workerData as CodeWorkerData;
 shareClock(data.clock);
 keepProcessConnections(); // this thread runs the episodes: its process environment's program stays up
+const program = startProgramEarly(data.spec.env.json, data.spec.env.source);
+if (program) pluginClock()[CLOCK_PID] = program.pid; // so a thread ended before it is ready still ends its program
 
-prepareRollout(data.spec).then(
-  (prepared) => serveBlocks(port, prepared.runBlockAsync ?? ((block) => prepared.runBlock(block))),
-  (e) => port.postMessage(describeError(e)),
-);
+try {
+  const { prepareRollout } = await import('./prepare.js');
+  const prepared = await prepareRollout(data.spec);
+  if (data.facts) {
+    const { environmentFacts } = await import('../evaluate/environment-facts.js');
+    port.postMessage({ type: 'facts', facts: environmentFacts(prepared.env, prepared.policy, prepared.startIndex) });
+  }
+  serveBlocks(port, prepared.runBlockAsync ?? ((block) => prepared.runBlock(block)));
+} catch (e) {
+  port.postMessage(describeError(e));
+}

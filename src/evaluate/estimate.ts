@@ -121,7 +121,7 @@ export interface EstimateResult {
  */
 export async function runEstimate(request: EstimateRequest): Promise<EstimateResult> {
   // A code environment's worker threads load while this thread prepares the spec.
-  const early = startCodeWorkers(request.spec, request.workers);
+  const early = startCodeWorkers(request.spec, request.workers, Math.max(0, request.episodes - (request.prior?.returns.length ?? 0)));
   try {
     return await estimateWith(request, early);
   } finally {
@@ -133,7 +133,7 @@ async function estimateWith(request: EstimateRequest, early: EarlyWorkers | null
   const { spec } = request;
   let ready: ReadyRun;
   try {
-    ready = await prepareForRun(spec, request.signal);
+    ready = await prepareForRun(spec, request.signal, early);
   } catch (e) {
     if (e instanceof StoppedEarly) throw new StoppedEarly(request.prior?.returns.length ?? 0, request.episodes, true);
     throw e;

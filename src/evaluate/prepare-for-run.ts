@@ -1,6 +1,7 @@
 import { Worker } from 'node:worker_threads';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
+import type { EarlyWorkers, FactsAnswer } from '../engine/early-workers.js';
 import { rebuildError } from '../engine/pool.js';
 import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
 import { runsPluginCode } from '../engine/runs-plugin-code.js';
@@ -20,14 +21,42 @@ export interface ReadyRun {
  * here, once, and handed to the pool. One that loads a module is built on a worker thread
  * (facts-worker.ts), which this thread only waits for, so a module whose top level or
  * factory never returns can still be stopped: the signal ends the thread and the wait
- * throws StoppedEarly (`creating`). The pool's own threads build it again for the episodes.
+ * throws StoppedEarly (`creating`). The pool's own threads build it again for the episodes,
+ * except where the run's first thread was started early to report the facts itself
+ * (`early`, a process environment): then nothing is built twice.
  */
-export async function prepareForRun(spec: RolloutSpec, signal?: AbortSignal): Promise<ReadyRun> {
+export async function prepareForRun(spec: RolloutSpec, signal?: AbortSignal, early?: EarlyWorkers | null): Promise<ReadyRun> {
   if (!runsPluginCode(spec)) {
     const prepared = await prepareRollout(spec);
     return { prepared, facts: environmentFacts(prepared.env, prepared.policy, prepared.startIndex) };
   }
+  const answer = early?.facts();
+  if (answer) return { prepared: null, facts: await factsFromRunThread(answer, signal) };
   return { prepared: null, facts: await factsOffThread(spec, signal) };
+}
+
+/**
+ * The facts the run's first worker thread reports once it has built the spec (a process
+ * environment's, learnt from the program that then runs its episodes). The thread is the
+ * caller's to end (EarlyWorkers.close), on a stop too.
+ */
+function factsFromRunThread(answer: Promise<FactsAnswer>, signal?: AbortSignal): Promise<EnvironmentFacts> {
+  if (signal?.aborted) return Promise.reject(new StoppedEarly(0, 0, true));
+  return new Promise<EnvironmentFacts>((resolve, reject) => {
+    const onAbort = () => reject(new StoppedEarly(0, 0, true));
+    signal?.addEventListener('abort', onAbort, { once: true });
+    answer.then(
+      (message) => {
+        signal?.removeEventListener('abort', onAbort);
+        if (message.type === 'facts') resolve(message.facts);
+        else reject(rebuildError(message));
+      },
+      (e) => {
+        signal?.removeEventListener('abort', onAbort);
+        reject(e);
+      },
+    );
+  });
 }
 
 function factsOffThread(spec: RolloutSpec, signal?: AbortSignal): Promise<EnvironmentFacts> {
