@@ -33,16 +33,21 @@ Returns on the episode path (a policy of this file acting). The discounted retur
 step order, ``g += w * r; w *= discount`` starting from ``g = 0.0, w = 1.0``, in IEEE doubles:
 the order reckon's own rollout uses, so the same rewards give the same bits.
 
-Protocol, version 1: one JSON object per line, each way, on stdin and stdout. While serving,
+Protocol, version 2: one JSON object per line, each way, on stdin and stdout. While serving,
 ``sys.stdout`` and file descriptor 1 point at stderr, so a stray ``print`` is shown by reckon
-(prefixed) instead of breaking the protocol.
+(prefixed) instead of breaking the protocol. reckon may send a message before the answer to
+the previous one arrives; they are answered one by one, in order.
 
-- ``{"reckon": 1, "op": "open", "options": {...}}`` -> ``{"reckon": 1, "ok": "open",
+- ``{"reckon": 2, "op": "open", "options": {...}}`` -> ``{"reckon": 2, "ok": "open",
   "actions": [...], "discount": d, "horizon": h, "reward_bounds": [lo, hi], "policies": [...]}``
 - ``{"op": "policy", "name": N, "options": {...}}`` -> ``{"ok": "policy"}``
-- ``{"op": "step", "cmds": [[slot, "r", seed], [slot, action], ...]}`` -> ``{"r": [...]}``:
-  one environment per slot; a reset answers the state name, a step ``[reward, end, name]`` with
-  end 0 (going on), 1 (terminated) or 2 (truncated). Commands run in order.
+- ``{"op": "step", "reset": [slot, seed, slot, seed, ...], "act": [slot, action, ...]}`` ->
+  ``{"n": [...], "w": [...], "e": [...], "s": [...]}``: one environment per slot, flat pairs
+  (fewer brackets to write and parse than a list per command). The resets run first, in
+  order, each answering its state name in ``n``; then the steps, in order, each answering
+  its reward in ``w``, its end in ``e`` (0 going on, 1 terminated, 2 truncated) and its
+  state name in ``s`` (null once ended). Commands are indexed in that order (resets first)
+  where a failure names one.
 - ``{"op": "episodes", "policy": N, "horizon": H, "items": [[env_seed, policy_seed], ...]}`` -> one or more
   ``{"returns": [...], "lengths": [...], "more": bool}``, at least every 50 ms while working.
 - any failure -> ``{"error": {"index", "step", "call", "what", "message", "traceback"}}``;
@@ -58,7 +63,7 @@ import sys
 import time
 import traceback
 
-PROTOCOL = 1
+PROTOCOL = 2
 FLUSH_SECONDS = 0.05
 TRACEBACK_LINES = 8
 
@@ -135,6 +140,8 @@ class _Bridge:
         self.policies = {}
         self.options = {}
         self.envs = {}
+        # Per slot of the step path: (env, its bound step, its state_name or None), looked up once.
+        self.steppers = {}
         self.pos = [0, -1]
         self.actions = []
         self.discount = 1.0
@@ -253,24 +260,59 @@ class _Bridge:
 
     # -- the two ways to act -------------------------------------------------------------
     def step(self, message):
-        out = []
+        """One step of each episode running side by side: resets first, then steps, as sent."""
         pos = self.pos
         envs = self.envs
-        for k, cmd in enumerate(message["cmds"]):
+        resets = message.get("reset") or ()
+        names = []
+        k = 0
+        for i in range(0, len(resets), 2):
             pos[0] = k
-            slot = cmd[0]
-            if len(cmd) == 3:
-                env = envs.get(slot)
-                if env is None:
-                    env = envs[slot] = self._new_env()
-                out.append(self._name(env, self._reset(env, cmd[2])))
-            else:
-                env = envs[slot]
-                observation, reward, terminated, truncated, _ = self._step(env, cmd[1])
-                r = self._reward(reward)
-                end = 1 if terminated else 2 if truncated else 0
-                out.append([r, end, None if end else self._name(env, observation)])
-        return {"r": out}
+            slot = resets[i]
+            env = envs.get(slot)
+            if env is None:
+                env = envs[slot] = self._new_env()
+            names.append(self._name(env, self._reset(env, resets[i + 1])))
+            k += 1
+        acts = message.get("act") or ()
+        rewards = []
+        ends = []
+        states = []
+        low = self.low
+        high = self.high
+        steppers = self.steppers
+        call = "step"
+        try:
+            for i in range(0, len(acts), 2):
+                pos[0] = k
+                slot = acts[i]
+                stepper = steppers.get(slot)
+                if stepper is None or stepper[0] is not envs[slot]:
+                    env = envs[slot]
+                    stepper = steppers[slot] = (env, env.step, getattr(env, "state_name", None))
+                call = "step"
+                result = stepper[1](acts[i + 1])
+                if not (isinstance(result, tuple) and len(result) == 5):
+                    raise _Failure("step", "returned %s; step(action) must return (observation, reward, terminated, truncated, info)" % _describe(result), "returned")
+                observation, reward, terminated, truncated, _ = result
+                rewards.append(reward if reward.__class__ is float and low <= reward <= high and reward - reward == 0.0 else self._reward(reward))
+                if terminated:
+                    ends.append(1)
+                    states.append(None)
+                elif truncated:
+                    ends.append(2)
+                    states.append(None)
+                else:
+                    ends.append(0)
+                    call = "state_name"
+                    namer = stepper[2]
+                    states.append(str(observation) if namer is None else str(namer(observation)))
+                k += 1
+        except _Failure:
+            raise
+        except Exception as error:
+            raise _threw(call, error)
+        return {"n": names, "w": rewards, "e": ends, "s": states}
 
     def episodes(self, message, send):
         policy = self.policies.get(message["policy"])

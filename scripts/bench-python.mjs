@@ -11,10 +11,14 @@
  *   own episode loop called directly in Python, with the very seeds reckon sends (the returns
  *   must agree).
  *
- * Run sizes are set from a pilot so each reckon run on one worker samples for about 6 s. Wall
- * time and CPU time (user + system of the whole process tree, from wait4) are both recorded,
- * because the machines this runs on are shared: a wall-clock ratio says what a user waits, a
- * CPU-time ratio what the bridge costs whatever else is running. Medians of the rounds.
+ * Run sizes are set from pilots of the loops alone: the step path for about BENCH_SECONDS (6)
+ * of Python alone; the episode path at two lengths, a short run (about 1.5 s of Python alone)
+ * and a run of realistic length (about BENCH_SECONDS), since a fixed start-up cost weighs on
+ * the first and hardly on the second. Wall time and CPU time (user + system of the whole
+ * process tree, from wait4) are both recorded, because the machines this runs on are shared:
+ * a wall-clock ratio says what a user waits, a CPU-time ratio what the bridge costs whatever
+ * else is running. Medians of the rounds. BENCH_BEFORE=DIR also times the episode path with
+ * another build of reckon (DIR/dist/cli/main.js), interleaved, for a before/after in one run.
  * Writes bench-results/bench-python.json and prints the README's table.
  */
 import { spawnSync } from 'node:child_process';
@@ -140,8 +144,8 @@ function timed(command) {
   return { wall: report.wall, cpu: report.cpu, out: JSON.parse(report.stdout) };
 }
 
-const reckon = (policy, episodes, workers) =>
-  timed([process.execPath, CLI, 'estimate', '--env', 'aisle.json', '--policy', policy, '--episodes', String(episodes), '--seed', String(SEED), '--workers', String(workers), '--no-store', '--json']);
+const reckon = (policy, episodes, workers, cli = CLI) =>
+  timed([process.execPath, cli, 'estimate', '--env', 'aisle.json', '--policy', policy, '--episodes', String(episodes), '--seed', String(SEED), '--workers', String(workers), '--no-store', '--json']);
 
 function seedsFile(episodes) {
   const items = [];
@@ -158,15 +162,18 @@ const median = (xs) => {
 
 const loadBefore = loadavg();
 const started = performance.now();
-// Pilots: episodes that make one reckon worker sample for about TARGET_SECONDS.
-const pilotEpisodes = 2000;
-const stepPilot = reckon('uniform.json', pilotEpisodes, 1).out;
-const episodePilot = reckon('walker.json', pilotEpisodes, 1).out;
-const stepEpisodes = Math.max(pilotEpisodes, Math.round((pilotEpisodes * TARGET_SECONDS) / stepPilot.sampling_seconds / 1000) * 1000);
-const episodeEpisodes = Math.max(pilotEpisodes, Math.round((pilotEpisodes * TARGET_SECONDS) / episodePilot.sampling_seconds / 1000) * 1000);
-const items = seedsFile(episodeEpisodes);
-// Three times the episodes, for the per-episode (marginal) CPU cost apart from start-up.
-const longEpisodes = 3 * episodeEpisodes;
+const BEFORE = process.env.BENCH_BEFORE ? path.join(path.resolve(process.env.BENCH_BEFORE), 'dist/cli/main.js') : null;
+const SHORT_SECONDS = 1.5;
+// Pilots of the loops alone: episodes that make Python alone take about the target time.
+const pilotEpisodes = 3000;
+const episodePilot = timed(['python3', 'alone.py', 'episodes', String(pilotEpisodes), seedsFile(pilotEpisodes)]).out;
+const sized = (pilot, seconds) => Math.max(1000, Math.round((pilotEpisodes * seconds) / pilot.seconds / 1000) * 1000);
+// The step path through reckon is several times slower than Python alone: sized from a pilot through reckon.
+const stepReckonPilot = reckon('uniform.json', pilotEpisodes, 1).out;
+const stepEpisodes = Math.max(1000, Math.round((pilotEpisodes * TARGET_SECONDS) / stepReckonPilot.sampling_seconds / 1000) * 1000);
+const shortEpisodes = sized(episodePilot, SHORT_SECONDS);
+const longEpisodes = sized(episodePilot, TARGET_SECONDS);
+const shortItems = seedsFile(shortEpisodes);
 const longItems = seedsFile(longEpisodes);
 
 const rounds = [];
@@ -175,20 +182,42 @@ for (let r = 0; r < ROUNDS; r++) {
   round.stepAlone = timed(['python3', 'alone.py', 'steps', String(stepEpisodes)]);
   round.step1 = reckon('uniform.json', stepEpisodes, 1);
   round.step2 = reckon('uniform.json', stepEpisodes, 2);
-  round.episodeAlone = timed(['python3', 'alone.py', 'episodes', String(episodeEpisodes), items]);
-  round.episode1 = reckon('walker.json', episodeEpisodes, 1);
-  round.episode2 = reckon('walker.json', episodeEpisodes, 2);
+  round.shortAlone = timed(['python3', 'alone.py', 'episodes', String(shortEpisodes), shortItems]);
+  round.short1 = reckon('walker.json', shortEpisodes, 1);
+  if (BEFORE) round.shortBefore = reckon('walker.json', shortEpisodes, 1, BEFORE);
   round.longAlone = timed(['python3', 'alone.py', 'episodes', String(longEpisodes), longItems]);
   round.long1 = reckon('walker.json', longEpisodes, 1);
+  round.long2 = reckon('walker.json', longEpisodes, 2);
+  if (BEFORE) round.longBefore = reckon('walker.json', longEpisodes, 1, BEFORE);
   rounds.push(round);
   process.stderr.write(`round ${r + 1}/${ROUNDS} done\n`);
 }
 const loadAfter = loadavg();
 
 const m = (pick) => median(rounds.map(pick));
-const alone = rounds[0].episodeAlone.out;
-const viaReckon = rounds[0].episode1.out;
-const sameReturns = Math.abs(alone.returns_sum / alone.episodes - viaReckon.mean) <= 1e-12 * Math.max(1, Math.abs(viaReckon.mean));
+const sameReturns = (alone, viaReckon) => Math.abs(alone.returns_sum / alone.episodes - viaReckon.mean) <= 1e-12 * Math.max(1, Math.abs(viaReckon.mean));
+/** One episode-path length: the whole reckon command against the whole Python process. */
+const lengthFigures = (alone, one, before) => ({
+  alone_loop_seconds: m((r) => r[alone].out.seconds),
+  alone_wall: m((r) => r[alone].wall),
+  alone_cpu: m((r) => r[alone].cpu),
+  reckon_wall: m((r) => r[one].wall),
+  reckon_cpu: m((r) => r[one].cpu),
+  reckon_sampling_seconds: m((r) => r[one].out.sampling_seconds),
+  overhead_wall: m((r) => r[one].wall / r[alone].wall - 1),
+  overhead_cpu: m((r) => r[one].cpu / r[alone].cpu - 1),
+  overhead_sampling: m((r) => r[one].out.sampling_seconds / r[alone].out.seconds - 1),
+  same_returns: sameReturns(rounds[0][alone].out, rounds[0][one].out),
+  before: before
+    ? {
+        wall: m((r) => r[before].wall),
+        cpu: m((r) => r[before].cpu),
+        overhead_wall: m((r) => r[before].wall / r[alone].wall - 1),
+        overhead_cpu: m((r) => r[before].cpu / r[alone].cpu - 1),
+        same_mean: rounds[0][before].out.mean === rounds[0][one].out.mean,
+      }
+    : null,
+});
 const figures = {
   step: {
     episodes: stepEpisodes,
@@ -196,36 +225,32 @@ const figures = {
     alone_steps_per_second: m((r) => r.stepAlone.out.steps / r.stepAlone.out.seconds),
     reckon_1_steps_per_second: m((r) => r.step1.out.steps / r.step1.out.sampling_seconds),
     reckon_2_steps_per_second: m((r) => r.step2.out.steps / r.step2.out.sampling_seconds),
+    ratio_1: m((r) => r.step1.out.steps / r.step1.out.sampling_seconds / (r.stepAlone.out.steps / r.stepAlone.out.seconds)),
     sampling_seconds_1: m((r) => r.step1.out.sampling_seconds),
     speedup_2_workers: m((r) => r.step1.out.sampling_seconds / r.step2.out.sampling_seconds),
+    same_mean_1_2: rounds.every((r) => r.step1.out.mean === r.step2.out.mean),
     cpu_1: m((r) => r.step1.cpu),
     cpu_2: m((r) => r.step2.cpu),
     cpu_alone: m((r) => r.stepAlone.cpu),
   },
   episode: {
-    episodes: episodeEpisodes,
-    steps: viaReckon.steps,
-    alone_loop_seconds: m((r) => r.episodeAlone.out.seconds),
-    alone_wall: m((r) => r.episodeAlone.wall),
-    alone_cpu: m((r) => r.episodeAlone.cpu),
-    reckon_1_sampling_seconds: m((r) => r.episode1.out.sampling_seconds),
-    reckon_1_wall: m((r) => r.episode1.wall),
-    reckon_1_cpu: m((r) => r.episode1.cpu),
-    reckon_2_sampling_seconds: m((r) => r.episode2.out.sampling_seconds),
-    reckon_2_cpu: m((r) => r.episode2.cpu),
-    overhead_sampling: m((r) => r.episode1.out.sampling_seconds / r.episodeAlone.out.seconds - 1),
-    overhead_wall: m((r) => r.episode1.wall / r.episodeAlone.wall - 1),
-    overhead_cpu: m((r) => r.episode1.cpu / r.episodeAlone.cpu - 1),
-    speedup_2_workers: m((r) => r.episode1.out.sampling_seconds / r.episode2.out.sampling_seconds),
-    same_returns: sameReturns,
-    // CPU per extra episode (µs), from the runs of N and 3N episodes: start-up cancels out.
+    short_episodes: shortEpisodes,
     long_episodes: longEpisodes,
-    alone_cpu_per_episode_us: m((r) => ((r.longAlone.cpu - r.episodeAlone.cpu) / (longEpisodes - episodeEpisodes)) * 1e6),
-    reckon_cpu_per_episode_us: m((r) => ((r.long1.cpu - r.episode1.cpu) / (longEpisodes - episodeEpisodes)) * 1e6),
-    marginal_overhead_cpu: m((r) => (r.long1.cpu - r.episode1.cpu) / (r.longAlone.cpu - r.episodeAlone.cpu) - 1),
-    fixed_cpu_reckon: m((r) => r.episode1.cpu - (episodeEpisodes * (r.long1.cpu - r.episode1.cpu)) / (longEpisodes - episodeEpisodes)),
-    fixed_cpu_alone: m((r) => r.episodeAlone.cpu - (episodeEpisodes * (r.longAlone.cpu - r.episodeAlone.cpu)) / (longEpisodes - episodeEpisodes)),
-    long_overhead_cpu: m((r) => r.long1.cpu / r.longAlone.cpu - 1),
+    steps: rounds[0].long1.out.steps,
+    short: lengthFigures('shortAlone', 'short1', BEFORE ? 'shortBefore' : null),
+    long: lengthFigures('longAlone', 'long1', BEFORE ? 'longBefore' : null),
+    reckon_2_sampling_seconds: m((r) => r.long2.out.sampling_seconds),
+    reckon_2_wall: m((r) => r.long2.wall),
+    reckon_2_cpu: m((r) => r.long2.cpu),
+    speedup_2_workers: m((r) => r.long1.out.sampling_seconds / r.long2.out.sampling_seconds),
+    speedup_2_workers_wall: m((r) => r.long1.wall / r.long2.wall),
+    same_mean_1_2: rounds.every((r) => r.long1.out.mean === r.long2.out.mean),
+    // CPU per extra episode (µs), from the short and long runs: start-up cancels out.
+    alone_cpu_per_episode_us: m((r) => ((r.longAlone.cpu - r.shortAlone.cpu) / (longEpisodes - shortEpisodes)) * 1e6),
+    reckon_cpu_per_episode_us: m((r) => ((r.long1.cpu - r.short1.cpu) / (longEpisodes - shortEpisodes)) * 1e6),
+    marginal_overhead_cpu: m((r) => (r.long1.cpu - r.short1.cpu) / (r.longAlone.cpu - r.shortAlone.cpu) - 1),
+    fixed_cpu_reckon: m((r) => r.short1.cpu - (shortEpisodes * (r.long1.cpu - r.short1.cpu)) / (longEpisodes - shortEpisodes)),
+    fixed_cpu_alone: m((r) => r.shortAlone.cpu - (shortEpisodes * (r.longAlone.cpu - r.shortAlone.cpu)) / (longEpisodes - shortEpisodes)),
   },
 };
 
@@ -235,6 +260,7 @@ const result = {
   load_before: loadBefore,
   load_after: loadAfter,
   rounds: ROUNDS,
+  before: BEFORE,
   seconds: (performance.now() - started) / 1000,
   figures,
   raw: rounds,
@@ -243,16 +269,25 @@ mkdirSync(path.join(ROOT, 'bench-results'), { recursive: true });
 writeFileSync(path.join(ROOT, 'bench-results', 'bench-python.json'), JSON.stringify(result, null, 2));
 
 const f = (x, d = 2) => x.toFixed(d);
-const k = (x) => `${f(x / 1000, 1)} k`;
+const k = (x) => `${Math.round(x / 1000).toLocaleString('en')} k`;
 const pct = (x) => `${x >= 0 ? '+' : ''}${f(100 * x, 1)}%`;
+const n = (x) => x.toLocaleString('en');
 const s = figures.step;
 const e = figures.episode;
 console.log(`Python process bridge (${result.machine}); ${ROUNDS} rounds in fresh processes, medians; load average ${loadBefore.map((x) => f(x, 1)).join(' ')} before, ${loadAfter.map((x) => f(x, 1)).join(' ')} after; ${f(result.seconds, 0)} s in all.`);
 console.log('');
-console.log('| path | run | Python alone | reckon, 1 worker | reckon, 2 workers | 2 workers ÷ 1 (wall) | CPU s, 1 worker / 2 workers |');
-console.log('|---|---|---:|---:|---:|---:|---:|');
-console.log(`| step (reckon's uniform policy) | ${s.episodes.toLocaleString('en')} episodes, ${(s.steps / 1e6).toFixed(2)} M steps | ${k(s.alone_steps_per_second)} steps/s | ${k(s.reckon_1_steps_per_second)} steps/s (${f(s.reckon_1_steps_per_second / s.alone_steps_per_second)}× alone) | ${k(s.reckon_2_steps_per_second)} steps/s | ${f(s.speedup_2_workers)}× | ${f(s.cpu_1, 1)} / ${f(s.cpu_2, 1)} |`);
-console.log(`| episode (a policy of the script) | ${e.episodes.toLocaleString('en')} episodes, ${(e.steps / 1e6).toFixed(2)} M steps | ${f(e.alone_loop_seconds)} s loop (${f(e.alone_wall)} s, ${f(e.alone_cpu)} s CPU for the process) | ${f(e.reckon_1_sampling_seconds)} s sampling (${f(e.reckon_1_wall)} s, ${f(e.reckon_1_cpu)} s CPU for the command) | ${f(e.reckon_2_sampling_seconds)} s sampling | ${f(e.speedup_2_workers)}× | ${f(e.reckon_1_cpu, 1)} / ${f(e.reckon_2_cpu, 1)} |`);
+console.log('| path | measure | Python alone | through reckon | ratio |');
+console.log('|---|---|---:|---:|---:|');
+console.log(`| step (reckon's uniform policy acts) | steps/s, 1 worker (${n(s.episodes)} episodes, ${f(s.steps / 1e6)} M steps) | ${k(s.alone_steps_per_second)} | ${k(s.reckon_1_steps_per_second)} | ${f(s.ratio_1)}× |`);
+console.log(`| step | steps/s, 2 workers | | ${k(s.reckon_2_steps_per_second)} | ${f(s.speedup_2_workers)}× 1 worker${s.same_mean_1_2 ? '' : ' (MEANS DIFFER)'} |`);
+for (const [name, episodes, x] of [['short run', e.short_episodes, e.short], ['realistic run', e.long_episodes, e.long]]) {
+  console.log(`| episode (a policy of the script acts), ${name} | whole command, wall (${n(episodes)} episodes) | ${f(x.alone_wall)} s | ${f(x.reckon_wall)} s | ${pct(x.overhead_wall)} |`);
+  console.log(`| episode, ${name} | whole command, CPU | ${f(x.alone_cpu)} s | ${f(x.reckon_cpu)} s | ${pct(x.overhead_cpu)} |`);
+  if (x.before) console.log(`| episode, ${name} | the same before (BENCH_BEFORE), wall / CPU | | ${f(x.before.wall)} s / ${f(x.before.cpu)} s | ${pct(x.before.overhead_wall)} / ${pct(x.before.overhead_cpu)}${x.before.same_mean ? '' : ' (MEAN DIFFERS)'} |`);
+}
+console.log(`| episode | CPU per extra episode | ${f(e.alone_cpu_per_episode_us, 1)} µs | ${f(e.reckon_cpu_per_episode_us, 1)} µs | ${pct(e.marginal_overhead_cpu)} |`);
+console.log(`| episode | fixed CPU (start-up) | ${f(e.fixed_cpu_alone)} s | ${f(e.fixed_cpu_reckon)} s | |`);
+console.log(`| episode, realistic run | 2 workers ÷ 1 worker, sampling time / whole command (wall) | | ${f(e.long.reckon_sampling_seconds)} s → ${f(e.reckon_2_sampling_seconds)} s | ${f(e.speedup_2_workers)}× / ${f(e.speedup_2_workers_wall)}×${e.same_mean_1_2 ? '' : ' (MEANS DIFFER)'} |`);
+console.log(`| episode, realistic run | CPU, 1 worker / 2 workers | | ${f(e.long.reckon_cpu)} s / ${f(e.reckon_2_cpu)} s | |`);
 console.log('');
-console.log(`Episode path, reckon's time over the same loop alone: sampling ${pct(e.overhead_sampling)}, whole command against whole Python process ${pct(e.overhead_wall)} (wall), ${pct(e.overhead_cpu)} (CPU); same returns: ${e.same_returns ? 'yes' : 'NO'}.`);
-console.log(`Episode path, CPU per extra episode (runs of ${e.episodes.toLocaleString('en')} and ${e.long_episodes.toLocaleString('en')}): ${f(e.alone_cpu_per_episode_us, 1)} µs alone, ${f(e.reckon_cpu_per_episode_us, 1)} µs through reckon (${pct(e.marginal_overhead_cpu)}); fixed CPU ${f(e.fixed_cpu_alone)} s alone, ${f(e.fixed_cpu_reckon)} s through reckon; at ${e.long_episodes.toLocaleString('en')} episodes the whole command's CPU is ${pct(e.long_overhead_cpu)} over the Python process's.`);
+console.log(`Same returns as the loop alone: ${e.short.same_returns && e.long.same_returns ? 'yes' : 'NO'}.`);

@@ -10,7 +10,7 @@ import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 
 /** Version of the line protocol this reckon speaks; the helper answers with its own. */
-export const PROTOCOL_VERSION = 1;
+export const PROTOCOL_VERSION = 2;
 
 /** The folder of reckon_bridge.py, put on the program's PYTHONPATH. */
 export function bridgeFolder(): string {

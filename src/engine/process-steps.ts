@@ -10,18 +10,37 @@ import { episodeSeed } from './process-seeds.js';
 import { STREAM, seedStream } from './streams.js';
 
 /** Episodes a process environment runs side by side on the step path (one environment object each). */
-const WIDTH = 64;
+const WIDTH = 128;
+/**
+ * Messages in flight at once: the episodes side by side are split into this many lanes, and
+ * while the program steps one lane, reckon reads the other's results and chooses its next
+ * actions, so the two sides work at the same time instead of taking turns.
+ */
+const LANES = 2;
+/** Below this many episodes a block runs in one lane (a round trip per step costs more than the overlap saves). */
+const MIN_LANE_WIDTH = 8;
 
 const policyRngs: EpisodeRng[] = [];
+
+/** One lane's message in flight: the slots it commands, resets first. */
+interface Lane {
+  readonly from: number;
+  readonly to: number;
+  readonly slots: Int32Array;
+  /** Commands of the message in flight, and how many of them (the first) are resets. */
+  n: number;
+  resets: number;
+}
 
 /**
  * The step path: reckon's policy acts on a process environment. Up to {@link WIDTH} episodes
  * of the block run side by side, each in its own environment object of the program, and one
- * message carries one step of every one of them, so a round trip is paid per step of the
- * batch, not per step of an episode. Each episode keeps its own streams (the program resets
- * it with the 64-bit seed from its ENV stream, the policy draws from its POLICY stream), so
- * episode i's return does not depend on which episodes shared its batch. reckon sums the
- * discounted return itself, in step order, as the module rollout does.
+ * message carries one step of each episode of a lane, so a round trip is paid per step of a
+ * batch, not per step of an episode; {@link LANES} messages are in flight at once. Each
+ * episode keeps its own streams (the program resets it with the 64-bit seed from its ENV
+ * stream, the policy draws from its POLICY stream), so episode i's return does not depend on
+ * which episodes shared its batch or lane. reckon sums the discounted return itself, in step
+ * order, as the module rollout does.
  */
 export async function rolloutProcessSteps(
   built: ModuleEnvironment,
@@ -64,56 +83,81 @@ export async function rolloutProcessSteps(
   };
   for (let s = 0; s < width; s++) startNext(s);
 
-  const commandSlots = new Int32Array(width);
-  const commands: string[] = [];
+  const laneCount = width >= LANES * MIN_LANE_WIDTH ? LANES : 1;
+  const lanes: Lane[] = [];
+  for (let l = 0; l < laneCount; l++) {
+    const from = Math.floor((l * width) / laneCount);
+    const to = Math.floor(((l + 1) * width) / laneCount);
+    lanes.push({ from, to, slots: new Int32Array(to - from), n: 0, resets: 0 });
+  }
+  const resetParts: string[] = [];
+  const actParts: string[] = [];
+
+  /** The lane's next message (resets first, then steps), or null when its slots are all idle. */
+  const compose = (lane: Lane): string | null => {
+    resetParts.length = 0;
+    actParts.length = 0;
+    let n = 0;
+    for (let s = lane.from; s < lane.to; s++) {
+      const e = slotEpisode[s];
+      if (e < 0 || !fresh[s]) continue;
+      const episode = first + e;
+      seedStream(policyRngs[s], seed, STREAM.POLICY, episode);
+      resetParts.push(`${s},${episodeSeed(seed, STREAM.ENV, episode)}`);
+      lane.slots[n++] = s;
+    }
+    lane.resets = n;
+    for (let s = lane.from; s < lane.to; s++) {
+      const e = slotEpisode[s];
+      if (e < 0 || fresh[s]) continue;
+      const episode = first + e;
+      clock[0] = episode;
+      clock[1] = 2 * slotStep[s];
+      const a = checkedAction(acting, slotState[s], policyRngs[s], actionCount, episode, slotStep[s]);
+      actParts.push(`${s},${a}`);
+      lane.slots[n++] = s;
+    }
+    lane.n = n;
+    if (n === 0) return null;
+    return `{"op":"step","reset":[${resetParts.join(',')}],"act":[${actParts.join(',')}]}`;
+  };
+
+  /** Where command `index` of the lane's message ran: its episode and step. */
+  const placeIn = (lane: Lane) => (index: number) => {
+    const s = lane.slots[Math.max(0, Math.min(lane.n - 1, index))];
+    return { episode: first + slotEpisode[s], step: fresh[s] ? 0 : slotStep[s] };
+  };
+
   let finished = 0;
   let steps = 0;
-  while (finished < count) {
-    commands.length = 0;
-    let n = 0;
-    for (let s = 0; s < width; s++) {
-      const e = slotEpisode[s];
-      if (e < 0) continue;
-      const episode = first + e;
-      if (fresh[s]) {
-        seedStream(policyRngs[s], seed, STREAM.POLICY, episode);
-        commands.push(`[${s},"r",${episodeSeed(seed, STREAM.ENV, episode)}]`);
-      } else {
-        clock[0] = episode;
-        clock[1] = 2 * slotStep[s];
-        const a = checkedAction(acting, slotState[s], policyRngs[s], actionCount, episode, slotStep[s]);
-        commands.push(`[${s},${a}]`);
-      }
-      commandSlots[n++] = s;
+  const finish = (s: number): void => {
+    const e = slotEpisode[s];
+    returns[e] = slotReturn[s];
+    lengths[e] = slotStep[s];
+    finished++;
+    startNext(s);
+  };
+
+  /** Reads the answer to the lane's message into its slots. */
+  const apply = (lane: Lane, reply: Record<string, unknown>): void => {
+    const placeOf = placeIn(lane);
+    const names = reply.n as unknown[];
+    const rewards = reply.w as unknown[];
+    const ends = reply.e as unknown[];
+    const states = reply.s as unknown[];
+    const stepped = lane.n - lane.resets;
+    if (!Array.isArray(names) || !Array.isArray(rewards) || !Array.isArray(ends) || !Array.isArray(states) || names.length !== lane.resets || rewards.length !== stepped || ends.length !== stepped || states.length !== stepped) {
+      throw new PluginError(`the environment (${label})`, placeOf(0).episode, placeOf(0).step, new Error(`answered ${JSON.stringify(reply).slice(0, 80)} to a step of ${lane.n} episodes`), 'broke the protocol');
     }
-    const placeOf = (index: number) => {
-      const s = commandSlots[Math.max(0, Math.min(n - 1, index))];
-      return { episode: first + slotEpisode[s], step: fresh[s] ? 0 : slotStep[s] };
-    };
-    const s0 = commandSlots[0];
-    clock[0] = first + slotEpisode[s0];
-    clock[1] = fresh[s0] ? -1 : 2 * slotStep[s0] + 1;
-    let reply: Record<string, unknown>;
-    try {
-      connection.send(`{"op":"step","cmds":[${commands.join(',')}]}`);
-      reply = await connection.receive(stepTimeout);
-    } catch (e) {
-      throw processFailure(e, placeOf, placeOf(0), label, stepSpan(commandSlots, n, slotEpisode, first));
+    for (let k = 0; k < lane.resets; k++) {
+      const s = lane.slots[k];
+      fresh[s] = 0;
+      slotState[s] = names[k] as string;
+      if (horizon <= 0) finish(s);
     }
-    if (reply.error) throw helperFailure(reply.error as HelperError, placeOf, label);
-    const results = reply.r as unknown[];
-    if (!Array.isArray(results) || results.length !== n) {
-      throw new PluginError(`the environment (${label})`, placeOf(0).episode, placeOf(0).step, new Error(`answered ${JSON.stringify(reply).slice(0, 80)} to a step of ${n} episodes`), 'broke the protocol');
-    }
-    for (let k = 0; k < n; k++) {
-      const s = commandSlots[k];
-      if (fresh[s]) {
-        fresh[s] = 0;
-        slotState[s] = results[k] as string;
-        if (horizon <= 0) finish(s);
-        continue;
-      }
-      const [reward, end, name] = results[k] as [number, number, string | null];
+    for (let j = 0; j < stepped; j++) {
+      const s = lane.slots[lane.resets + j];
+      const reward = rewards[j] as number;
       const t = slotStep[s];
       if (typeof reward !== 'number' || !Number.isFinite(reward) || reward < lowReward || reward > highReward) {
         throw new PluginError(`the environment (step)`, first + slotEpisode[s], t, new Error(`${String(reward)} is not a finite number within the declared reward bounds`), 'returned a bad reward');
@@ -122,19 +166,38 @@ export async function rolloutProcessSteps(
       slotWeight[s] *= discount;
       slotStep[s] = t + 1;
       steps++;
-      if (end !== 0 || t + 1 >= horizon) finish(s);
-      else slotState[s] = name as string;
+      if (ends[j] !== 0 || t + 1 >= horizon) finish(s);
+      else slotState[s] = states[j] as string;
     }
-  }
-  return steps;
+  };
 
-  function finish(s: number): void {
-    const e = slotEpisode[s];
-    returns[e] = slotReturn[s];
-    lengths[e] = slotStep[s];
-    finished++;
-    startNext(s);
+  // Lanes in flight, oldest first: the program answers them in the order they were sent.
+  const inFlight: Lane[] = [];
+  const sendNext = (lane: Lane): void => {
+    const message = compose(lane);
+    if (message === null) return;
+    connection.send(message);
+    inFlight.push(lane);
+  };
+  for (const lane of lanes) sendNext(lane);
+  while (inFlight.length > 0) {
+    const lane = inFlight.shift()!;
+    const placeOf = placeIn(lane);
+    const s0 = lane.slots[0];
+    clock[0] = first + slotEpisode[s0];
+    clock[1] = fresh[s0] ? -1 : 2 * slotStep[s0] + 1;
+    let reply: Record<string, unknown>;
+    try {
+      reply = await connection.receive(stepTimeout);
+    } catch (e) {
+      throw processFailure(e, placeOf, placeOf(0), label, stepSpan(lane.slots, lane.n, slotEpisode, first));
+    }
+    if (reply.error) throw helperFailure(reply.error as HelperError, placeOf, label);
+    apply(lane, reply);
+    sendNext(lane);
   }
+  if (finished !== count) throw new Error(`the step path finished ${finished} of ${count} episodes`);
+  return steps;
 }
 
 /** The episodes one step message carried, for a program that died on it: "episodes 3, 5 and 9 side by side". */

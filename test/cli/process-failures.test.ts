@@ -65,7 +65,7 @@ const dir = tempFiles({
   'shelf.py': SHELF,
   'no_serve.py': 'class Shelf:\n    actions = ["wait"]\n',
   'chatter.py': 'print("hello from the import")\nfrom reckon_bridge import serve\nserve(lambda options: None)\n',
-  'old_protocol.py': 'import sys, json\nsys.stdin.readline()\nprint(json.dumps({"reckon": 2, "ok": "open"}), flush=True)\nsys.stdin.readline()\n',
+  'old_protocol.py': 'import sys, json\nsys.stdin.readline()\nprint(json.dumps({"reckon": 1, "ok": "open"}), flush=True)\nsys.stdin.readline()\n',
   'reset.json': shelf('reset'),
   'nan.json': shelf('nan'),
   'hang.json': shelf('hang'),
@@ -166,7 +166,7 @@ describe('a process definition that cannot start is bad input (exit 2)', () => {
     ['no-interpreter.json', undefined, 'no-interpreter.json: environment from shelf.py: command "python3-nowhere" not found (is it installed and on PATH?)'],
     ['no-script.json', undefined, `no-script.json: command[1]: "./nowhere.py" not found (looked for ${inDir('nowhere.py')})`],
     ['no-serve.json', undefined, 'no-serve.json: environment from no_serve.py: the program ended without answering reckon: does the script end with serve(make_env) (python/reckon_bridge.py)?'],
-    ['old-protocol.json', undefined, 'old-protocol.json: environment from old_protocol.py speaks protocol version 2, and this reckon speaks 1'],
+    ['old-protocol.json', undefined, 'old-protocol.json: environment from old_protocol.py speaks protocol version 1, and this reckon speaks 2'],
     ['chatter.json', undefined, 'chatter.json: environment from chatter.py: the program printed "hello from the import" on its standard output, which is not reckon\'s protocol'],
     ['fine.json', 'unknown.json', 'unknown.json: name: shelf.py serves no policy "cautious" (it serves "steady", "wild"'],
   ];
