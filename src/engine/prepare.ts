@@ -25,6 +25,8 @@ export interface PreparedRollout {
    * program; `stepTimeout` is how long it may stay silent. Only worker threads run it.
    */
   runBlockAsync?: (block: EpisodeBlock, stepTimeout: number) => Promise<number>;
+  /** Whether runBlockAsync may start a block before the one before it has ended (it answers them in order). */
+  readonly overlapBlocks?: boolean;
 }
 
 export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout> {
@@ -93,7 +95,7 @@ async function prepareProcessRollout(spec: RolloutSpec, env: ModuleEnvironment, 
     return { ...base, runBlockAsync: (block, stepTimeout) => rolloutProcessSteps(env, connection, acting, seed, block, stepTimeout) };
   }
   await openProcessPolicy(connection, inProcess, spec.policy.source.label, env.process!.label);
-  return { ...base, runBlockAsync: (block, stepTimeout) => rolloutProcessEpisodes(env, connection, inProcess.name, seed, block, stepTimeout) };
+  return { ...base, overlapBlocks: true, runBlockAsync: (block, stepTimeout) => rolloutProcessEpisodes(env, connection, inProcess.name, seed, block, stepTimeout) };
 }
 
 /** Asks the program to create the policy (its make_policy): a failure there is the policy file's error. */

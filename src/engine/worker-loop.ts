@@ -21,16 +21,34 @@ function wallClock(): number {
  * Each message carries the thread's timings (start-up, busy and idle time, its own CPU), so
  * the pool can tell where a run's time went.
  */
-export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock, stepTimeout: number) => number | Promise<number>): void {
+export function serveBlocks(
+  port: MessagePort,
+  runBlock: (block: EpisodeBlock, stepTimeout: number) => number | Promise<number>,
+  options: { overlap?: boolean } = {},
+): void {
   const send = (message: FromWorker, transfer: ArrayBuffer[] = []) => port.postMessage(message, transfer);
   let lastEnd = wallClock();
   const memory = new BlockMemory();
-  const run = async (message: Extract<ToWorker, { type: 'run' }>) => {
+  /** Starts a block (calls runBlock) and returns what finishing it needs. */
+  const start = (message: Extract<ToWorker, { type: 'run' }>) => {
+    const block = memory.take(message.first, message.count);
+    const at = wallClock();
+    let steps: Promise<number>;
     try {
-      const block = memory.take(message.first, message.count);
-      const start = wallClock();
-      const steps = await runBlock(block, message.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS);
+      steps = Promise.resolve(runBlock(block, message.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS));
+    } catch (e) {
+      steps = Promise.reject(e);
+    }
+    steps.catch(() => {}); // read in finish(); this only keeps an early failure from counting as unhandled
+    return { block, at, steps };
+  };
+  const finish = async (started: ReturnType<typeof start>) => {
+    try {
+      const { block } = started;
+      const steps = await started.steps;
       const end = wallClock();
+      // A block started early (overlap) was busy from when the one before it ended.
+      const begin = Math.max(started.at, lastEnd);
       const times = threadTimes();
       send(
         {
@@ -42,8 +60,8 @@ export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock, s
           finals: block.finals,
           steps,
           at: end,
-          busySeconds: (end - start) / 1000,
-          idleSeconds: Math.max(0, start - lastEnd) / 1000,
+          busySeconds: (end - begin) / 1000,
+          idleSeconds: Math.max(0, begin - lastEnd) / 1000,
           cpuSeconds: times?.cpuSeconds ?? null,
           queuedSeconds: times?.queuedSeconds ?? null,
         },
@@ -54,7 +72,9 @@ export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock, s
       send(describeError(e));
     }
   };
-  // Blocks that wait on a program (process environments) run one after another, in the order asked.
+  // Blocks run one after another, in the order asked, and are answered in that order. With
+  // `overlap` (a process environment's episode path) each is started as soon as it is asked
+  // for, so its request reaches the program while the one before it is still running.
   let queue: Promise<void> = Promise.resolve();
   port.on('message', (message: ToWorker) => {
     if (message.type === 'stop') {
@@ -62,7 +82,12 @@ export function serveBlocks(port: MessagePort, runBlock: (block: EpisodeBlock, s
       return;
     }
     if (message.spare) memory.giveBack(message.spare);
-    queue = queue.then(() => run(message));
+    if (options.overlap) {
+      const started = start(message);
+      queue = queue.then(() => finish(started));
+    } else {
+      queue = queue.then(() => finish(start(message)));
+    }
   });
   lastEnd = wallClock();
   send({ type: 'ready', at: lastEnd, cpuSeconds: threadTimes()?.cpuSeconds ?? null });

@@ -35,7 +35,7 @@ try {
     const { environmentFacts } = await import('../evaluate/environment-facts.js');
     port.postMessage({ type: 'facts', facts: environmentFacts(prepared.env, prepared.policy, prepared.startIndex) });
   }
-  serveBlocks(port, prepared.runBlockAsync ?? ((block) => prepared.runBlock(block)));
+  serveBlocks(port, prepared.runBlockAsync ?? ((block) => prepared.runBlock(block)), { overlap: prepared.overlapBlocks === true });
 } catch (e) {
   port.postMessage(describeError(e));
 }

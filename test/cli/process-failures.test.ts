@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { ENVS, reckon, tempFiles } from './run-cli.js';
 import { episodeSeed } from '../../src/engine/process-seeds.js';
@@ -194,6 +195,23 @@ describe('a process definition that cannot start is bad input (exit 2)', () => {
   });
 });
 
+
+describe('the helper refuses a reckon of another protocol version', () => {
+  it('answers an open of version 1 with a refusal that says which versions meet', () => {
+    const bridge = path.resolve(__dirname, '../../python');
+    const answer = spawnSync('python3', [inDir('shelf.py')], {
+      cwd: dir,
+      input: `${JSON.stringify({ reckon: 1, op: 'open', options: {} })}\n`,
+      env: { ...process.env, PYTHONPATH: bridge },
+      encoding: 'utf8',
+      timeout: 30_000,
+    });
+    const reply = JSON.parse(answer.stdout.trim().split('\n')[0]);
+    expect(reply.reckon).toBe(2);
+    expect(reply.error.what).toBe('refused');
+    expect(reply.error.message).toBe('reckon speaks protocol 1 and this reckon_bridge.py speaks 2: use the helper shipped with your reckon');
+  });
+});
 
 describe('the horizon', () => {
   it('that reckon derives from reward_bounds cuts the episodes of an endless program on both paths', () => {
