@@ -21,7 +21,8 @@ is installed, for the generator a policy receives.
   state by this name (a table policy keys on it).
 
 ``make_policy(options, actions)`` returns an object with ``act(observation, rng)`` (an action
-index or name) and optionally ``probabilities(observation)``.
+index or name) and optionally ``probabilities(observation)``: one probability per action, which
+``estimate --record`` writes beside each step (it must not draw from ``rng``).
 
 Seeds. Episode i's environment is reset with a 64-bit seed taken from reckon's ENV stream of
 episode i, and a policy of this file gets a generator seeded with a 64-bit seed from the POLICY
@@ -40,16 +41,21 @@ the previous one arrives; they are answered one by one, in order.
 
 - ``{"reckon": 2, "op": "open", "options": {...}}`` -> ``{"reckon": 2, "ok": "open",
   "actions": [...], "discount": d, "horizon": h, "reward_bounds": [lo, hi], "policies": [...]}``
-- ``{"op": "policy", "name": N, "options": {...}}`` -> ``{"ok": "policy"}``
+- ``{"op": "policy", "name": N, "options": {...}}`` -> ``{"ok": "policy", "probabilities": bool}``
+  (whether it has ``probabilities(observation)``, which recording needs)
 - ``{"op": "step", "reset": [slot, seed, slot, seed, ...], "act": [slot, action, ...]}`` ->
   ``{"n": [...], "w": [...], "e": [...], "s": [...]}``: one environment per slot, flat pairs
   (fewer brackets to write and parse than a list per command). The resets run first, in
   order, each answering its state name in ``n``; then the steps, in order, each answering
   its reward in ``w``, its end in ``e`` (0 going on, 1 terminated, 2 truncated) and its
-  state name in ``s`` (null once ended). Commands are indexed in that order (resets first)
+  state name in ``s``. Commands are indexed in that order (resets first)
   where a failure names one.
 - ``{"op": "episodes", "policy": N, "horizon": H, "items": [[env_seed, policy_seed], ...]}`` -> one or more
   ``{"returns": [...], "lengths": [...], "more": bool}``, at least every 50 ms while working.
+- ``{"op": "record", ...}``, the fields of ``episodes`` -> one or more ``{"episodes": [...],
+  "returns": [...], "more": bool}``: the same episodes, each a list of steps ``[state, action,
+  reward, probabilities, next_state, end]`` (end ``"terminal"``, ``"truncated"`` or null), for
+  ``estimate --record``. ``probabilities(observation)`` must not draw from the policy's rng.
 - any failure -> ``{"error": {"index", "step", "call", "what", "message", "traceback"}}``;
   on SIGUSR1 (reckon's step timeout) -> ``{"hung": {"index", "step", "traceback"}}``.
 """
@@ -109,7 +115,7 @@ def _threw(call, error):
 
 _HERE = os.path.abspath(__file__)
 # Which call a helper frame makes into the user's code, when the innermost helper frame is it.
-_CALL_OF_FRAME = {"_step": "step", "_reset": "reset", "_name": "state_name", "_new_env": "make_env", "episodes": "act", "policy": "make_policy"}
+_CALL_OF_FRAME = {"_step": "step", "_reset": "reset", "_name": "state_name", "_new_env": "make_env", "episodes": "act", "record": "act", "policy": "make_policy"}
 
 
 def _hang_report(frame, pos):
@@ -201,7 +207,7 @@ class _Bridge:
             raise _threw("make_policy", error)
         if not callable(getattr(self.policies[name], "act", None)):
             raise _Failure("make_policy", "policy %r has no act(observation, rng) method" % name, "returned")
-        return {"ok": "policy"}
+        return {"ok": "policy", "probabilities": callable(getattr(self.policies[name], "probabilities", None))}
 
     # -- calls into the user's code, checked --------------------------------------------
     def _reset(self, env, seed):
@@ -296,17 +302,10 @@ class _Bridge:
                     raise _Failure("step", "returned %s; step(action) must return (observation, reward, terminated, truncated, info)" % _describe(result), "returned")
                 observation, reward, terminated, truncated, _ = result
                 rewards.append(reward if reward.__class__ is float and low <= reward <= high and reward - reward == 0.0 else self._reward(reward))
-                if terminated:
-                    ends.append(1)
-                    states.append(None)
-                elif truncated:
-                    ends.append(2)
-                    states.append(None)
-                else:
-                    ends.append(0)
-                    call = "state_name"
-                    namer = stepper[2]
-                    states.append(str(observation) if namer is None else str(namer(observation)))
+                ends.append(1 if terminated else 2 if truncated else 0)
+                call = "state_name"
+                namer = stepper[2]
+                states.append(str(observation) if namer is None else str(namer(observation)))
                 k += 1
         except _Failure:
             raise
@@ -358,6 +357,68 @@ class _Bridge:
                 last = now
         return {"returns": returns, "lengths": lengths, "more": False}
 
+    def record(self, message, send):
+        """The episodes of ``episodes``, drawn the same way, with every step and the policy's probabilities."""
+        name = message["policy"]
+        policy = self.policies.get(name)
+        if policy is None:
+            raise _Failure("make_policy", "policy %r was not opened" % name, "refused")
+        probabilities = getattr(policy, "probabilities", None)
+        if not callable(probabilities):
+            raise _Failure("make_policy", "policy %r has no probabilities(observation) method, which recording needs" % name, "refused")
+        env = self.envs[0]
+        act = policy.act
+        n = len(self.actions)
+        horizon = message.get("horizon") or self.horizon or 2**62
+        gamma = self.discount
+        pos = self.pos
+        episodes = []
+        returns = []
+        last = time.perf_counter()
+        for k, (env_seed, policy_seed) in enumerate(message["items"]):
+            pos[0] = k
+            pos[1] = 0
+            observation = self._reset(env, env_seed)
+            state = self._name(env, observation)
+            rng = make_rng(policy_seed)
+            g = 0.0
+            w = 1.0
+            t = 0
+            steps = []
+            while t < horizon:
+                pos[1] = t
+                try:
+                    row = [float(p) for p in probabilities(observation)]
+                except Exception as error:
+                    raise _threw("probabilities", error)
+                if len(row) != n or not all(math.isfinite(p) and p >= 0 for p in row) or abs(sum(row) - 1) > 1e-9:
+                    raise _Failure("probabilities", "returned %s; probabilities(observation) must give %d non-negative numbers that sum to 1" % (_describe(row), n), "returned")
+                try:
+                    chosen = act(observation, rng)
+                except Exception as error:
+                    raise _threw("act", error)
+                action = self._action(chosen)
+                observation, reward, terminated, truncated, _ = self._step(env, action)
+                r = self._reward(reward)
+                g += w * r
+                w *= gamma
+                t += 1
+                following = self._name(env, observation)
+                end = "terminal" if terminated else "truncated" if truncated or t >= horizon else None
+                steps.append([state, action, r, row, following, end])
+                state = following
+                if terminated or truncated:
+                    break
+            episodes.append(steps)
+            returns.append(g)
+            now = time.perf_counter()
+            if now - last > FLUSH_SECONDS:
+                send({"episodes": episodes, "returns": returns, "more": True})
+                episodes = []
+                returns = []
+                last = now
+        return {"episodes": episodes, "returns": returns, "more": False}
+
 
 def serve(make_env, policies=None):
     """Answers reckon's messages on stdin/stdout until stdin closes."""
@@ -397,6 +458,8 @@ def serve(make_env, policies=None):
                 reply = bridge.step(message)
             elif op == "episodes":
                 reply = bridge.episodes(message, send)
+            elif op == "record":
+                reply = bridge.record(message, send)
             elif op == "policy":
                 reply = bridge.policy(message)
             else:

@@ -110,6 +110,15 @@ class Route:
         action = self.route.get(cell)
         return action if action is not None else int(rng.random() * self.count)
 
+    def probabilities(self, cell):
+        """What act draws from: written beside each step by `reckon estimate --record`."""
+        action = self.route.get(cell)
+        if action is None:
+            return [1.0 / self.count] * self.count
+        row = [self.epsilon / self.count] * self.count
+        row[action] += 1.0 - self.epsilon
+        return row
+
 
 def make_careful(options, actions):
     return Route(CAREFUL, actions, float(options.get("epsilon", 0)))

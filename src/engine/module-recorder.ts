@@ -10,6 +10,9 @@ import { rebuildError, workerUrl } from './pool.js';
 import type { RecordWorkerData } from './record-worker.js';
 import type { RolloutSpec } from './spec.js';
 import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-watch.js';
+
+/** Seconds past --step-timeout before this watch fails a process environment's recording (its connection times it out first). */
+const PROCESS_WATCH_GRACE_SECONDS = 3;
 import type { FromWorker } from './worker-messages.js';
 
 type Answer = { type: 'ready' } | { type: 'done' } | Extract<FromWorker, { type: 'error' }>;
@@ -21,7 +24,10 @@ export class ModuleRecorder {
   private waiting: { resolve: () => void; reject: (e: Error) => void } | null = null;
   private failure: Error | null = null;
 
+  private readonly process: boolean;
+
   private constructor(spec: RolloutSpec, path: string, private readonly stepTimeout: number) {
+    this.process = (spec.env.json as { kind?: unknown } | null)?.kind === 'process';
     const clock = newClockBuffer();
     this.watch = new StepWatch(clock, () => this.busy);
     this.worker = new Worker(workerUrl('record-worker.js'), { workerData: { spec, clock, path } satisfies RecordWorkerData });
@@ -44,13 +50,16 @@ export class ModuleRecorder {
   /** Writes episodes first .. first + count − 1 of the seeded run; `description` goes into the header. */
   async write(first: number, count: number, description: string): Promise<void> {
     this.busy = true;
+    // A process environment's program is timed out by its connection, which asks it where it
+    // hung; this watch then only backs that up.
+    const watchTimeout = this.stepTimeout + (this.process ? PROCESS_WATCH_GRACE_SECONDS : 0);
     const timer = setInterval(() => {
-      const hang = this.watch.check(performance.now(), this.stepTimeout);
+      const hang = this.watch.check(performance.now(), watchTimeout);
       if (hang) this.fail(hang);
-    }, watchInterval(this.stepTimeout));
+    }, watchInterval(watchTimeout));
     try {
       const done = this.answer();
-      this.worker.postMessage({ type: 'write', first, count, description });
+      this.worker.postMessage({ type: 'write', first, count, description, stepTimeout: this.stepTimeout });
       await done;
     } finally {
       clearInterval(timer);

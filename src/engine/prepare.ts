@@ -5,6 +5,7 @@ import { isCodeKind } from '../definitions/process-schema.js';
 import { CLOCK_PID, pluginClock } from './plugin-clock.js';
 import { rolloutProcessEpisodes } from './process-episodes.js';
 import { rolloutProcessSteps } from './process-steps.js';
+import { recordProcessPolicyEpisodes, recordReckonPolicyEpisodes } from './process-record.js';
 import { InputError } from '../errors.js';
 import type { EpisodeBlock } from './episode-block.js';
 import { rolloutFinite, rolloutFiniteActing } from './finite-rollout.js';
@@ -27,6 +28,13 @@ export interface PreparedRollout {
   runBlockAsync?: (block: EpisodeBlock, stepTimeout: number) => Promise<number>;
   /** Whether runBlockAsync may start a block before the one before it has ended (it answers them in order). */
   readonly overlapBlocks?: boolean;
+  /**
+   * For a process environment on a worker thread: writes episodes first .. first + count − 1
+   * as a logged-episode file (`estimate --record`), or, when the behaviour policy's
+   * probabilities are unknown, `recordRefusal` says so.
+   */
+  readonly recordProcess?: (path: string, first: number, count: number, description: string, stepTimeout: number) => Promise<void>;
+  readonly recordRefusal?: string;
 }
 
 export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout> {
@@ -79,7 +87,7 @@ export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout
 /** A process environment: reckon's policy acting step by step, or a policy of its program running whole episodes. */
 async function prepareProcessRollout(spec: RolloutSpec, env: ModuleEnvironment, policy: CodePolicy): Promise<PreparedRollout> {
   if (spec.start !== null) {
-    throw new InputError('--start', `${spec.env.source.label} is a process environment: its episodes start where its reset(seed) puts them`);
+    throw new InputError('--start', `${spec.env.source.label} is a process environment, whose episodes start where its reset(seed) puts them; leave out --start (a start of your own goes in the definition's "options", for make_env to read)`);
   }
   const seed = spec.seed;
   const noProgram = (): never => {
@@ -90,16 +98,26 @@ async function prepareProcessRollout(spec: RolloutSpec, env: ModuleEnvironment, 
   if (connection === null) return base;
   pluginClock()[CLOCK_PID] = connection.pid;
   const inProcess = policy.inProcess;
+  const request = (first: number, count: number, description: string, stepTimeout: number) => ({ env, connection, seed, first, count, description, stepTimeout });
   if (!inProcess) {
-    const acting = policy.acting;
-    return { ...base, runBlockAsync: (block, stepTimeout) => rolloutProcessSteps(env, connection, acting, seed, block, stepTimeout) };
+    const { acting, probabilitiesAt } = policy;
+    const recording = probabilitiesAt
+      ? { recordProcess: (path: string, first: number, count: number, description: string, stepTimeout: number) => recordReckonPolicyEpisodes(path, request(first, count, description, stepTimeout), acting, probabilitiesAt) }
+      : { recordRefusal: `${spec.policy.source.label} is a code policy without probabilities(state)` };
+    return { ...base, ...recording, runBlockAsync: (block, stepTimeout) => rolloutProcessSteps(env, connection, acting, seed, block, stepTimeout) };
   }
-  await openProcessPolicy(connection, inProcess, spec.policy.source.label, env.process!.label);
-  return { ...base, overlapBlocks: true, runBlockAsync: (block, stepTimeout) => rolloutProcessEpisodes(env, connection, inProcess.name, seed, block, stepTimeout) };
+  const hasProbabilities = await openProcessPolicy(connection, inProcess, spec.policy.source.label, env.process!.label);
+  const recording = hasProbabilities
+    ? { recordProcess: (path: string, first: number, count: number, description: string, stepTimeout: number) => recordProcessPolicyEpisodes(path, request(first, count, description, stepTimeout), inProcess.name) }
+    : { recordRefusal: `policy "${inProcess.name}" of ${env.process!.label} has no probabilities(observation) method; give it one (a probability per action) to record its episodes` };
+  return { ...base, ...recording, overlapBlocks: true, runBlockAsync: (block, stepTimeout) => rolloutProcessEpisodes(env, connection, inProcess.name, seed, block, stepTimeout) };
 }
 
-/** Asks the program to create the policy (its make_policy): a failure there is the policy file's error. */
-async function openProcessPolicy(connection: ProcessConnection, policy: { name: string; options: Record<string, unknown> }, where: string, label: string): Promise<void> {
+/**
+ * Asks the program to create the policy (its make_policy): a failure there is the policy
+ * file's error. Returns whether the policy has probabilities(observation).
+ */
+async function openProcessPolicy(connection: ProcessConnection, policy: { name: string; options: Record<string, unknown> }, where: string, label: string): Promise<boolean> {
   connection.send(JSON.stringify({ op: 'policy', name: policy.name, options: policy.options }));
   let answer: Record<string, unknown>;
   try {
@@ -113,6 +131,7 @@ async function openProcessPolicy(connection: ProcessConnection, policy: { name: 
     const how = error.what === 'threw' ? 'threw while being created' : 'was refused';
     throw new InputError(where, `policy "${policy.name}" of ${label} ${how}: ${error.message}${trace}`);
   }
+  return answer.probabilities === true;
 }
 
 /**

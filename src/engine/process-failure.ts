@@ -25,6 +25,7 @@ const CALLS: Record<string, string> = {
   state_name: 'the environment (state_name)',
   make_env: 'the environment (make_env)',
   act: 'the policy',
+  probabilities: 'the policy (probabilities)',
   make_policy: 'the policy (make_policy)',
 };
 

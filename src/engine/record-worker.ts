@@ -7,7 +7,9 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { InputError } from '../errors.js';
+import { keepProcessConnections } from '../definitions/process-start.js';
 import { shareClock } from './plugin-clock.js';
+import { DEFAULT_STEP_TIMEOUT_SECONDS } from './step-watch.js';
 import { prepareRollout } from './prepare.js';
 import { recordModuleEpisodes } from './record-module.js';
 import { recordFiniteEpisodes } from './record-finite.js';
@@ -20,17 +22,30 @@ export interface RecordWorkerData {
   readonly path: string;
 }
 
-export type ToRecordWorker = { type: 'write'; first: number; count: number; description: string };
+export type ToRecordWorker = { type: 'write'; first: number; count: number; description: string; stepTimeout?: number };
 
 const port = parentPort;
 if (!port) throw new Error('record-worker.js must run as a worker thread');
 const data = workerData as RecordWorkerData;
 shareClock(data.clock);
+keepProcessConnections(); // a process environment's program records the episodes, so it stays up
 
 prepareRollout(data.spec).then(
   (prepared) => {
     const { env, policy } = prepared;
     if (policy.kind !== 'code') throw new Error('record-worker.js records runs with user code only');
+    if (env.kind === 'module' && env.process) {
+      const record = prepared.recordProcess;
+      if (!record) throw new InputError('--record', `needs the behaviour policy's probabilities: ${prepared.recordRefusal ?? 'they are unknown'}`);
+      port.on('message', (message: ToRecordWorker) => {
+        record(data.path, message.first, message.count, message.description, message.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS).then(
+          () => port.postMessage({ type: 'done' }),
+          (e) => port.postMessage(describeError(e)),
+        );
+      });
+      port.postMessage({ type: 'ready' });
+      return;
+    }
     if (env.kind === 'module' ? !policy.probabilitiesAt : !policy.matrix) {
       throw new InputError('--record', `needs the behaviour policy's probabilities: ${data.spec.policy.source.label} is a code policy without probabilities(state)`);
     }

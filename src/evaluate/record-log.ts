@@ -5,7 +5,6 @@
  * for a module environment or policy.
  */
 import { loadEnvironmentFile, loadPolicyFile } from '../definitions/load.js';
-import { InputError } from '../errors.js';
 import { recordFiniteEpisodes } from '../engine/record-finite.js';
 import { ModuleRecorder } from '../engine/module-recorder.js';
 import type { RolloutSpec } from '../engine/spec.js';
@@ -24,9 +23,6 @@ export async function prepareRecorder(
   files: { env: string; policy: string },
   stepTimeout?: number,
 ): Promise<EpisodeRecorder> {
-  if ((spec.env.json as { kind?: unknown } | null)?.kind === 'process') {
-    throw new InputError('--record', `${files.env} is a process environment, whose episodes cannot be recorded yet; record a gridworld, tabular or module environment`);
-  }
   const { start, seed } = spec;
   const description = `reckon estimate --env ${files.env} --policy ${files.policy} --seed ${seed}${start === null ? '' : ` --start ${start}`}`;
   if (runsPluginCode(spec)) {

@@ -179,19 +179,22 @@ describe('a process definition that cannot start is bad input (exit 2)', () => {
     });
   }
 
-  it('a process policy needs a process environment; --noise visit, --start and --record are refused', () => {
+  it('a process policy needs a process environment; --noise visit and --start are refused, and --record of a policy without probabilities; each in one line naming the option and what to do', () => {
     const grid = reckon(['estimate', '--env', path.join(ENVS, 'warehouse.json'), '--policy', inDir('wild.json'), '--episodes', '10', '--no-store']);
     expect(grid.code).toBe(2);
     expect(grid.stderr).toContain('a "process" policy acts inside a process environment\'s program');
     const visit = reckon(['estimate', '--env', inDir('fine.json'), '--policy', inDir('uniform.json'), '--noise', 'visit', '--no-store']);
     expect(visit.code).toBe(2);
     expect(visit.stderr).toContain('--noise: visit needs a finite environment');
+    expect(visit.stderr).toContain('use --noise step');
     const start = reckon(['estimate', '--env', inDir('fine.json'), '--policy', inDir('uniform.json'), '--start', '0', '--no-store']);
     expect(start.code).toBe(2);
-    expect(start.stderr).toContain('--start:');
-    const record = reckon(['estimate', '--env', inDir('fine.json'), '--policy', inDir('uniform.json'), '--record', inDir('log.jsonl'), '--no-store']);
+    expect(start.stderr).toContain('--start: ');
+    expect(start.stderr).toContain('leave out --start');
+    const record = reckon(['estimate', '--env', inDir('fine.json'), '--policy', inDir('steady.json'), '--record', inDir('log.jsonl'), '--no-store']);
     expect(record.code).toBe(2);
-    expect(record.stderr).toContain('--record:');
+    expect(record.stderr).toContain('--record: needs the behaviour policy\'s probabilities: policy "steady" of shelf.py has no probabilities(observation) method; give it one');
+    for (const out of [visit, start, record]) expect(out.stderr.trim().split('\n')).toHaveLength(1);
   });
 });
 
