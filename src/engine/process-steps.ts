@@ -9,8 +9,14 @@ import { helperFailure, processFailure, type HelperError } from './process-failu
 import { episodeSeed } from './process-seeds.js';
 import { STREAM, seedStream } from './streams.js';
 
-/** Episodes a process environment runs side by side on the step path (one environment object each). */
-const WIDTH = 128;
+/**
+ * Most episodes a process environment runs side by side on the step path, one environment
+ * object each. A block never has more (blocks are sized to take about 0.1 s), so only a fast
+ * environment gets this many objects; with fewer, each message's fixed cost (a line each
+ * way, a wake-up on each side) weighs more: on a trivial environment 128 side by side cost a
+ * fifth more CPU per step than 512, and 2048 hardly less (scripts/bench-python.mjs).
+ */
+const WIDTH = 512;
 /**
  * Messages in flight at once: the episodes side by side are split into this many lanes, and
  * while the program steps one lane, reckon reads the other's results and chooses its next
