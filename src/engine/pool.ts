@@ -4,7 +4,7 @@ import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 import { InputError } from '../errors.js';
 import { BlockMemory, blockMemory, newBlock, type EpisodeBlock } from './episode-block.js';
-import { prepareRollout, type PreparedRollout } from './prepare.js';
+import { prepareOnCallingThread, prepareRollout, type PreparedRollout } from './prepare.js';
 import { rolloutTables } from './finite-rollout.js';
 import type { TableWorkerData } from './table-worker.js';
 import type { RolloutSpec } from './spec.js';
@@ -13,7 +13,7 @@ import { killClockProgram, newClockBuffer } from './plugin-clock.js';
 import { DEFAULT_STEP_TIMEOUT_SECONDS, StepWatch, watchInterval } from './step-watch.js';
 import type { CodeWorkerData } from './worker.js';
 import { EarlyWorkers } from './early-workers.js';
-import { runsPluginCode } from './runs-plugin-code.js';
+import { runsOnCallingThread, runsPluginCode } from './runs-plugin-code.js';
 import { ThreadTimingRecorder, type ThreadTiming } from './thread-timing.js';
 import { threadTimes } from './thread-times.js';
 
@@ -80,9 +80,12 @@ export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promi
   // hangs must not stop this thread from answering signals and from noticing the hang
   // (step-watch.ts).
   const plugins = runsPluginCode(spec);
-  const prepared = plugins ? null : (options.prepared ?? (await prepareRollout(spec)));
-  const callerRuns = (options.callerRuns ?? true) && !plugins;
-  if (workers === 1 && prepared && !plugins) return runInline(prepared, options);
+  // A process environment whose policy runs no user JavaScript runs here too: its program's
+  // calls never hold this thread (runsOnCallingThread).
+  const here = !plugins || runsOnCallingThread(spec);
+  const prepared = here ? (options.prepared ?? (plugins ? await prepareOnCallingThread(spec, options.signal) : await prepareRollout(spec))) : null;
+  const callerRuns = (options.callerRuns ?? true) && here;
+  if (workers === 1 && prepared && callerRuns) return prepared.runBlockAsync ? runInlineAsync(prepared, options) : runInline(prepared, options);
   return runThreaded(spec, prepared, options, workers, callerRuns);
 }
 
@@ -93,6 +96,8 @@ export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promi
 export function startCodeWorkers(spec: RolloutSpec, workers: number, episodes?: number): EarlyWorkers | null {
   if (!runsPluginCode(spec)) return null;
   const threads = episodes === undefined ? workers : threadsFor(workers, episodes);
+  // This thread runs one program itself (runsOnCallingThread): the threads run the others.
+  if (runsOnCallingThread(spec)) return threads < 2 ? null : new EarlyWorkers(workerUrl('worker.js'), spec, threads - 1);
   // A process environment's first thread also describes it (EarlyWorkers.facts), from the
   // program it runs the episodes with: no program is started only to say what it is.
   if (isProcessSpec(spec)) return new EarlyWorkers(workerUrl('worker.js'), spec, Math.max(1, threads), { facts: true });
@@ -138,6 +143,23 @@ class BlockSizer {
   }
 }
 
+/**
+ * A stopped run waits a moment for the block this thread is running on its program, then ends
+ * the program, so a call that never returns cannot hold up Ctrl-C. Returns the clean-up.
+ */
+function stopProgramOnAbort(signal: AbortSignal | undefined, endProgram: () => void): () => void {
+  let timer: NodeJS.Timeout | undefined;
+  const onAbort = () => {
+    timer ??= setTimeout(endProgram, ABORT_GRACE_MS);
+  };
+  if (signal?.aborted) onAbort();
+  signal?.addEventListener('abort', onAbort);
+  return () => {
+    clearTimeout(timer);
+    signal?.removeEventListener('abort', onAbort);
+  };
+}
+
 /** Lets signals, timers, worker messages and progress output through between blocks. */
 function yieldToEventLoop(): Promise<void> {
   return new Promise<void>((resolve) => setImmediate(resolve));
@@ -170,6 +192,64 @@ async function runInline(prepared: PreparedRollout, options: RunOptions): Promis
   }
   recordCallerTimes(timing, times0);
   return { episodes: next - options.first, steps, seconds: (performance.now() - started) / 1000, threads: [timing.result(sharedClock())] };
+}
+
+/**
+ * One thread, blocks that wait on a process environment's program (runBlockAsync). Where the
+ * rollout allows it (overlapBlocks: the episode path) the next block is asked for before the
+ * current one is read, so the program goes from one to the next without waiting on this
+ * thread. A stopped run delivers what it has; after a grace it ends a program stuck in a call.
+ */
+async function runInlineAsync(prepared: PreparedRollout, options: RunOptions): Promise<RunOutcome> {
+  const started = performance.now();
+  const timing = new ThreadTimingRecorder('caller', sharedClock());
+  const times0 = threadTimes();
+  const stepTimeout = options.stepTimeout ?? DEFAULT_STEP_TIMEOUT_SECONDS;
+  const runBlock = prepared.runBlockAsync!;
+  const sizer = new BlockSizer(options.blockSeconds ?? 0.1);
+  const end = options.first + options.count;
+  const stopProgram = prepared.endProgram ? stopProgramOnAbort(options.signal, prepared.endProgram) : () => {};
+  const memory = options.reuseBlocks ? new BlockMemory() : null;
+  let next = options.first;
+  let delivered = options.first;
+  let steps = 0;
+  const start = () => {
+    if (next >= end || options.signal?.aborted) return null;
+    const count = Math.min(sizer.size, end - next);
+    const block = memory ? memory.take(next, count) : newBlock(next, count);
+    next += count;
+    const t0 = performance.now();
+    const done = runBlock(block, stepTimeout);
+    done.catch(() => {}); // awaited below; an early failure is not unhandled meanwhile
+    return { block, t0, done };
+  };
+  try {
+    let current = start();
+    let previousEnd = sharedClock();
+    while (current) {
+      const ahead = prepared.overlapBlocks ? start() : null;
+      let blockSteps: number;
+      try {
+        blockSteps = await current.done;
+      } catch (e) {
+        if (options.signal?.aborted) break; // a stopped run whose program was ended: keep what was delivered
+        throw e;
+      }
+      const t1 = performance.now();
+      sizer.observe(current.block.count, (t1 - Math.max(current.t0, previousEnd - performance.timeOrigin)) / 1000);
+      timing.ranBlock(current.block.count, blockSteps, performance.timeOrigin + current.t0, performance.timeOrigin + t1, previousEnd);
+      steps += blockSteps;
+      delivered += current.block.count;
+      options.onBlock(current.block, blockSteps);
+      memory?.giveBack(blockMemory(current.block));
+      previousEnd = sharedClock();
+      current = ahead ?? start();
+    }
+  } finally {
+    stopProgram();
+  }
+  recordCallerTimes(timing, times0);
+  return { episodes: delivered - options.first, steps, seconds: (performance.now() - started) / 1000, threads: [timing.result(sharedClock())] };
 }
 
 /** Milliseconds on the clock every thread of the process shares (worker-loop.ts stamps its messages with it). */
@@ -307,7 +387,8 @@ async function runThreaded(
   // wait in the queue while this thread runs a block, so this thread runs short blocks: the
   // arrival times stay accurate (and the threads are never kept waiting) for the cost of a
   // few more turns of the event loop.
-  const callerSizer = new BlockSizer(Math.min(blockSeconds, CALLER_BLOCK_SECONDS));
+  // (Blocks that wait on a program leave the event loop free: they take the usual length.)
+  const callerSizer = new BlockSizer(prepared?.runBlockAsync ? blockSeconds : Math.min(blockSeconds, CALLER_BLOCK_SECONDS));
   const ready = options.keep ?? options.early;
   /** What a clean end of the run needs to give a thread back to `keep`. */
   const held: { worker: Worker; clock: SharedArrayBuffer; detach: () => void }[] = [];
@@ -387,6 +468,7 @@ async function runThreaded(
     wake?.();
     graceTimer ??= setTimeout(() => {
       abandoned = true;
+      prepared?.endProgram?.(); // this thread's own program, if it is stuck in a call
       wake?.();
     }, ABORT_GRACE_MS);
   };
@@ -410,7 +492,15 @@ async function runThreaded(
       if (range) {
         const block = memory ? memory.take(range.first, range.count) : newBlock(range.first, range.count);
         const t0 = performance.now();
-        const blockSteps = prepared!.runBlock(block);
+        let blockSteps: number;
+        if (prepared!.runBlockAsync) {
+          try {
+            blockSteps = await prepared!.runBlockAsync(block, stepTimeout);
+          } catch (e) {
+            if (options.signal?.aborted) break; // a stopped run whose program was ended
+            throw e;
+          }
+        } else blockSteps = prepared!.runBlock(block);
         const t1 = performance.now();
         sizer.observe(range.count, (t1 - t0) / 1000);
         callerTiming?.ranBlock(range.count, blockSteps, performance.timeOrigin + t0, performance.timeOrigin + t1, previousEnd);

@@ -6,7 +6,8 @@ import { CLOCK_PID, pluginClock } from './plugin-clock.js';
 import { rolloutProcessEpisodes } from './process-episodes.js';
 import { rolloutProcessSteps } from './process-steps.js';
 import { recordProcessPolicyEpisodes, recordReckonPolicyEpisodes } from './process-record.js';
-import { InputError } from '../errors.js';
+import { InputError, StoppedEarly } from '../errors.js';
+import { keepProcessConnections, startProgramEarly } from '../definitions/process-start.js';
 import type { EpisodeBlock } from './episode-block.js';
 import { rolloutFinite, rolloutFiniteActing } from './finite-rollout.js';
 import { rolloutModule } from './module-rollout.js';
@@ -35,6 +36,29 @@ export interface PreparedRollout {
    */
   readonly recordProcess?: (path: string, first: number, count: number, description: string, stepTimeout: number) => Promise<void>;
   readonly recordRefusal?: string;
+  /** For a process environment: ends its program at once (a stopped run that cannot wait for a hung call). */
+  readonly endProgram?: () => void;
+}
+
+/**
+ * Prepares, on this thread, a spec that runsOnCallingThread: its program is started first and
+ * kept running for the episodes (it ends when this process does). A stop while the program is
+ * still starting (a make_env that never returns) kills it and throws StoppedEarly.
+ */
+export async function prepareOnCallingThread(spec: RolloutSpec, signal?: AbortSignal): Promise<PreparedRollout> {
+  if (signal?.aborted) throw new StoppedEarly(0, 0, true);
+  keepProcessConnections();
+  const program = startProgramEarly(spec.env.json, spec.env.source); // the builder takes it over
+  const onAbort = () => program?.kill();
+  signal?.addEventListener('abort', onAbort, { once: true });
+  try {
+    return await prepareRollout(spec);
+  } catch (e) {
+    if (signal?.aborted) throw new StoppedEarly(0, 0, true);
+    throw e;
+  } finally {
+    signal?.removeEventListener('abort', onAbort);
+  }
 }
 
 export async function prepareRollout(spec: RolloutSpec): Promise<PreparedRollout> {
@@ -91,10 +115,10 @@ async function prepareProcessRollout(spec: RolloutSpec, env: ModuleEnvironment, 
   }
   const seed = spec.seed;
   const noProgram = (): never => {
-    throw new Error('a process environment runs on worker threads only (engine/pool.ts)');
+    throw new Error('a process environment runs its blocks through runBlockAsync (engine/pool.ts)');
   };
-  const base = { env, policy, startIndex: -1, runBlock: noProgram };
   const connection = env.process!.connection;
+  const base = { env, policy, startIndex: -1, runBlock: noProgram, ...(connection ? { endProgram: () => connection.kill() } : {}) };
   if (connection === null) return base;
   pluginClock()[CLOCK_PID] = connection.pid;
   const inProcess = policy.inProcess;

@@ -20,6 +20,17 @@ export function runsPluginCode(spec: Pick<RolloutSpec, 'env' | 'policy'>): boole
   return policyRunsCode(spec.policy.json, spec.policy.source.baseDir, 0);
 }
 
+/**
+ * Whether a spec that runs a program can still run its episodes on the calling thread: a
+ * process environment with a policy that runs none of the user's JavaScript (one of reckon's
+ * own, or a policy of the program). Every call into the program is answered asynchronously and
+ * times out on its connection, so it never holds this thread, and no thread has to start (or
+ * load reckon again) for it.
+ */
+export function runsOnCallingThread(spec: Pick<RolloutSpec, 'env' | 'policy'>): boolean {
+  return kindOf(spec.env.json) === 'process' && !policyRunsCode(spec.policy.json, spec.policy.source.baseDir, 0);
+}
+
 function kindOf(json: unknown): unknown {
   return json !== null && typeof json === 'object' ? (json as { kind?: unknown }).kind : undefined;
 }

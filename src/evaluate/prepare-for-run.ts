@@ -3,8 +3,8 @@ import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 import type { EarlyWorkers, FactsAnswer } from '../engine/early-workers.js';
 import { rebuildError } from '../engine/pool.js';
-import { prepareRollout, type PreparedRollout } from '../engine/prepare.js';
-import { runsPluginCode } from '../engine/runs-plugin-code.js';
+import { prepareOnCallingThread, prepareRollout, type PreparedRollout } from '../engine/prepare.js';
+import { runsOnCallingThread, runsPluginCode } from '../engine/runs-plugin-code.js';
 import type { RolloutSpec } from '../engine/spec.js';
 import type { FromWorker } from '../engine/worker-messages.js';
 import { StoppedEarly } from '../errors.js';
@@ -18,7 +18,8 @@ export interface ReadyRun {
 
 /**
  * Builds a spec and learns its facts before any episode. A spec without user code is built
- * here, once, and handed to the pool. One that loads a module is built on a worker thread
+ * here, once, and handed to the pool; so is a process environment whose policy runs no user
+ * JavaScript (runsOnCallingThread): its program then runs the episodes for this thread. One that loads a module is built on a worker thread
  * (facts-worker.ts), which this thread only waits for, so a module whose top level or
  * factory never returns can still be stopped: the signal ends the thread and the wait
  * throws StoppedEarly (`creating`). The pool's own threads build it again for the episodes,
@@ -26,8 +27,8 @@ export interface ReadyRun {
  * (`early`, a process environment): then nothing is built twice.
  */
 export async function prepareForRun(spec: RolloutSpec, signal?: AbortSignal, early?: EarlyWorkers | null): Promise<ReadyRun> {
-  if (!runsPluginCode(spec)) {
-    const prepared = await prepareRollout(spec);
+  if (!runsPluginCode(spec) || runsOnCallingThread(spec)) {
+    const prepared = runsPluginCode(spec) ? await prepareOnCallingThread(spec, signal) : await prepareRollout(spec);
     return { prepared, facts: environmentFacts(prepared.env, prepared.policy, prepared.startIndex) };
   }
   const answer = early?.facts();
