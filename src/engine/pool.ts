@@ -236,8 +236,10 @@ async function runInlineAsync(prepared: PreparedRollout, options: RunOptions): P
         throw e;
       }
       const t1 = performance.now();
-      sizer.observe(current.block.count, (t1 - Math.max(current.t0, previousEnd - performance.timeOrigin)) / 1000);
-      timing.ranBlock(current.block.count, blockSteps, performance.timeOrigin + current.t0, performance.timeOrigin + t1, previousEnd);
+      // A block asked for early started being answered when the one before it was delivered.
+      const begin = Math.max(current.t0, previousEnd - performance.timeOrigin);
+      sizer.observe(current.block.count, (t1 - begin) / 1000);
+      timing.ranBlock(current.block.count, blockSteps, performance.timeOrigin + begin, performance.timeOrigin + t1, previousEnd);
       steps += blockSteps;
       delivered += current.block.count;
       options.onBlock(current.block, blockSteps);
