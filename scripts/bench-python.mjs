@@ -164,8 +164,9 @@ const loadBefore = loadavg();
 const started = performance.now();
 const BEFORE = process.env.BENCH_BEFORE ? path.join(path.resolve(process.env.BENCH_BEFORE), 'dist/cli/main.js') : null;
 const SHORT_SECONDS = 1.5;
-// Pilots of the loops alone: episodes that make Python alone take about the target time.
-const pilotEpisodes = 3000;
+// Pilots: episodes that make Python alone take about the target time. A short pilot runs
+// slower per episode than a long loop (warm-up), which would size the runs too short.
+const pilotEpisodes = 10000;
 const episodePilot = timed(['python3', 'alone.py', 'episodes', String(pilotEpisodes), seedsFile(pilotEpisodes)]).out;
 const sized = (pilot, seconds) => Math.max(1000, Math.round((pilotEpisodes * seconds) / pilot.seconds / 1000) * 1000);
 // The step path through reckon is several times slower than Python alone: sized from a pilot through reckon.
