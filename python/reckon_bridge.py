@@ -127,8 +127,11 @@ def _hang_report(frame, pos):
             inner = f.f_code.co_name
             break
         f = f.f_back
+    call = _CALL_OF_FRAME.get(inner, "step")
+    if inner == "step" and f is not None:
+        call = f.f_locals.get("call", call)  # the step loop calls step and state_name itself
     frames = _users_frames(traceback.extract_stack(frame))
-    return {"index": pos[0], "step": pos[1], "call": _CALL_OF_FRAME.get(inner, "step"), "traceback": _tail(traceback.format_list(frames))}
+    return {"index": pos[0], "step": pos[1], "call": call, "traceback": _tail(traceback.format_list(frames))}
 
 
 def _describe(value):

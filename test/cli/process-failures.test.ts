@@ -37,6 +37,11 @@ class Shelf:
             raise ValueError("the scanner is offline")
         return 0, {}
 
+    def state_name(self, observation):
+        if self.fail == "hang_name" and self.seed % self.every == 3 and self.t == 3:
+            time.sleep(60)
+        return str(observation)
+
     def step(self, action):
         self.t += 1
         jam = self.seed % self.every == 3 and self.t == 3
@@ -70,6 +75,7 @@ const dir = tempFiles({
   'reset.json': shelf('reset'),
   'nan.json': shelf('nan'),
   'hang.json': shelf('hang'),
+  'hang-name.json': shelf('hang_name'),
   'die.json': shelf('die', 97),
   'chatty.json': shelf('chatty'),
   'fine.json': shelf(null),
@@ -136,6 +142,13 @@ describe('a program that fails', () => {
       expect(Date.now() - started).toBeLessThan(30_000);
     }
   }, 60_000);
+
+  it('a hung state_name on the step path is named as such', () => {
+    const out = run('hang-name.json', 'uniform.json', ['--no-store', '--step-timeout', '1']);
+    expect(out.code).toBe(1);
+    expect(out.stderr).toContain(`the environment (state_name) hung at episode ${firstJam}, step 2: no answer within 1 s`);
+    expect(out.stderr).toContain('in state_name');
+  }, 30_000);
 
   it('a program that dies mid-block fails the run; the episodes finished before it are kept', () => {
     const store = inDir('died.sqlite');
