@@ -10,10 +10,10 @@ export const STATE_COUNTS = [100, 1_000, 10_000, 100_000];
 export const HORIZONS = [10, 100, 1_000, 10_000];
 /**
  * Workloads rerun longer (episodes × factor) to measure how throughput scales with workers.
- * The module rows are sized so one worker takes over 2 s on a quiet machine (d1 about 2.5 s,
+ * The module rows are sized so one worker takes over 2 s on a quiet machine (d1 about 2.4 s,
  * d2 about 2.2 s), the length the scaling target is stated for.
  */
-export const THROUGHPUT_FACTORS = [['a', 5], ['b', 3], ['d1', 16], ['d2', 8]];
+export const THROUGHPUT_FACTORS = [['a', 5], ['b', 3], ['d1', 16], ['d2', 10]];
 /**
  * The module rows again with the process pinned by `taskset`: all workers on one core and on
  * two, and one worker on one core. Within one bench run and interleaved, their ratios show
