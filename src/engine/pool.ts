@@ -90,19 +90,18 @@ export async function runEpisodes(spec: RolloutSpec, options: RunOptions): Promi
 }
 
 /**
- * For a code environment run on more than one worker: its worker threads, started now, so
- * they load while the caller prepares the spec (early-workers.ts). Null for any other spec.
+ * For a spec that runs user code: its worker threads, started now, so they load while the
+ * caller prepares the spec (early-workers.ts). The first also describes the environment
+ * (EarlyWorkers.facts) once it has built it, so nothing builds the spec only to say what it
+ * is: no second load of a module and its factory, no program of a process environment
+ * started only for that. Null for any other spec, and where this thread drives the only program.
  */
 export function startCodeWorkers(spec: RolloutSpec, workers: number, episodes?: number): EarlyWorkers | null {
   if (!runsPluginCode(spec)) return null;
   const threads = episodes === undefined ? workers : threadsFor(workers, episodes);
   // This thread runs one program itself (runsOnCallingThread): the threads run the others.
   if (runsOnCallingThread(spec)) return threads < 2 ? null : new EarlyWorkers(workerUrl('worker.js'), spec, threads - 1);
-  // A process environment's first thread also describes it (EarlyWorkers.facts), from the
-  // program it runs the episodes with: no program is started only to say what it is.
-  if (isProcessSpec(spec)) return new EarlyWorkers(workerUrl('worker.js'), spec, Math.max(1, threads), { facts: true });
-  if (threads < 2) return null;
-  return new EarlyWorkers(workerUrl('worker.js'), spec, threads);
+  return new EarlyWorkers(workerUrl('worker.js'), spec, Math.max(1, threads), { facts: true });
 }
 
 /** Threads a run of `count` episodes uses: no more than one per 64 episodes. */

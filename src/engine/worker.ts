@@ -3,10 +3,11 @@
  * request and sends the results back (buffers transferred, not copied). A process
  * environment's program is started before anything heavy is loaded, so that Python starts
  * while this thread loads the definitions layer; the first worker of a run may also be asked
- * for the environment's facts, which it learns from that program (no program of its own is
- * started just to describe the environment).
+ * for the environment's facts, which it learns from what it built (no thread builds a module,
+ * nor starts a program, just to describe the environment).
  */
 import { parentPort, workerData } from 'node:worker_threads';
+import { warnFromThisThread } from '../definitions/deprecation.js';
 import { keepProcessConnections, startProgramEarly } from '../definitions/process-start.js';
 import { CLOCK_PID, pluginClock, shareClock } from './plugin-clock.js';
 import type { RolloutSpec } from './spec.js';
@@ -24,6 +25,8 @@ const port = parentPort;
 if (!port) throw new Error('worker.js must run as a worker thread');
 const data = workerData as CodeWorkerData;
 shareClock(data.clock);
+// The thread that describes the environment is the one that says what in its definitions is deprecated.
+if (data.facts) warnFromThisThread();
 keepProcessConnections(); // this thread runs the episodes: its process environment's program stays up
 const program = startProgramEarly(data.spec.env.json, data.spec.env.source);
 if (program) pluginClock()[CLOCK_PID] = program.pid; // so a thread ended before it is ready still ends its program

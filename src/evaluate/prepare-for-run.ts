@@ -24,7 +24,7 @@ export interface ReadyRun {
  * factory never returns can still be stopped: the signal ends the thread and the wait
  * throws StoppedEarly (`creating`). The pool's own threads build it again for the episodes,
  * except where the run's first thread was started early to report the facts itself
- * (`early`, a process environment): then nothing is built twice.
+ * (`early`, as an estimate starts them): then nothing is built twice.
  */
 export async function prepareForRun(spec: RolloutSpec, signal?: AbortSignal, early?: EarlyWorkers | null): Promise<ReadyRun> {
   if (!runsPluginCode(spec) || runsOnCallingThread(spec)) {

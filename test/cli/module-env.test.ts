@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { ENVS, reckon, tempFiles } from './run-cli.js';
 
@@ -88,6 +89,32 @@ describe('module environments', () => {
     expect(off.code).toBe(1);
     expect(off.stderr).toMatch(/episode 0, step 1/);
     expect(off.stderr).toContain('act returned 2, which is not an action (an index below 2 or one of stay, go)');
+  });
+
+  it('an estimate builds a module environment once a worker: its first worker reports the facts', () => {
+    // Each build of the environment calls its factory, which appends a line to calls.txt.
+    const dir = tempFiles({
+      'env.json': { kind: 'module', path: './counted.js', options: {} },
+      'uniform.json': { kind: 'uniform' },
+      'counted.js': `import { appendFileSync } from 'node:fs';
+      export default () => {
+        appendFileSync(new URL('./calls.txt', import.meta.url), 'built\\n');
+        return {
+          actions: ['a', 'b'], discount: 0.9, horizon: 8, rewardBounds: [0, 1],
+          reset: () => 0,
+          step(state, action, rng, out) { out.state = state + 1; out.reward = rng.uniform(); out.done = false; return out; },
+        };
+      };`,
+    });
+    for (const workers of [1, 2]) {
+      writeFileSync(path.join(dir, 'calls.txt'), '');
+      const out = reckon(['estimate', '--env', 'env.json', '--policy', 'uniform.json', '--episodes', '4000', '--seed', '2', '--workers', String(workers), '--no-store', '--json'], { cwd: dir });
+      expect(out.code).toBe(0);
+      const result = JSON.parse(out.stdout);
+      expect(result.return_bounds.source).toBe('environment'); // the facts arrived from the worker
+      expect(result.horizon).toBe(8);
+      expect(readFileSync(path.join(dir, 'calls.txt'), 'utf8').trim().split('\n')).toHaveLength(workers);
+    }
   });
 
   it('hoeffding without any known bounds says to give --bounds (exit 2)', () => {
