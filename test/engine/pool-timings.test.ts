@@ -67,13 +67,15 @@ describe('worker pool: threads, timings and reuse', () => {
   });
 
   it('threads kept from one run serve the next run of the spec without starting again, with the same returns', async () => {
-    const whole = await run(restock, 3000, 1);
+    // The first run is long enough for both threads to finish starting during it (a thread
+    // still starting when a short run ends is given back before it was ever ready).
+    const whole = await run(restock, 22_000, 1);
     const keep = keepCodeWorkers(restock);
     expect(keep).not.toBeNull();
-    const returns = new Float64Array(3000);
+    const returns = new Float64Array(22_000);
     try {
       const runs: RunOutcome[] = [];
-      for (const [first, count] of [[0, 1000], [1000, 1200], [2200, 800]]) {
+      for (const [first, count] of [[0, 20_000], [20_000, 1200], [21_200, 800]]) {
         runs.push(await runEpisodes(restock, { first, count, workers: 2, keep, onBlock: (b) => returns.set(b.returns, b.first) }));
       }
       for (const r of runs) expect(r.threads).toHaveLength(2);
