@@ -56,9 +56,15 @@ export class EarlyWorkers {
   /**
    * A thread whose run ended cleanly (no block in hand), back for the next run of the same
    * spec. `detach` removes the finished run's handlers; the next run is told the thread is ready.
+   * A thread the run ended before it was ready (`stillStartingSince`, when it was started) is
+   * not: its own ready message, still to come, reaches the next run with its true start-up.
    */
-  giveBack(worker: Worker, clock: SharedArrayBuffer, detach: () => void): void {
+  giveBack(worker: Worker, clock: SharedArrayBuffer, detach: () => void, stillStartingSince: number | null = null): void {
     detach();
+    if (stillStartingSince !== null) {
+      this.wait(worker, clock, stillStartingSince, []);
+      return;
+    }
     const now = performance.timeOrigin + performance.now();
     this.wait(worker, clock, now, [{ type: 'ready', at: now, cpuSeconds: null }]);
   }

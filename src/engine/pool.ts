@@ -392,7 +392,7 @@ async function runThreaded(
   const callerSizer = new BlockSizer(prepared?.runBlockAsync ? blockSeconds : Math.min(blockSeconds, CALLER_BLOCK_SECONDS));
   const ready = options.keep ?? options.early;
   /** What a clean end of the run needs to give a thread back to `keep`. */
-  const held: { worker: Worker; clock: SharedArrayBuffer; detach: () => void }[] = [];
+  const held: { worker: Worker; clock: SharedArrayBuffer; detach: () => void; startedAt: () => number | null }[] = [];
   for (let w = callerRuns ? 1 : 0; w < workerCount; w++) {
     const started = entry.watched ? (ready?.take() ?? null) : null;
     const clock = started ? started.clock : entry.watched ? newClockBuffer() : null;
@@ -404,6 +404,8 @@ async function runThreaded(
     timings.push(timing);
     let lastArrival = 0;
     let inHand = 0;
+    /** False until the thread says it is ready: one that never was is given back still starting. */
+    let reported = false;
     if (clock) {
       watches.push(new StepWatch(clock, () => inHand > 0));
       clocks.push(clock);
@@ -423,6 +425,7 @@ async function runThreaded(
     };
     const onMessage = (message: FromWorker) => {
       if (message.type === 'ready') {
+        reported = true;
         timing.ready(message, createdAt);
         lastArrival = performance.now();
         issue();
@@ -452,6 +455,7 @@ async function runThreaded(
       held.push({
         worker,
         clock,
+        startedAt: () => (reported ? null : createdAt),
         detach: () => {
           worker.off('message', onMessage);
           worker.off('error', onError);
@@ -522,7 +526,7 @@ async function runThreaded(
     clearInterval(watchTimer);
     // A run that ended cleanly, every block delivered, gives its code threads back to be reused.
     const reuse = options.keep && !failure && !abandoned && !options.signal?.aborted && inFlight === 0 && held.length === threads.length;
-    if (reuse) for (const h of held) options.keep!.giveBack(h.worker, h.clock, h.detach);
+    if (reuse) for (const h of held) options.keep!.giveBack(h.worker, h.clock, h.detach, h.startedAt());
     else {
       for (const t of threads) void t.terminate();
       killPrograms(clocks);
