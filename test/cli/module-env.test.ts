@@ -113,7 +113,13 @@ describe('module environments', () => {
       const result = JSON.parse(out.stdout);
       expect(result.return_bounds.source).toBe('environment'); // the facts arrived from the worker
       expect(result.horizon).toBe(8);
-      expect(readFileSync(path.join(dir, 'calls.txt'), 'utf8').trim().split('\n')).toHaveLength(workers);
+      const builds = readFileSync(path.join(dir, 'calls.txt'), 'utf8').trim().split('\n').length;
+      // Never a build beyond one a worker (no thread of its own for the facts). A second worker
+      // that is still starting when the first has run every episode is ended before it builds
+      // the module, so with two workers one build is possible too.
+      if (workers === 1) expect(builds).toBe(1);
+      else expect(builds).toBeGreaterThanOrEqual(1);
+      expect(builds).toBeLessThanOrEqual(workers);
     }
   });
 
